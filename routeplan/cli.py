@@ -1,0 +1,82 @@
+"""The ``routeplan`` command line: parse arguments, call the library, write output.
+
+Nothing heavy is imported at module top, so ``routeplan --help`` answers at once.
+Every command runs inside one error funnel (:class:`_Funnel`): bad input
+(:class:`~routeplan.errors.RouteplanError`) becomes a message on standard error and
+exit code 2 without a traceback; anything else is an internal error, exit code 1, with
+a hint to rerun with ``--debug``.
+"""
+
+from __future__ import annotations
+
+import sys
+
+import click
+
+from routeplan import CAUTION, __version__
+from routeplan.errors import RouteplanError
+
+EXIT_BAD_INPUT = 2
+EXIT_INTERNAL = 1
+
+
+def _err(text: str) -> None:
+    click.echo(text, err=True)
+
+
+class _Funnel(click.Group):
+    """A click group that turns every error into one clear message and an exit code."""
+
+    def invoke(self, ctx: click.Context):  # noqa: D401
+        try:
+            return super().invoke(ctx)
+        except RouteplanError as exc:
+            _err(f"error: {exc.render()}")
+            ctx.exit(EXIT_BAD_INPUT)
+        except (click.exceptions.Exit, click.exceptions.Abort, click.ClickException):
+            raise
+        except KeyboardInterrupt:  # pragma: no cover - interactive
+            _err("interrupted")
+            ctx.exit(130)
+        except Exception as exc:  # noqa: BLE001 - the funnel is the one place for this
+            if ctx.obj and ctx.obj.get("debug"):
+                raise
+            _err(f"internal error: {type(exc).__name__}: {exc}")
+            _err("This is a bug in routeplan, not in your file. Rerun with --debug to see the traceback.")
+            ctx.exit(EXIT_INTERNAL)
+
+
+@click.group(cls=_Funnel, context_settings={"help_option_names": ["-h", "--help"]})
+@click.version_option(__version__, "--version", prog_name="routeplan")
+@click.option("--debug", is_flag=True, help="Show the full traceback of an internal error.")
+@click.pass_context
+def cli(ctx: click.Context, debug: bool) -> None:
+    """Plan the scale-up of a multi-step synthesis route.
+
+    From a route file (YAML) and a target mass, routeplan walks the route backward and
+    gives every charge of every step in mol, kg and L, sizes batches to your vessels,
+    says what to buy, and reports overall yield, process mass intensity and cost.
+
+    \b
+    Examples:
+      routeplan check demo_routes/linear.yaml
+      routeplan plan demo_routes/linear.yaml --target "40 kg"
+
+    Planning estimates only: verify every quantity, assess thermal and chemical
+    hazards before scale-up, and follow site procedures, local codes and licensed
+    practice.
+    """
+    ctx.ensure_object(dict)
+    ctx.obj["debug"] = debug
+
+
+def main() -> None:
+    """Entry point of the ``routeplan`` console script."""
+    cli(prog_name="routeplan")
+
+
+# Commands live in routeplan/commands/*.py and register themselves on ``cli``;
+# importing them is cheap (each imports its heavy modules inside its function).
+from routeplan.commands import register_all  # noqa: E402
+
+register_all(cli)

@@ -1,0 +1,219 @@
+"""The single pint unit registry of routeplan, and the parsers for user quantities.
+
+The registry is built on first use and cached for the life of the process; pint's own
+cache folder (``cache_folder=":auto:"``) keeps the parsed definitions on disk so that a
+later process starts fast.  Everything else in routeplan builds quantities with
+:func:`Q` (value and unit separately, never by parsing a string in a loop).
+
+Quantity strings in route files follow the route format: a number and a unit in one
+string (``"25 kg"``, ``"0.889 g/mL"``).  Percent fields take ``"85 %"`` or a plain
+fraction in [0, 1].
+"""
+
+from __future__ import annotations
+
+import functools
+import re
+from typing import TYPE_CHECKING, Any
+
+from routeplan.errors import Location, QuantityError
+
+if TYPE_CHECKING:  # pragma: no cover
+    import pint
+
+__all__ = ["registry", "Q", "DIMENSIONS", "parse_quantity", "parse_fraction", "dimension_name"]
+
+#: Named dimensions a route file may ask for: name -> (pint dimensionality, example).
+DIMENSIONS: dict[str, tuple[str, str]] = {
+    "mass": ("[mass]", "25 kg"),
+    "volume": ("[length] ** 3", "250 L"),
+    "amount": ("[substance]", "12.5 mol"),
+    "density": ("[mass] / [length] ** 3", "0.889 g/mL"),
+    "molar mass": ("[mass] / [substance]", "151.16 g/mol"),
+    "molarity": ("[substance] / [length] ** 3", "2.5 mol/L"),
+    "temperature": ("[temperature]", "25 degC"),
+    "time": ("[time]", "4 h"),
+}
+
+_NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
+_QUANTITY_RE = re.compile(rf"^\s*(?P<num>{_NUMBER})\s*(?P<unit>.*?)\s*$")
+_DECIMAL_COMMA_RE = re.compile(r"^\s*[+-]?\d+,\d")
+_PERCENT_RE = re.compile(rf"^\s*(?P<num>{_NUMBER})\s*(?P<unit>%|percent)\s*$")
+
+
+@functools.lru_cache(maxsize=1)
+def registry() -> "pint.UnitRegistry":
+    """Return the one pint registry of routeplan (built once, then cached)."""
+    import pint
+
+    try:
+        ureg = pint.UnitRegistry(cache_folder=":auto:", autoconvert_offset_to_baseunit=True)
+    except Exception:  # pragma: no cover - an unwritable cache folder must not stop us
+        ureg = pint.UnitRegistry(autoconvert_offset_to_baseunit=True)
+    ureg.formatter.default_format = "~P"
+    return ureg
+
+
+def Q(value: Any, unit: str) -> "pint.Quantity":
+    """Build a quantity from a value and a unit name.
+
+    Examples
+    --------
+    >>> print(Q(18.015, "g/mol").to("kg/mol").magnitude)
+    0.018015
+    """
+    return registry().Quantity(value, unit)
+
+
+def dimension_name(quantity: "pint.Quantity") -> str:
+    """Name the dimension of ``quantity`` in words (``"a volume"``), or pint's notation."""
+    dim = quantity.dimensionality
+    ureg = registry()
+    for name, (spec, _example) in DIMENSIONS.items():
+        if dim == ureg.get_dimensionality(spec):
+            return name
+    if dim == ureg.get_dimensionality("[]"):
+        return "a plain number"
+    return str(dim)
+
+
+def _article(name: str) -> str:
+    return ("an " if name[0] in "aeiou" else "a ") + name
+
+
+def parse_quantity(text: Any, dimension: str, *, where: Location | None = None) -> "pint.Quantity":
+    """Read a user's quantity string for an expected dimension.
+
+    Parameters
+    ----------
+    text : str
+        A number and a unit, e.g. ``"25 kg"`` or ``"55 lb"``.
+    dimension : str
+        A key of :data:`DIMENSIONS`, e.g. ``"mass"``.
+    where : Location, optional
+        Where the text comes from, for the error message.
+
+    Returns
+    -------
+    pint.Quantity
+        The quantity, in the unit the user wrote.
+
+    Raises
+    ------
+    QuantityError
+        Unreadable text, a decimal comma, an unknown unit or a wrong dimension.
+
+    Examples
+    --------
+    >>> print(parse_quantity("1.5 kg", "mass").to("g").magnitude)
+    1500.0
+    """
+    spec, example = DIMENSIONS[dimension]
+    expect = f"{_article(dimension)} such as '{example}'"
+    if isinstance(text, bool) or not isinstance(text, (str, int, float)):
+        raise QuantityError(f"expected {expect}, got {text!r}", location=where)
+    if isinstance(text, (int, float)):
+        raise QuantityError(
+            f"{text!r} has no unit; expected {expect}",
+            location=where,
+            hint=f"write it with its unit, e.g. '{text} {example.split()[1]}'",
+        )
+    if _DECIMAL_COMMA_RE.match(text):
+        raise QuantityError(
+            f"'{text}' uses a decimal comma; expected {expect}",
+            location=where,
+            hint=f"write '{text.replace(',', '.', 1).strip()}' with a decimal point",
+        )
+    m = _QUANTITY_RE.match(text)
+    if not m:
+        raise QuantityError(f"'{text}' is not a number followed by a unit; expected {expect}", location=where)
+    unit = m.group("unit")
+    if not unit:
+        raise QuantityError(
+            f"'{text}' has no unit; expected {expect}",
+            location=where,
+            hint=f"write e.g. '{m.group('num')} {example.split()[1]}'",
+        )
+    ureg = registry()
+    try:
+        units = ureg.parse_units(unit)
+    except Exception:
+        raise QuantityError(f"'{text}': unknown unit '{unit}'; expected {expect}", location=where) from None
+    value = float(m.group("num"))
+    q = ureg.Quantity(value, units)
+    if q.dimensionality != ureg.get_dimensionality(spec):
+        found = dimension_name(q)
+        found = found if found.startswith(("a ", "[")) else _article(found)
+        raise QuantityError(f"'{text}' is {found}, but {expect} is needed", location=where)
+    return q
+
+
+def parse_fraction(value: Any, *, where: Location | None = None, allow_zero: bool = True,
+                   allow_above_one: bool = False) -> float:
+    """Read a percent field: ``"85 %"`` or a plain fraction in [0, 1].
+
+    Parameters
+    ----------
+    value : str or float
+        ``"85 %"``, ``"85%"``, ``"85 percent"`` or a number such as ``0.85``.
+    allow_zero : bool
+        Whether 0 is acceptable (a yield of 0 is not).
+    allow_above_one : bool
+        Whether more than 100 % is acceptable (an overage may be).
+
+    Returns
+    -------
+    float
+        The fraction [-].
+
+    Raises
+    ------
+    QuantityError
+        A bare number above 1 (suggests ``"85 %"``), a negative value, a decimal comma,
+        or text that is not a percent.
+
+    Examples
+    --------
+    >>> parse_fraction("85 %")
+    0.85
+    >>> parse_fraction(0.5)
+    0.5
+    """
+    if isinstance(value, bool):
+        raise QuantityError(f"expected a percent such as '85 %' or a fraction such as 0.85, got {value!r}",
+                            location=where)
+    if isinstance(value, (int, float)):
+        frac = float(value)
+        if frac != frac or frac in (float("inf"), float("-inf")):
+            raise QuantityError(f"expected a percent such as '85 %', got {value!r}", location=where)
+        if frac > 1:
+            raise QuantityError(
+                f"{value!r} is above 1; a plain number here is a fraction",
+                location=where,
+                hint=f"write '{value:g} %' for percent, or {frac / 100:g} as a fraction",
+            )
+    elif isinstance(value, str):
+        if _DECIMAL_COMMA_RE.match(value):
+            raise QuantityError(f"'{value}' uses a decimal comma", location=where,
+                                hint=f"write '{value.replace(',', '.', 1).strip()}' with a decimal point")
+        m = _PERCENT_RE.match(value)
+        if m:
+            frac = float(m.group("num")) / 100.0
+        else:
+            try:
+                frac = float(value.strip())
+            except ValueError:
+                raise QuantityError(
+                    f"'{value}' is not a percent; expected e.g. '85 %' or a fraction such as 0.85",
+                    location=where) from None
+            return parse_fraction(frac, where=where, allow_zero=allow_zero, allow_above_one=allow_above_one)
+        if frac > 1 and not allow_above_one:
+            raise QuantityError(f"'{value}' is above 100 %", location=where)
+    else:
+        raise QuantityError(f"expected a percent such as '85 %' or a fraction such as 0.85, got {value!r}",
+                            location=where)
+    if frac < 0:
+        raise QuantityError(f"{value!r} is negative; expected a percent between 0 and 100 %", location=where)
+    if frac == 0 and not allow_zero:
+        raise QuantityError(f"{value!r} is zero; expected a percent above 0", location=where)
+    return frac

@@ -1,0 +1,45 @@
+"""The command line answers fast and imports nothing heavy for --help."""
+
+import json
+import os
+import subprocess
+import sys
+import time
+
+import routeplan
+
+
+def _run(*args, env=None):
+    return subprocess.run([sys.executable, *args], capture_output=True, text=True, env=env, timeout=60)
+
+
+def test_version():
+    out = _run("-m", "routeplan", "--version")
+    assert out.returncode == 0
+    assert routeplan.__version__ in out.stdout
+
+
+def test_help_lists_commands_and_caution():
+    out = _run("-m", "routeplan", "--help")
+    assert out.returncode == 0
+    assert "plan" in out.stdout and "check" in out.stdout
+    assert "hazards" in out.stdout
+
+
+def test_import_pulls_in_nothing_heavy():
+    code = ("import sys, routeplan, routeplan.cli; "
+            "import json; print(json.dumps(sorted(m for m in ('pint','networkx','pandas','xlsxwriter',"
+            "'openpyxl','pydantic','ruamel','numpy','rich') if m in sys.modules)))")
+    out = _run("-c", code)
+    assert out.returncode == 0, out.stderr
+    assert json.loads(out.stdout) == []
+
+
+def test_help_is_fast():
+    # the budget is 0.15 s for the whole process; measured in-process the import and the
+    # help text must take a small part of it (interpreter start-up is the rest)
+    code = ("import time; t=time.perf_counter(); from routeplan.cli import cli; "
+            "import click.testing; r=click.testing.CliRunner().invoke(cli, ['--help']); "
+            "print(time.perf_counter()-t)")
+    best = min(float(_run("-c", code).stdout) for _ in range(3))
+    assert best < 0.10, f"routeplan --help took {best:.3f} s in-process"

@@ -1,0 +1,107 @@
+"""Units: the registry, quantity strings and percent fields."""
+
+import math
+
+import pytest
+
+from routeplan.errors import QuantityError, RouteplanError
+from routeplan.units import Q, parse_fraction, parse_quantity, registry
+
+
+def test_registry_is_created_once():
+    assert registry() is registry()
+
+
+# NIST SP 811 (2008 edition), Appendix B.8 "Factors for units listed alphabetically":
+# exact definitions.
+@pytest.mark.parametrize(
+    "text, unit, expected",
+    [
+        ("1 lb", "kg", 0.45359237),  # pound (avoirdupois), exact
+        ("1 oz", "g", 28.349523125),  # ounce (avoirdupois), exact
+        ("1 gallon", "L", 3.785411784),  # gallon (U.S.), exact
+        ("1 imperial_gallon", "L", 4.54609),  # gallon (Imperial), exact
+        ("1 gal", "L", 3.785411784),  # "gal" is the U.S. gallon
+    ],
+)
+def test_unit_factors_against_nist_sp811(text, unit, expected):
+    dim = "mass" if unit in ("kg", "g") else "volume"
+    value = parse_quantity(text, dim).to(unit).magnitude
+    assert math.isclose(value, expected, rel_tol=1e-12)
+
+
+def test_any_unit_of_the_right_dimension():
+    assert math.isclose(parse_quantity("55 lb", "mass").m_as("kg"), 55 * 0.45359237)  # NIST SP 811
+    assert math.isclose(parse_quantity("0.889 g/mL", "density").m_as("kg/L"), 0.889)
+    assert math.isclose(parse_quantity("2.5 mol/L", "molarity").m_as("mol/m**3"), 2500)
+    assert math.isclose(parse_quantity("151.16 g/mol", "molar mass").m_as("kg/mol"), 0.15116)
+    assert math.isclose(parse_quantity("250 L", "volume").m_as("m**3"), 0.25)
+    assert math.isclose(parse_quantity("1.5e3 g", "mass").m_as("kg"), 1.5)
+
+
+def test_offset_temperatures():
+    # NIST SP 811 section 4.2.1.1: T/K = t/degC + 273.15, and degF = 5/9 K from 459.67 degF
+    assert math.isclose(parse_quantity("25 degC", "temperature").to("K").magnitude, 298.15)
+    assert math.isclose(parse_quantity("212 degF", "temperature").to("degC").magnitude, 100.0)
+    assert math.isclose(parse_quantity("-40 degC", "temperature").to("degF").magnitude, -40.0)
+
+
+@pytest.mark.parametrize(
+    "text, dimension, fragment",
+    [
+        ("1,5 kg", "mass", "decimal comma"),
+        ("5 kg", "density", "is a mass"),
+        ("25", "mass", "has no unit"),
+        ("abc kg", "mass", "not a number"),
+        ("5 blorbs", "mass", "unknown unit 'blorbs'"),
+        ("", "mass", "not a number"),
+        ("10 L", "mass", "is a volume"),
+        ("3 mol", "molar mass", "is an amount"),
+    ],
+)
+def test_bad_quantities_name_the_text(text, dimension, fragment):
+    with pytest.raises(QuantityError) as info:
+        parse_quantity(text, dimension)
+    assert fragment in str(info.value)
+    assert isinstance(info.value, RouteplanError)
+
+
+def test_decimal_comma_is_never_fifteen():
+    with pytest.raises(QuantityError) as info:
+        parse_quantity("1,5 kg", "mass")
+    assert "'1.5 kg'" in str(info.value)
+
+
+def test_number_without_unit_suggests_one():
+    with pytest.raises(QuantityError) as info:
+        parse_quantity(25, "mass")
+    assert "25 kg" in str(info.value)
+
+
+@pytest.mark.parametrize("value, expected", [("85 %", 0.85), ("85%", 0.85), ("100 %", 1.0), (0.85, 0.85),
+                                             (1, 1.0), (0, 0.0), ("0.5", 0.5), ("12.5 percent", 0.125)])
+def test_percent_fields(value, expected):
+    assert math.isclose(parse_fraction(value), expected)
+
+
+@pytest.mark.parametrize("value, fragment", [(85, "85 %"), ("85", "85 %"), ("-5 %", "negative"),
+                                             ("abc", "not a percent"), ("1,5 %", "decimal comma"),
+                                             ("120 %", "above 100 %"), (True, "True"), (-0.1, "negative")])
+def test_bad_percent_fields(value, fragment):
+    with pytest.raises(QuantityError) as info:
+        parse_fraction(value)
+    assert fragment in str(info.value)
+
+
+def test_zero_refused_where_asked():
+    with pytest.raises(QuantityError, match="zero"):
+        parse_fraction("0 %", allow_zero=False)
+
+
+def test_overage_may_exceed_one_when_allowed():
+    assert parse_fraction("150 %", allow_above_one=True) == 1.5
+
+
+def test_q_builds_quantities():
+    q = Q(2.0, "kg") * 3
+    assert q.m_as("g") == 6000.0
