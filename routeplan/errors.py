@@ -21,6 +21,7 @@ __all__ = [
     "PlanError",
     "StockError",
     "OutputError",
+    "CompareError",
 ]
 
 
@@ -191,3 +192,7 @@ class StockError(RouteplanError):
 
 class OutputError(RouteplanError):
     """An output file that cannot be written."""
+
+
+class CompareError(RouteplanError):
+    """Routes that cannot be compared (different targets, fewer than two routes)."""

@@ -1,0 +1,1 @@
+"""Route files: schema, loading with positions, checks, domain objects and the route graph."""

@@ -1,0 +1,349 @@
+"""Frozen domain objects of a route: what the planner works on.
+
+They are built from the parsed route file by :mod:`routeplan.route.load` after every
+check has passed, so the planner can trust them: every key referenced exists, every
+charge line is complete (the limiting reagent and any reactant without a line have
+been given their stoichiometric line), and quantities carry pint units.
+"""
+
+from __future__ import annotations
+
+import functools
+from dataclasses import dataclass, field
+from types import MappingProxyType
+from typing import TYPE_CHECKING, Mapping
+
+from routeplan.errors import Location, Problem
+
+if TYPE_CHECKING:  # pragma: no cover
+    import networkx as nx
+    import pint
+
+    from routeplan.chemistry.equation import Equation
+
+__all__ = [
+    "BASES",
+    "ROLES",
+    "Solution",
+    "Material",
+    "Vessel",
+    "Charge",
+    "Yield",
+    "Step",
+    "Target",
+    "Source",
+    "Route",
+]
+
+#: Charge bases of the route format, plus the two the loader fills in itself:
+#: ``"stoichiometric"`` (a reactant with no basis: its coefficient ratio).
+BASES = ("equiv", "mol_percent", "volumes", "mass_ratio", "stoichiometric")
+
+#: Roles a charge line may have.
+ROLES = ("reactant", "reagent", "catalyst", "solvent", "workup")
+
+
+@dataclass(frozen=True)
+class Solution:
+    """A reagent supplied as a solution of the material's compound.
+
+    Exactly one of ``molarity`` and ``mass_fraction`` is set.
+
+    Attributes
+    ----------
+    molarity : pint.Quantity or None
+        Concentration of the compound [mol/L].
+    mass_fraction : float or None
+        Mass fraction of the compound in the solution [-].
+    density : pint.Quantity
+        Density of the whole solution [g/mL].
+    """
+
+    density: "pint.Quantity"
+    molarity: "pint.Quantity | None" = None
+    mass_fraction: float | None = None
+
+
+@dataclass(frozen=True)
+class Material:
+    """A substance the route touches.
+
+    Attributes
+    ----------
+    key : str
+        Identifier used in equations and charges.
+    name : str
+        Display name.
+    formula : str or None
+        Molecular formula (of the solute, for a solution).
+    smiles : str or None
+        SMILES, an alternative to ``formula``.
+    molar_mass : pint.Quantity or None
+        Molar mass [g/mol]; from the formula, the SMILES or given explicitly.
+    assay : float
+        Mass fraction of the named compound as supplied [-]; 1.0 for a solution.
+    density : pint.Quantity or None
+        Density as supplied [g/mL].
+    solution : Solution or None
+        Set when supplied as a solution.
+    price : float or None
+        Price per kg as supplied, in the route's currency [currency/kg].
+    hazards : tuple of str
+        Free-text hazard notes, carried onto charge sheets.
+    notes : str or None
+        Free text.
+    location : Location or None
+        Where the material is defined in the route file.
+    """
+
+    key: str
+    name: str
+    formula: str | None = None
+    smiles: str | None = None
+    molar_mass: "pint.Quantity | None" = None
+    assay: float = 1.0
+    density: "pint.Quantity | None" = None
+    solution: Solution | None = None
+    price: float | None = None
+    hazards: tuple[str, ...] = ()
+    notes: str | None = None
+    location: Location | None = None
+
+
+@dataclass(frozen=True)
+class Vessel:
+    """A vessel the route may use.
+
+    Attributes
+    ----------
+    key : str
+        Identifier.
+    volume : pint.Quantity
+        Nominal volume [L].
+    max_fill : float
+        Largest working fraction of ``volume`` [-], default 0.8.
+    """
+
+    key: str
+    volume: "pint.Quantity"
+    max_fill: float = 0.8
+    location: Location | None = None
+
+
+@dataclass(frozen=True)
+class Charge:
+    """One line of a step's charges, in order of addition.
+
+    Attributes
+    ----------
+    material : str
+        Key of the material charged.
+    basis : str
+        One of :data:`BASES`.
+    value : float
+        The number for the basis: equiv [-], mol % [-], volumes [L/kg] or mass ratio
+        [kg/kg]; for ``"stoichiometric"`` the coefficient ratio nu_i / nu_limiting [-].
+    role : str
+        One of :data:`ROLES`.
+    implicit : bool
+        True when the loader added the line (a reactant of the equation with no line).
+    location : Location or None
+        Where the line is in the route file.
+    """
+
+    material: str
+    basis: str
+    value: float
+    role: str
+    implicit: bool = False
+    location: Location | None = None
+
+    @property
+    def equiv(self) -> float | None:
+        """Moles per mole of limiting reagent [-], for the molar bases; else None."""
+        if self.basis in ("equiv", "stoichiometric"):
+            return self.value
+        if self.basis == "mol_percent":
+            return self.value / 100.0
+        return None
+
+
+@dataclass(frozen=True)
+class Yield:
+    """Molar yield of a step's product from its limiting reagent [-]."""
+
+    expected: float
+    low: float | None = None
+    high: float | None = None
+
+
+@dataclass(frozen=True)
+class Step:
+    """One reaction of the route.
+
+    Attributes
+    ----------
+    id : str
+        Unique step identifier.
+    name : str
+        Display name (defaults to the id).
+    equation : Equation
+        Parsed equation over material keys.
+    equation_text : str
+        The equation as written.
+    limiting : str
+        Key of the limiting reagent.
+    product : str
+        Key of the main product.
+    yield_ : Yield
+        Molar yield of ``product`` from ``limiting`` [-].
+    charges : tuple of Charge
+        Complete charge lines in order of addition.
+    isolated : bool
+        False for a telescoped step whose product goes on in solution.
+    vessel : str or None
+        Key of the vessel used.
+    demonstrated_batch : pint.Quantity or None
+        Largest batch run so far, as mass of limiting reagent [kg].
+    notes : str or None
+        Free text.
+    location : Location or None
+        Where the step is defined.
+    """
+
+    id: str
+    name: str
+    equation: "Equation"
+    equation_text: str
+    limiting: str
+    product: str
+    yield_: Yield
+    charges: tuple[Charge, ...]
+    isolated: bool = True
+    vessel: str | None = None
+    demonstrated_batch: "pint.Quantity | None" = None
+    notes: str | None = None
+    location: Location | None = None
+
+    def charge_of(self, material: str) -> Charge | None:
+        """The charge line of ``material`` in this step, or None."""
+        for c in self.charges:
+            if c.material == material:
+                return c
+        return None
+
+
+@dataclass(frozen=True)
+class Target:
+    """What the campaign must deliver.
+
+    Attributes
+    ----------
+    material : str
+        Key of the material to deliver.
+    amount : pint.Quantity
+        Mass to deliver as isolated (at the material's assay) [kg].
+    overage : float
+        Planning margin on top of ``amount`` [-].
+    """
+
+    material: str
+    amount: "pint.Quantity"
+    overage: float = 0.0
+    location: Location | None = None
+
+
+@dataclass(frozen=True)
+class Source:
+    """The file a route was read from: name and SHA-256 of its bytes."""
+
+    path: str
+    sha256: str
+
+
+@dataclass(frozen=True)
+class Route:
+    """A whole, checked route.
+
+    Attributes
+    ----------
+    name : str
+        Display name.
+    target : Target
+        What to deliver.
+    materials : Mapping[str, Material]
+        Every material by key (read-only mapping, in file order).
+    steps : tuple of Step
+        Steps in file order (the planner orders them).
+    equipment : Mapping[str, Vessel]
+        Vessels by key.
+    currency : str or None
+        ISO 4217 code of every price.
+    format : int
+        Route format version.
+    source : Source or None
+        The file the route came from.
+    warnings : tuple of Problem
+        Warnings found while loading.
+    """
+
+    name: str
+    target: Target
+    materials: Mapping[str, Material]
+    steps: tuple[Step, ...]
+    equipment: Mapping[str, Vessel] = field(default_factory=lambda: MappingProxyType({}))
+    currency: str | None = None
+    format: int = 1
+    source: Source | None = None
+    warnings: tuple[Problem, ...] = ()
+
+    def __post_init__(self) -> None:
+        if not isinstance(self.materials, MappingProxyType):
+            object.__setattr__(self, "materials", MappingProxyType(dict(self.materials)))
+        if not isinstance(self.equipment, MappingProxyType):
+            object.__setattr__(self, "equipment", MappingProxyType(dict(self.equipment)))
+
+    def __hash__(self) -> int:
+        return id(self)
+
+    @functools.cached_property
+    def _steps_by_id(self) -> Mapping[str, Step]:
+        return MappingProxyType({s.id: s for s in self.steps})
+
+    def step(self, step_id: str) -> Step:
+        """The step with id ``step_id``."""
+        return self._steps_by_id[step_id]
+
+    @functools.cached_property
+    def consumers(self) -> Mapping[str, tuple[str, ...]]:
+        """Material key -> ids of the steps that have it as a reactant of their equation."""
+        out: dict[str, list[str]] = {}
+        for s in self.steps:
+            for t in s.equation.reactants:
+                out.setdefault(t.key, []).append(s.id)
+        return MappingProxyType({k: tuple(v) for k, v in out.items()})
+
+    @functools.cached_property
+    def producer(self) -> Mapping[str, str]:
+        """Material key -> id of the step that produces it as its main product or by-product."""
+        out: dict[str, str] = {}
+        for s in self.steps:
+            for t in s.equation.products:
+                out.setdefault(t.key, s.id)
+        return MappingProxyType(out)
+
+    @functools.cached_property
+    def intermediates(self) -> frozenset[str]:
+        """Keys of materials that are the main product of some step."""
+        return frozenset(s.product for s in self.steps)
+
+    def is_intermediate(self, key: str) -> bool:
+        """True when some step makes ``key`` as its main product."""
+        return key in self.intermediates
+
+    @functools.cached_property
+    def graph(self) -> "nx.DiGraph":
+        """The route graph (see :mod:`routeplan.route.graph`)."""
+        from routeplan.route.graph import build_graph
+
+        return build_graph(self)

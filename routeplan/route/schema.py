@@ -1,0 +1,458 @@
+"""Pydantic models that mirror the route file, key for key (route format 1).
+
+These models are the parse layer only: they check the shape of the document and read
+every value by the format's rules (quantities through :func:`routeplan.units.parse_quantity`,
+percents through :func:`routeplan.units.parse_fraction`).  Cross-references between
+parts of the file are checked in :mod:`routeplan.route.checks`, and the planner works
+on the frozen objects of :mod:`routeplan.route.model`, built by
+:mod:`routeplan.route.load`.
+
+Every model forbids unknown keys.  Scalar values go through our own validators, so a
+message says what would be right in our words (``must be a positive number, got -1``);
+a quantity is kept as a pint Quantity, a percent as a fraction [-].  An optional key
+left empty in the YAML (``density:``) is an error, not "not given": leave it out instead.
+"""
+
+import difflib
+import math
+import re
+from typing import Annotated, Any, get_args, get_origin
+
+from pydantic import (AfterValidator, BaseModel, ConfigDict, Field, PlainValidator, ValidationError, WithJsonSchema,
+                      model_validator)
+from pydantic_core import PydanticCustomError
+
+from routeplan.errors import Problem, QuantityError
+from routeplan.route.model import ROLES
+from routeplan.route.yamlpos import Positions
+from routeplan.units import DIMENSIONS, parse_fraction, parse_quantity
+
+__all__ = [
+    "FORMAT_VERSION",
+    "MATERIAL_KEY",
+    "RouteFile",
+    "TargetModel",
+    "MaterialModel",
+    "SolutionModel",
+    "VesselModel",
+    "StepModel",
+    "YieldModel",
+    "ChargeModel",
+    "CHARGE_BASES",
+    "describe_value",
+    "model_at",
+    "keys_of",
+    "validation_problems",
+]
+
+#: The route format version this module reads.
+FORMAT_VERSION = 1
+
+#: The rule for material keys: letters, digits, ``-``, ``_``, ``.``; starts with a letter or digit.
+MATERIAL_KEY = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.\-]*$")
+
+#: The bases a charge line may give (at most one).
+CHARGE_BASES = ("equiv", "mol_percent", "volumes", "mass_ratio")
+
+_NUMBER_PATTERN = r"(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
+#: JSON-schema pattern of a quantity string: a non-negative number, then a unit (no decimal comma).
+QUANTITY_PATTERN = rf"^\s*\+?{_NUMBER_PATTERN}\s*[^\s\d,.].*$"
+#: JSON-schema pattern of a percent string (``85 %``) or a plain fraction in a string.
+PERCENT_PATTERN = rf"^\s*\+?{_NUMBER_PATTERN}\s*(?:%|percent)?\s*$"
+
+
+def describe_value(value: Any) -> str:
+    """Say what a YAML value is, for messages: ``-1``, ``'1,5 kg'``, ``a list``, ``nothing``."""
+    if value is None:
+        return "nothing (an empty value)"
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, (int, float)):
+        return f"{value:g}" if isinstance(value, float) else str(value)
+    if isinstance(value, str):
+        shown = value if len(value) <= 60 else value[:57] + "..."
+        return repr(shown)
+    if isinstance(value, list):
+        return "a list"
+    if isinstance(value, dict):
+        return "a mapping"
+    return type(value).__name__  # pragma: no cover - YAML gives nothing else
+
+
+def _fail(text: str, hint: str | None = None):
+    ctx = {"text": text}
+    if hint:
+        ctx["hint"] = hint
+    return PydanticCustomError("routeplan", "{text}", ctx)
+
+
+# ----------------------------------------------------------------------------- scalars
+
+def _text(value: Any) -> str:
+    if isinstance(value, str):
+        if not value.strip():
+            raise _fail("must not be empty")
+        return value
+    if isinstance(value, (bool, int, float)):
+        raise _fail(f"must be text, got {describe_value(value)}", f"write it in quotes: '{describe_value(value)}'")
+    raise _fail(f"must be text, got {describe_value(value)}")
+
+
+def _number(*, positive: bool):
+    word = "a positive number" if positive else "a number of 0 or more"
+
+    def check(value: Any) -> float:
+        if isinstance(value, bool) or not isinstance(value, (int, float)):
+            hint = None
+            if isinstance(value, str):
+                if re.match(r"^\s*[+-]?\d+,\d+\s*$", value):
+                    hint = f"write {value.strip().replace(',', '.')} with a decimal point"
+                else:
+                    try:
+                        float(value)
+                        hint = "write the number without quotes"
+                    except ValueError:
+                        hint = "a plain number, without a unit"
+            raise _fail(f"must be {word}, got {describe_value(value)}", hint)
+        if not math.isfinite(value) or value < 0 or (positive and value == 0):
+            raise _fail(f"must be {word}, got {describe_value(value)}")
+        return float(value)
+
+    return check
+
+
+def _boolean(value: Any) -> bool:
+    if isinstance(value, bool):
+        return value
+    raise _fail(f"must be true or false, got {describe_value(value)}")
+
+
+def _quantity(dimension: str):
+    def check(value: Any):
+        if value is None:
+            raise _fail(f"has no value; expected {dimension} such as '{DIMENSIONS[dimension][1]}'",
+                        "leave the key out if it does not apply")
+        try:
+            q = parse_quantity(value, dimension)
+        except QuantityError as exc:
+            raise _fail(exc.message, exc.hint) from None
+        if not math.isfinite(q.magnitude) or q.magnitude <= 0:
+            raise _fail(f"must be positive, got {describe_value(value)}")
+        return q
+
+    return check
+
+
+def _fraction(*, allow_zero: bool, allow_above_one: bool = False):
+    def check(value: Any) -> float:
+        if value is None:
+            raise _fail("has no value; expected a percent such as '85 %' or a fraction such as 0.85",
+                        "leave the key out if it does not apply")
+        try:
+            return parse_fraction(value, allow_zero=allow_zero, allow_above_one=allow_above_one)
+        except QuantityError as exc:
+            raise _fail(exc.message, exc.hint) from None
+
+    return check
+
+
+def _material_key(value: Any) -> str:
+    if isinstance(value, str) and MATERIAL_KEY.match(value):
+        return value
+    raise _fail(f"{describe_value(value)} is not a valid material key",
+                "use letters, digits, '-', '_' and '.', starting with a letter or digit, "
+                "without spaces or '+'")
+
+
+def _role(value: Any) -> str:
+    if isinstance(value, str) and value in ROLES:
+        return value
+    near = difflib.get_close_matches(str(value).lower(), ROLES, n=1, cutoff=0.6)
+    hint = f"did you mean '{near[0]}'?" if near else None
+    raise _fail(f"must be one of {', '.join(ROLES)}; got {describe_value(value)}", hint)
+
+
+def _currency(value: Any) -> str:
+    if isinstance(value, str) and re.fullmatch(r"[A-Z]{3}", value):
+        return value
+    hint = None
+    if isinstance(value, str) and re.fullmatch(r"\s*[A-Za-z]{3}\s*", value):
+        hint = f"write '{value.strip().upper()}'"
+    raise _fail(f"must be a three-letter ISO 4217 currency code in capitals such as 'EUR' or 'USD', "
+                f"got {describe_value(value)}", hint)
+
+
+def _format(value: Any) -> int:
+    if isinstance(value, int) and not isinstance(value, bool) and value == FORMAT_VERSION:
+        return value
+    raise _fail(f"this routeplan reads route format {FORMAT_VERSION}, got {describe_value(value)}",
+                f"write 'format: {FORMAT_VERSION}' and the keys of format {FORMAT_VERSION}")
+
+
+def _nonempty(what: str):
+    def check(value):
+        if not value:
+            raise _fail(f"needs at least one {what}")
+        return value
+
+    return check
+
+
+def _quantity_schema(dimension: str, description: str) -> dict:
+    example = DIMENSIONS[dimension][1]
+    return {"type": "string", "pattern": QUANTITY_PATTERN, "examples": [example],
+            "description": f"{description} ({dimension}: a number and a unit, e.g. '{example}')"}
+
+
+def _percent_schema(description: str, *, above_one: bool = False) -> dict:
+    number = {"type": "number", "minimum": 0, "maximum": 1}
+    return {"anyOf": [{"type": "string", "pattern": PERCENT_PATTERN}, number],
+            "examples": ["85 %", 0.85],
+            "description": f"{description} ('85 %' or a fraction such as 0.85"
+                           + (", may exceed 100 % when written as a percent)" if above_one else ")")}
+
+
+def Text(description: str):
+    """A non-empty string field type."""
+    return Annotated[Any, PlainValidator(_text),
+                     WithJsonSchema({"type": "string", "minLength": 1, "description": description})]
+
+
+def Number(description: str, *, positive: bool = True):
+    """A plain number field type (YAML int or float)."""
+    limit = {"exclusiveMinimum": 0} if positive else {"minimum": 0}
+    return Annotated[Any, PlainValidator(_number(positive=positive)),
+                     WithJsonSchema({"type": "number", **limit, "description": description})]
+
+
+def Quantity(dimension: str, description: str):
+    """A quantity field type: a string with a number and a unit of ``dimension``."""
+    return Annotated[Any, PlainValidator(_quantity(dimension)),
+                     WithJsonSchema(_quantity_schema(dimension, description))]
+
+
+def Percent(description: str, *, allow_zero: bool = False, allow_above_one: bool = False):
+    """A percent field type: ``'85 %'`` or a fraction in [0, 1]; read as a fraction [-]."""
+    return Annotated[Any, PlainValidator(_fraction(allow_zero=allow_zero, allow_above_one=allow_above_one)),
+                     WithJsonSchema(_percent_schema(description, above_one=allow_above_one))]
+
+
+Boolean = Annotated[Any, PlainValidator(_boolean), WithJsonSchema({"type": "boolean"})]
+MaterialKey = Annotated[Any, PlainValidator(_material_key),
+                        WithJsonSchema({"type": "string", "pattern": MATERIAL_KEY.pattern})]
+
+
+class _Model(BaseModel):
+    model_config = ConfigDict(extra="forbid", strict=True, frozen=True, populate_by_name=False)
+
+
+# ----------------------------------------------------------------------------- models
+
+class TargetModel(_Model):
+    """``target``: what the campaign must deliver."""
+
+    material: Text("key of the material to deliver; exactly one step must make it")
+    amount: Quantity("mass", "mass to deliver, as isolated (at the material's assay)")
+    overage: Percent("planning margin on top of amount, default 0 %", allow_zero=True,
+                     allow_above_one=True) = 0.0
+
+
+class SolutionModel(_Model):
+    """``materials.<key>.solution``: a reagent supplied as a solution of the compound."""
+
+    molarity: Quantity("molarity", "concentration of the compound in the solution") = None
+    mass_fraction: Percent("mass fraction of the compound in the solution") = None
+    density: Quantity("density", "density of the whole solution")
+
+
+class MaterialModel(_Model):
+    """``materials.<key>``: one substance the route touches."""
+
+    name: Text("display name, defaults to the key") = None
+    formula: Text("molecular formula, e.g. C8H7BrO2, CuSO4.5H2O, SO4-2 (of the solute for a solution)") = None
+    smiles: Text("SMILES string, an alternative to formula (needs the 'smiles' extra)") = None
+    molar_mass: Quantity("molar mass", "explicit molar mass, for a material without formula or smiles") = None
+    assay: Percent("purity as supplied (mass fraction of the named compound), default 100 %") = None
+    density: Quantity("density", "density of the material as supplied") = None
+    solution: SolutionModel = Field(None, description="for a reagent supplied as a solution: molarity or "
+                                                      "mass_fraction, and density")
+    price: Number("price per kg as supplied, in the route's currency", positive=False) = None
+    hazards: list[Text("a hazard note")] = Field(None, description="free-text hazard notes")
+    notes: Text("free text") = None
+
+
+class VesselModel(_Model):
+    """``equipment.<key>``: one vessel."""
+
+    volume: Quantity("volume", "nominal vessel volume")
+    max_fill: Percent("largest working fraction of volume, default 80 %") = 0.8
+
+
+class YieldModel(_Model):
+    """``steps[i].yield``: ``88 %`` or ``{expected, low, high}``."""
+
+    expected: Percent("expected molar yield, used by the planner")
+    low: Percent("lowest yield expected") = None
+    high: Percent("highest yield expected") = None
+
+    @model_validator(mode="before")
+    @classmethod
+    def _plain(cls, value: Any) -> Any:
+        return value if isinstance(value, dict) else {"expected": value}
+
+
+class ChargeModel(_Model):
+    """``steps[i].charges[j]``: one charge line; at most one basis."""
+
+    material: Text("key of the material charged")
+    equiv: Number("moles per mole of limiting reagent (both assay-corrected)") = None
+    mol_percent: Number("100 x equiv (catalysts)") = None
+    volumes: Number("litres per kg of limiting reagent as charged (mL/g)") = None
+    mass_ratio: Number("kg per kg of limiting reagent as charged") = None
+    role: Annotated[Any, PlainValidator(_role),
+                    WithJsonSchema({"enum": list(ROLES), "description": "role of the charge"})] = None
+
+
+class StepModel(_Model):
+    """``steps[i]``: one reaction."""
+
+    id: Text("unique step identifier")
+    name: Text("display name") = None
+    equation: Text("equation over material keys, e.g. 'Amine + Ac2O -> Amide + AcOH'")
+    limiting: Text("the reactant that is the basis of equivalents and yield; default the first reactant") = None
+    product: Text("the main product, whose yield is given; default the first product") = None
+    yield_: YieldModel = Field(alias="yield", description="molar yield of product from limiting: '88 %' or "
+                                                          "{expected: 88 %, low: 80 %, high: 92 %}")
+    charges: list[ChargeModel] = Field(None, description="what goes into the vessel, in order of addition")
+    isolated: Boolean = Field(True, description="false for a telescoped step whose product goes on in solution")
+    vessel: Text("key of the equipment used") = None
+    demonstrated_batch: Quantity("mass", "largest batch run so far, as mass of limiting reagent") = None
+    notes: Text("free text, carried onto the charge sheet") = None
+
+
+class RouteFile(_Model):
+    """A whole route file (format 1)."""
+
+    route: Text("display name of the route")
+    format: Annotated[Any, PlainValidator(_format),
+                      WithJsonSchema({"const": FORMAT_VERSION, "description": "route format version"})] = FORMAT_VERSION
+    currency: Annotated[Any, PlainValidator(_currency),
+                        WithJsonSchema({"type": "string", "pattern": "^[A-Z]{3}$",
+                                        "description": "ISO 4217 code of every price, e.g. EUR"})] = None
+    target: TargetModel
+    materials: Annotated[dict[MaterialKey, MaterialModel], AfterValidator(_nonempty("material"))]
+    equipment: dict[Text("vessel key"), VesselModel] = Field(None, description="vessels, by key")
+    steps: Annotated[list[StepModel], AfterValidator(_nonempty("step"))]
+
+
+#: Short help for a required key that is missing: (model, key) -> what to write.
+MISSING_HINTS: dict[tuple[type, str], str] = {
+    (RouteFile, "route"): "the display name of the route, e.g. 'route: HX-17 route A'",
+    (RouteFile, "target"): "what to deliver: '{material: <key>, amount: 25 kg}'",
+    (RouteFile, "materials"): "every substance the route touches, by key",
+    (RouteFile, "steps"): "the list of reactions",
+    (TargetModel, "material"): "the key of the material to deliver",
+    (TargetModel, "amount"): "the mass to deliver, e.g. 'amount: 25 kg'",
+    (SolutionModel, "density"): "the density of the whole solution, e.g. 'density: 1.52 g/mL'; it turns "
+                                "the solution's volume into its mass",
+    (VesselModel, "volume"): "the nominal vessel volume, e.g. 'volume: 250 L'",
+    (YieldModel, "expected"): "the expected yield, e.g. 'expected: 88 %'",
+    (StepModel, "id"): "a unique step identifier, e.g. 'id: S1'",
+    (StepModel, "equation"): "e.g. 'equation: Amine + Ac2O -> Amide + AcOH'",
+    (StepModel, "yield"): "the molar yield of the product, e.g. 'yield: 88 %'",
+    (ChargeModel, "material"): "the key of the material charged",
+}
+
+
+# ----------------------------------------------------------------------------- messages
+
+def _unwrap(tp: Any) -> Any:
+    while get_origin(tp) is Annotated:
+        tp = get_args(tp)[0]
+    return tp
+
+
+def model_at(path: tuple) -> type[BaseModel] | None:
+    """The model class that validates the mapping at ``path``, or None.
+
+    Examples
+    --------
+    >>> model_at(("steps", 0, "charges", 2)).__name__
+    'ChargeModel'
+    """
+    tp: Any = RouteFile
+    for part in path:
+        tp = _unwrap(tp)
+        if isinstance(tp, type) and issubclass(tp, BaseModel):
+            found = [f for name, f in tp.model_fields.items() if (f.alias or name) == part]
+            if not found:
+                return None
+            tp = found[0].annotation
+        elif get_origin(tp) in (dict, list):
+            tp = get_args(tp)[-1]
+        else:
+            return None
+    tp = _unwrap(tp)
+    return tp if isinstance(tp, type) and issubclass(tp, BaseModel) else None
+
+
+def keys_of(model: type[BaseModel]) -> list[str]:
+    """The YAML keys a model accepts, in order."""
+    return [f.alias or name for name, f in model.model_fields.items()]
+
+
+def validation_problems(error: ValidationError, positions: Positions) -> list[Problem]:
+    """Turn pydantic's errors into located problems in our words.
+
+    Parameters
+    ----------
+    error : pydantic.ValidationError
+        From validating the document against :class:`RouteFile`.
+    positions : Positions
+        Positions of the document's values and keys.
+
+    Returns
+    -------
+    list of Problem
+        One error per pydantic error, each with file, line, column and key path.
+    """
+    out = []
+    for err in error.errors(include_url=False):
+        loc = tuple(err["loc"])
+        kind = err["type"]
+        ctx = err.get("ctx") or {}
+        value = err.get("input")
+        hint = None
+        if "[key]" in loc:
+            path = loc[: loc.index("[key]")]
+            where = positions.at(path, key=True)
+            message, hint = ctx.get("text", err["msg"]), ctx.get("hint")
+        elif kind == "missing":
+            parent, key = loc[:-1], loc[-1]
+            model = model_at(parent)
+            where = positions.at(parent, show=loc)
+            message = "is required but missing"
+            hint = MISSING_HINTS.get((model, key)) if model else None
+        elif kind == "extra_forbidden":
+            parent, key = loc[:-1], str(loc[-1])
+            model = model_at(parent)
+            where = positions.at(loc, key=True)
+            valid = keys_of(model) if model else []
+            near = difflib.get_close_matches(key, valid, n=1, cutoff=0.6) or \
+                difflib.get_close_matches(key.lower(), valid, n=1, cutoff=0.6)
+            message = f"unknown key '{key}'"
+            hint = f"did you mean '{near[0]}'?" if near else "valid keys here: " + ", ".join(valid)
+        else:
+            where = positions.at(loc, show=positions.known(loc))
+            if kind == "routeplan":
+                message, hint = ctx["text"], ctx.get("hint")
+            elif kind in ("model_type", "model_attributes_type", "dict_type"):
+                message = f"must be a mapping of keys to values, got {describe_value(value)}"
+            elif kind == "list_type":
+                message = f"must be a list (one '- ' line per entry), got {describe_value(value)}"
+                if value is None:
+                    hint = "leave the key out if there is nothing to list"
+            else:  # pragma: no cover - every model field goes through the cases above
+                message = f"{err['msg']}, got {describe_value(value)}"
+        out.append(Problem("error", message, where, hint=hint))
+    return out

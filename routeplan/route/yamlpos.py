@@ -1,0 +1,248 @@
+"""Read a route file's YAML into plain Python data, keeping every node's position.
+
+The document is composed with ruamel.yaml (YAML 1.2, pure-Python safe loader) into a
+node tree, and the tree is turned into plain ``dict``/``list``/``str``/``int``/
+``float``/``bool``/``None`` values by :func:`read_yaml` itself, so that
+
+* every value and every mapping key keeps its line and column (:class:`Positions`),
+  addressed by the same path tuples pydantic uses in its error locations
+  (``("steps", 2, "charges", 1, "equiv")``);
+* a duplicate key is an error naming both lines, never a silent overwrite;
+* no tag outside the YAML core schema is accepted, so loading never constructs an
+  arbitrary object;
+* anchors and aliases work, but the expanded document is capped in size.
+
+Problems are collected, not raised one at a time, so that a file shows all of them.
+"""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass, field
+from typing import Any
+
+from ruamel.yaml import YAML
+from ruamel.yaml.error import MarkedYAMLError, YAMLError
+from ruamel.yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
+
+from routeplan.errors import Location, Problem
+
+__all__ = ["Path", "Positions", "read_yaml", "format_path", "MAX_NODES"]
+
+#: A key path inside the document: mapping keys (str) and list indexes (int).
+Path = tuple
+
+#: Largest number of values a document may expand to (anchors and aliases included).
+MAX_NODES = 200_000
+
+_CORE = "tag:yaml.org,2002:"
+_SCALAR_TAGS = {f"{_CORE}{t}" for t in ("str", "int", "float", "bool", "null", "timestamp")}
+_IDENT = re.compile(r"^[A-Za-z0-9_][A-Za-z0-9_\-]*$")
+
+
+def format_path(path: Path) -> str:
+    """Render a key path the way messages show it: ``steps[2].charges[1].equiv``.
+
+    List indexes count from 0.  A mapping key that is not a plain identifier is
+    quoted: ``materials["4-Br phenol"]``.
+
+    Examples
+    --------
+    >>> format_path(("steps", 2, "charges", 1, "equiv"))
+    'steps[2].charges[1].equiv'
+    >>> format_path(("materials", "Pd(OAc)2", "assay"))
+    'materials["Pd(OAc)2"].assay'
+    """
+    out = ""
+    for part in path:
+        if isinstance(part, int):
+            out += f"[{part}]"
+        elif _IDENT.match(str(part)):
+            out += ("." if out else "") + str(part)
+        else:
+            out += f'["{part}"]'
+    return out
+
+
+@dataclass
+class Positions:
+    """Line and column (1-based) of every value and mapping key of a document.
+
+    Attributes
+    ----------
+    file : str
+        File name for messages.
+    values : dict
+        Path -> (line, column) of the value node at that path.
+    keys : dict
+        Path -> (line, column) of the mapping key that leads to the path.
+    """
+
+    file: str
+    values: dict = field(default_factory=dict)
+    keys: dict = field(default_factory=dict)
+
+    def known(self, path: Path) -> Path:
+        """The longest prefix of ``path`` that exists in the document."""
+        path = tuple(path)
+        while path and path not in self.values:
+            path = path[:-1]
+        return path
+
+    def at(self, path: Path, *, key: bool = False, show: Path | None = None) -> Location:
+        """Location of ``path`` (its key with ``key=True``), shown as ``show``.
+
+        When ``path`` does not exist, the position of its longest existing prefix is
+        used.  The key path shown is ``show`` if given, else ``path``.
+        """
+        path = tuple(path)
+        found = self.known(path)
+        table = self.keys if key and found == path and path in self.keys else self.values
+        line, column = table.get(found, (None, None))
+        shown = format_path(path if show is None else show)
+        return Location(self.file, line, column, shown or None)
+
+
+def _tag(node: Node) -> str:
+    return str(node.tag).replace(_CORE, "!!")
+
+
+def _mark(node: Node) -> tuple[int, int]:
+    return node.start_mark.line + 1, node.start_mark.column + 1
+
+
+class _Builder:
+    """Turns a composed node tree into plain data, recording positions and problems."""
+
+    def __init__(self, yaml: YAML, file: str) -> None:
+        self.constructor = yaml.constructor
+        self.pos = Positions(file)
+        self.problems: list[Problem] = []
+        self.count = 0
+
+    def problem(self, node: Node, path: Path, message: str, hint: str | None = None) -> None:
+        line, column = _mark(node)
+        loc = Location(self.pos.file, line, column, format_path(path) or None)
+        self.problems.append(Problem("error", message, loc, hint=hint))
+
+    def build(self, node: Node, path: Path, depth: int = 0) -> Any:
+        self.count += 1
+        if self.count > MAX_NODES:
+            raise _TooLarge()
+        if depth > 60:
+            self.problem(node, path, "the document is nested too deeply (more than 60 levels)")
+            return None
+        self.pos.values.setdefault(path, _mark(node))
+        tag = str(node.tag)
+        if isinstance(node, ScalarNode):
+            if tag not in _SCALAR_TAGS:
+                self.problem(node, path, f"the YAML tag '{_tag(node)}' is not allowed in a route file",
+                             "write a plain value without a tag")
+                return None
+            if tag == f"{_CORE}timestamp":
+                return node.value  # a date is only ever free text here
+            try:
+                return self.constructor.construct_object(node, deep=True)
+            except (YAMLError, ValueError, TypeError):
+                self.problem(node, path, f"'{node.value}' cannot be read as {tag.rsplit(':', 1)[-1]}")
+                return None
+        if isinstance(node, SequenceNode):
+            if tag != f"{_CORE}seq":
+                self.problem(node, path, f"the YAML tag '{_tag(node)}' is not allowed in a route file",
+                             "write a plain list without a tag")
+                return None
+            return [self.build(item, path + (i,), depth + 1) for i, item in enumerate(node.value)]
+        if isinstance(node, MappingNode):
+            if tag != f"{_CORE}map":
+                self.problem(node, path, f"the YAML tag '{_tag(node)}' is not allowed in a route file",
+                             "write a plain mapping without a tag")
+                return None
+            out: dict[str, Any] = {}
+            first_line: dict[str, int] = {}
+            for key_node, value_node in node.value:
+                if not isinstance(key_node, ScalarNode):
+                    self.problem(key_node, path, "a key must be a plain word, not a list or a mapping")
+                    continue
+                key = str(key_node.value)
+                if str(key_node.tag) == f"{_CORE}merge" or key == "<<" and key_node.style is None:
+                    self.problem(key_node, path, "merge keys ('<<') are not supported in route files",
+                                 "write the keys out in full")
+                    continue
+                if str(key_node.tag) not in _SCALAR_TAGS and str(key_node.tag) != f"{_CORE}merge":
+                    self.problem(key_node, path, f"the YAML tag '{_tag(key_node)}' is not allowed in a route file",
+                                 "write the key without a tag")
+                    continue
+                if key in first_line:
+                    self.problem(key_node, path + (key,), f"duplicate key '{key}'",
+                                 f"it is already given on line {first_line[key]}; keep one of them")
+                    continue
+                first_line[key] = _mark(key_node)[0]
+                self.pos.keys.setdefault(path + (key,), _mark(key_node))
+                if isinstance(value_node, ScalarNode) and value_node.value == "" and not value_node.style:
+                    self.pos.values.setdefault(path + (key,), _mark(key_node))  # 'key:' with nothing after
+                out[key] = self.build(value_node, path + (key,), depth + 1)
+            return out
+        self.problem(node, path, "unexpected YAML node")  # pragma: no cover - no other kinds
+        return None
+
+
+class _TooLarge(Exception):
+    pass
+
+
+def _reader_position(text: str, position: int) -> tuple[int, int]:
+    before = text[:position]
+    line = before.count("\n") + 1
+    column = position - (before.rfind("\n") + 1) + 1
+    return line, column
+
+
+def read_yaml(text: str, file: str) -> tuple[Any, Positions, list[Problem]]:
+    """Compose ``text`` as one YAML 1.2 document and turn it into plain data.
+
+    Parameters
+    ----------
+    text : str
+        The document.
+    file : str
+        File name for messages.
+
+    Returns
+    -------
+    data : object
+        Plain data; ``None`` for an empty document or when the YAML is malformed.
+    positions : Positions
+        Line and column of every value and key.
+    problems : list of Problem
+        Syntax errors, duplicate keys, disallowed tags; empty when all is well.
+    """
+    yaml = YAML(typ="safe", pure=True)
+    yaml.version = (1, 2)
+    try:
+        node = yaml.compose(text)
+    except MarkedYAMLError as exc:
+        mark = exc.problem_mark or exc.context_mark
+        line, column = (mark.line + 1, mark.column + 1) if mark else (None, None)
+        what = " ".join(p for p in (exc.context, exc.problem) if p) or "malformed YAML"
+        return None, Positions(file), [Problem("error", f"this is not valid YAML: {what}",
+                                               Location(file, line, column))]
+    except YAMLError as exc:
+        position = getattr(exc, "position", None)
+        line, column = _reader_position(text, position) if isinstance(position, int) else (None, None)
+        char = getattr(exc, "character", None)
+        what = f"the character {char!r} is not allowed in YAML" if char is not None else str(exc)
+        return None, Positions(file), [Problem("error", f"this is not valid YAML: {what}",
+                                               Location(file, line, column))]
+    except RecursionError:
+        return None, Positions(file), [Problem("error", "the document is nested too deeply",
+                                               Location(file))]
+    if node is None:
+        return None, Positions(file), []
+    builder = _Builder(yaml, file)
+    try:
+        data = builder.build(node, ())
+    except _TooLarge:
+        return None, builder.pos, [Problem(
+            "error", f"the document expands to more than {MAX_NODES} values (anchors and aliases "
+            "included); a route file is far smaller", Location(file))]
+    return data, builder.pos, builder.problems

@@ -1,0 +1,42 @@
+"""Shared test helpers: write a route file, run the command line in-process.
+
+Use them from any test module::
+
+    from conftest import GOOD_ROUTE, run_cli, write_route
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import pytest
+
+#: A valid route (four steps, every charge basis, solutions, vessels); the base of the
+#: bad-route tests, which change one thing in it at a time.
+GOOD_ROUTE = Path(__file__).parent / "bad_routes" / "good.yaml"
+
+
+def write_route(tmp_path: Path, text: str, name: str = "route.yaml") -> Path:
+    """Write ``text`` as a route file in ``tmp_path`` and return its path."""
+    path = Path(tmp_path) / name
+    path.write_text(text, encoding="utf-8")
+    return path
+
+
+def run_cli(*args: str):
+    """Run ``routeplan ARGS...`` in-process; return click's result.
+
+    ``result.exit_code``, ``result.stdout``, ``result.stderr`` and ``result.output``
+    (both streams) are set.  Exceptions the command line does not handle propagate.
+    """
+    from click.testing import CliRunner
+
+    from routeplan.cli import cli
+
+    return CliRunner().invoke(cli, [str(a) for a in args], catch_exceptions=False)
+
+
+@pytest.fixture
+def good_text() -> str:
+    """The text of :data:`GOOD_ROUTE`."""
+    return GOOD_ROUTE.read_text(encoding="utf-8")
