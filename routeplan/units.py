@@ -21,7 +21,7 @@ from routeplan.errors import Location, QuantityError
 if TYPE_CHECKING:  # pragma: no cover
     import pint
 
-__all__ = ["registry", "Q", "DIMENSIONS", "parse_quantity", "parse_fraction", "dimension_name"]
+__all__ = ["registry", "Q", "unit", "DIMENSIONS", "parse_quantity", "parse_fraction", "dimension_name"]
 
 #: Named dimensions a route file may ask for: name -> (pint dimensionality, example).
 DIMENSIONS: dict[str, tuple[str, str]] = {
@@ -54,7 +54,7 @@ def registry() -> "pint.UnitRegistry":
     return ureg
 
 
-def Q(value: Any, unit: str) -> "pint.Quantity":
+def Q(value: Any, unit: "str | pint.Unit") -> "pint.Quantity":
     """Build a quantity from a value and a unit name.
 
     Examples
@@ -62,7 +62,17 @@ def Q(value: Any, unit: str) -> "pint.Quantity":
     >>> print(Q(18.015, "g/mol").to("kg/mol").magnitude)
     0.018015
     """
-    return registry().Quantity(value, unit)
+    return registry().Quantity(value, unit_(unit) if isinstance(unit, str) else unit)
+
+
+@functools.lru_cache(maxsize=256)
+def unit(name: str) -> "pint.Unit":
+    """The pint unit called ``name``, parsed once and cached.
+
+    Converting with a unit object (``q.to(unit("kg"))``) skips pint's string parsing,
+    which is most of the cost of a conversion in the planner's loops.
+    """
+    return registry().Unit(name)
 
 
 def dimension_name(quantity: "pint.Quantity") -> str:
@@ -217,3 +227,6 @@ def parse_fraction(value: Any, *, where: Location | None = None, allow_zero: boo
     if frac == 0 and not allow_zero:
         raise QuantityError(f"{value!r} is zero; expected a percent above 0", location=where)
     return frac
+
+
+unit_ = unit  # Q's parameter is called ``unit``; this name reaches the function

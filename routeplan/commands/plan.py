@@ -1,0 +1,78 @@
+"""``routeplan plan``: plan a campaign from a route file and write it out."""
+
+from __future__ import annotations
+
+import click
+
+from routeplan.commands.common import caution_line, echo_err, echo_warnings
+
+
+@click.command("plan")
+@click.argument("route", type=click.Path(dir_okay=False, path_type=str))
+@click.option("--target", "target", metavar="MASS",
+              help='Mass to deliver, with its unit, e.g. "40 kg" or "90 lb" (default: the route file\'s target.amount).')
+@click.option("--json", "json_out", metavar="FILE",
+              help="Write the plan as JSON to FILE ('-' for standard output).")
+@click.option("--xlsx", "xlsx_out", metavar="FILE",
+              help="Write charge sheets (a workbook with live formulas) to FILE.")
+@click.option("--csv", "csv_dir", metavar="DIR",
+              help="Write the plan's tables as CSV files into folder DIR (made if missing).")
+@click.option("--stock", "stock_file", metavar="FILE",
+              help="Stock on hand (YAML, CSV or xlsx: material, amount, unit): say what it allows and what to buy.")
+@click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
+@click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
+def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
+             csv_dir: str | None, stock_file: str | None, strict: bool, quiet: bool) -> None:
+    """Plan every charge of every step of ROUTE for the target mass.
+
+    Prints one table per step in execution order (mol, kg, L), the raw materials to
+    charge over the whole campaign, and the overall yield.
+    """
+    from routeplan.errors import Location, RouteError
+    from routeplan.plan.walk import plan_route
+    from routeplan.route.load import load_route
+    from routeplan.units import parse_quantity
+
+    amount = None
+    if target is not None:
+        amount = parse_quantity(target, "mass", where=Location(key="--target"))
+    r = load_route(route)
+    plan = plan_route(r, amount, stock=stock_file)
+    if strict and plan.warnings:
+        raise RouteError([p.__class__("error", p.message, p.location, p.step, p.hint) for p in plan.warnings],
+                         file=route)
+    echo_warnings(plan.warnings)
+    if json_out is not None:
+        from routeplan.export.json import plan_to_json
+
+        text = plan_to_json(plan)
+        if json_out == "-":
+            click.echo(text, nl=False)
+        else:
+            from routeplan.export.atomic import write_text_atomic
+
+            write_text_atomic(json_out, text)
+            echo_err(f"wrote {json_out}")
+    if xlsx_out is not None:
+        from routeplan.export.workbook import write_workbook
+
+        write_workbook(plan, xlsx_out)
+        echo_err(f"wrote {xlsx_out}")
+    if csv_dir is not None:
+        from routeplan.export.csv import write_csv
+
+        for path in write_csv(plan, csv_dir):
+            echo_err(f"wrote {path}")
+    if json_out == "-":
+        echo_err(caution_line())
+    elif not quiet:
+        from routeplan.export.terminal import print_plan
+
+        print_plan(plan)
+    else:
+        echo_err(caution_line())
+
+
+def register(cli: click.Group) -> None:
+    """Add ``plan`` to the command line."""
+    cli.add_command(plan_cmd)

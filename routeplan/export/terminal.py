@@ -1,0 +1,140 @@
+"""The plan on the terminal: one table per step, raw-material totals, yield, caution.
+
+Reads only the Plan (through :mod:`routeplan.export.tables`); rich is imported here,
+and this module is imported only when printing.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from rich import box
+from rich.console import Console
+from rich.markup import escape
+from rich.table import Table
+
+from routeplan.export.tables import column_unit, raw_material_rows, step_charge_rows
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.plan.model import Plan
+
+__all__ = ["print_plan", "fmt"]
+
+
+def fmt(value: float | None, digits: int = 4) -> str:
+    """A number to ``digits`` significant figures, without exponent for everyday sizes."""
+    if value is None:
+        return "–"
+    if value == 0:
+        return "0"
+    if 1e-3 <= abs(value) < 1e6:
+        text = f"{value:.{digits}g}"
+        if "e" in text:  # e.g. 12345 at 4 digits
+            text = f"{value:.0f}"
+        return text
+    return f"{value:.{digits - 1}e}"
+
+
+def _step_table(sp, route) -> Table:
+    rows = step_charge_rows(sp)
+    made_in = {s.product: s.id for s in route.steps}
+    mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
+    vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
+    nu, nf = column_unit([r["mol"] for r in rows], "amount")
+    per_batch = sp.batches > 1
+    title = f"{sp.id} · {sp.name}" if sp.name and sp.name != sp.id else sp.id
+    caption = f"{sp.equation}   yield {sp.yield_:.0%}"
+    if not sp.isolated:
+        caption += "   telescoped (product goes on in solution)"
+    t = Table(title=escape(title + "   " + caption), box=box.SIMPLE_HEAD, title_justify="left",
+              pad_edge=False, title_style="bold")
+    t.add_column("#", justify="right")
+    t.add_column("material")
+    t.add_column("role")
+    t.add_column("equiv", justify="right")
+    t.add_column(escape(f"n [{nu}]"), justify="right")
+    t.add_column(escape(f"m [{mu}]"), justify="right")
+    t.add_column(escape(f"V [{vu}]"), justify="right")
+    if per_batch:
+        t.add_column(escape(f"m/batch [{mu}]"), justify="right")
+        t.add_column(escape(f"V/batch [{vu}]"), justify="right")
+    for r in rows:
+        name = r["material"] + (f" ({made_in[r['material']]})" if r["intermediate"] else "")
+        cells = [
+            str(r["order"]), name, r["role"], fmt(r["equiv"], 3),
+            fmt(None if r["mol"] is None else r["mol"] / nf),
+            fmt(r["mass_kg"] / mf),
+            fmt(None if r["volume_L"] is None else r["volume_L"] / vf),
+        ]
+        if per_batch:
+            cells += [fmt(r["batch_mass_kg"] / mf),
+                      fmt(None if r["batch_volume_L"] is None else r["batch_volume_L"] / vf)]
+        t.add_row(*[escape(x) for x in cells])
+    return t
+
+
+def _step_footer(sp) -> str:
+    pm = sp.product_mass.m_as("kg")
+    pu, pf = column_unit([pm], "mass")
+    text = f"  makes {fmt(sp.product_mol.m_as('mol'))} mol {sp.product} ({fmt(pm / pf)} {pu}"
+    text += " as isolated)" if sp.isolated else " in solution)"
+    b = sp.batch
+    if b is not None and b.vessel is not None:
+        text += (f"\n  vessel {b.vessel}: {b.batches} batch{'es' if b.batches != 1 else ''} of "
+                 f"{fmt(b.batch_volume.m_as('L'))} L, fill {b.fill_fraction:.0%} of nominal volume")
+    if b is not None:
+        for note in b.notes:
+            text += f"\n  note: {note}"
+    return text
+
+
+def _raw_table(plan) -> Table:
+    rows = raw_material_rows(plan)
+    mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
+    vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
+    cur = plan.route.currency
+    t = Table(title="Raw materials to charge, whole campaign", box=box.SIMPLE_HEAD, title_justify="left")
+    t.add_column("material")
+    t.add_column(escape(f"mass [{mu}]"), justify="right")
+    t.add_column(escape(f"volume [{vu}]"), justify="right")
+    t.add_column(escape(f"cost [{cur}]") if cur else "cost", justify="right")
+    t.add_column("used in")
+    for r in rows:
+        t.add_row(escape(r["material"]), fmt(r["mass_kg"] / mf),
+                  fmt(None if r["volume_L"] is None else r["volume_L"] / vf),
+                  f"{r['cost']:,.2f}" if r["cost"] is not None else "–", escape(r["steps"]))
+    return t
+
+
+def print_plan(plan: "Plan", *, console: Console | None = None) -> None:
+    """Print the plan to the terminal (standard output by default)."""
+    from routeplan import CAUTION
+
+    con = console or Console()
+    if console is None and not con.is_terminal:
+        con = Console(width=120)  # piped to a file: no need to squeeze into 80 columns
+    tm = plan.target_mass.m_as("kg")
+    con.print("n: amount of the compound, m: mass and V: volume as charged; "
+              "(S1) after a material: made in step S1")
+    con.print(f"[bold]{escape(plan.route.name)}[/bold]: {fmt(tm)} kg of {escape(plan.target_material)} "
+              f"({fmt(plan.target_mol.m_as('mol'))} mol), {len(plan.steps)} steps")
+    for sp in plan.steps:
+        con.print(_step_table(sp, plan.route))
+        con.print(escape(_step_footer(sp)))
+        con.print()
+    con.print(_raw_table(plan))
+    oy = plan.overall_yield
+    con.print(escape(f"Overall yield along the longest linear sequence "
+              f"({' -> '.join(oy.longest_linear_sequence)}): {oy.yield_:.1%}"))
+    for key, y in oy.by_raw_material.items():
+        con.print(escape(f"  from {key}: {y:.1%}"))
+    if plan.metrics is not None:
+        for line in plan.metrics.summary_lines(plan):
+            con.print(line)
+    if plan.stock is not None:
+        from routeplan.export.stock_text import stock_lines
+
+        for line in stock_lines(plan):
+            con.print(escape(line))
+    con.print()
+    con.print(f"[bold]CAUTION[/bold]: {CAUTION}")

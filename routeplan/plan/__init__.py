@@ -1,0 +1,1 @@
+"""Planning: the backward walk, campaign sizing (vessels, batches, stock) and metrics."""

@@ -1,0 +1,116 @@
+"""Route totals: raw materials to buy and the overall yield."""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING
+
+from routeplan.units import unit
+
+if TYPE_CHECKING:  # pragma: no cover
+    import pint
+
+    from routeplan.plan.model import OverallYield, RawMaterialTotal, StepPlan
+    from routeplan.route.model import Route
+
+__all__ = ["raw_material_totals", "overall_yield", "stoichiometric_factor"]
+
+
+def raw_material_totals(route: "Route", steps: "tuple[StepPlan, ...]") -> "tuple[RawMaterialTotal, ...]":
+    """Every bought material summed over the whole route, in order of first use.
+
+    Mass [kg] and volume [L] are as supplied; cost is ``mass * price`` in the route's
+    currency where both a price and a currency are given.
+    """
+    from routeplan.plan.model import RawMaterialTotal
+
+    acc: dict[str, dict] = {}
+    for sp in steps:
+        for c in sp.charges:
+            if c.intermediate:
+                continue
+            a = acc.setdefault(c.material, {"mass": None, "volume": None, "mol": None, "steps": []})
+            a["mass"] = c.mass if a["mass"] is None else a["mass"] + c.mass
+            if c.volume is not None:
+                a["volume"] = c.volume if a["volume"] is None else a["volume"] + c.volume
+            if c.mol is not None:
+                a["mol"] = c.mol if a["mol"] is None else a["mol"] + c.mol
+            if sp.id not in a["steps"]:
+                a["steps"].append(sp.id)
+    out = []
+    for key, a in acc.items():
+        mat = route.materials[key]
+        cost = None
+        if mat.price is not None and route.currency:
+            cost = a["mass"].m_as(unit("kg")) * mat.price
+        out.append(RawMaterialTotal(
+            material=key, name=mat.name, mass=a["mass"], volume=a["volume"], mol=a["mol"],
+            cost=cost, steps=tuple(a["steps"]),
+        ))
+    return tuple(out)
+
+
+def stoichiometric_factor(route: "Route", step_id: str, material: str, _memo: dict | None = None) -> float:
+    """Theoretical moles of target per mole of ``material`` charged in ``step_id`` [-].
+
+    The product over the steps from ``step_id`` to the target of
+    ``nu_product / nu_entering``, where ``nu_entering`` is the coefficient of the
+    material that enters each step on the path.  Where an intermediate feeds several
+    steps the most favourable path is taken (the largest factor).  Each step's factor
+    from its product onward is computed once (``_memo``), so the cost is linear in the
+    number of steps.
+    """
+    memo = {} if _memo is None else _memo
+    step = route.step(step_id)
+    factor = step.equation.coefficient(step.product) / step.equation.coefficient(material)
+    return factor * _downstream_factor(route, step.product, memo)
+
+
+def _downstream_factor(route: "Route", product: str, memo: dict) -> float:
+    """Theoretical moles of target per mole of ``product`` [-] (1 for the target)."""
+    if product == route.target.material:
+        return 1.0
+    if product in memo:
+        return memo[product]
+    memo[product] = 0.0  # guards against a cycle, which the loader forbids anyway
+    best = 0.0
+    for sid in route.consumers.get(product, ()):
+        best = max(best, stoichiometric_factor(route, sid, product, memo))
+    memo[product] = best
+    return best
+
+
+def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: "pint.Quantity") -> "OverallYield":
+    """Overall yield along the longest linear sequence, and from each raw reactant.
+
+    The yield along the longest linear sequence is the product of its expected step
+    yields [-].  The yield from a bought reactant ``R`` is
+    ``n_target * sum(1 / f_i) / sum(n_i)`` [-], with ``n_i`` the moles of ``R`` charged
+    in each step that uses it and ``f_i`` the theoretical moles of target per mole of
+    ``R`` there (:func:`stoichiometric_factor`); for one use, ``(n_target / n_R) / f_R``.
+    An excess of ``R`` lowers it.
+    """
+    from routeplan.plan.model import OverallYield
+    from routeplan.route.graph import longest_linear_sequence
+
+    lls = tuple(longest_linear_sequence(route))
+    y = 1.0
+    by_step = {sp.id: sp for sp in steps}
+    for sid in lls:
+        y *= by_step[sid].yield_
+    memo: dict = {}
+    sum_n: dict[str, float] = {}
+    sum_inv_f: dict[str, float] = {}
+    n_t = n_target.m_as(unit("mol"))
+    for sp in steps:
+        step = route.step(sp.id)
+        reactants = {t.key for t in step.equation.reactants}
+        for c in sp.charges:
+            if c.intermediate or c.material not in reactants or c.mol is None:
+                continue
+            f = stoichiometric_factor(route, sp.id, c.material, memo)
+            if f > 0:
+                sum_n[c.material] = sum_n.get(c.material, 0.0) + c.mol.m_as(unit("mol"))
+                sum_inv_f[c.material] = sum_inv_f.get(c.material, 0.0) + 1.0 / f
+    # used in several steps, the theoretical need is n_t * sum(1/f_i) mol
+    per_raw = {k: n_t * sum_inv_f[k] / n for k, n in sum_n.items() if n > 0}
+    return OverallYield(longest_linear_sequence=lls, yield_=y, by_raw_material=per_raw)
