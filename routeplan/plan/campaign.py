@@ -1,0 +1,128 @@
+"""Campaign sizing: the volume of each step, batches in its vessel, and the stock.
+
+Volume of a step
+    The largest volume in the vessel is taken as the sum of the volumes of every charge
+    that has one (solvents, liquids with a density, solutions, and solids with a
+    density), plus, for a step that charges the product of a telescoped step, the whole
+    volume carried in from that step (in proportion to the share of that product the
+    step takes).  Work-up charges (quench water, washes) count too: they are added to
+    the same vessel, and counting them all is the safe side when the aqueous layer is
+    not drained between additions.  A charge without a known volume (a solid without a
+    density, an isolated intermediate without a density) is left out, with a note.
+
+Batches
+    ``batches = ceil(step volume / (vessel volume * max_fill))`` for a step with a
+    vessel; one batch otherwise.  Each batch charges the totals divided by the number
+    of batches.  A batch filling less than 20 % of the nominal volume is too little to
+    stir (common practice, no source); a batch of more than 10 times the largest batch
+    run so far (``demonstrated_batch``) is a large scale-up jump (common practice, no
+    source).  Both are warnings.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+from typing import TYPE_CHECKING
+
+from routeplan.units import unit
+from routeplan.errors import Problem
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.plan.model import StepPlan
+    from routeplan.route.model import Route
+
+__all__ = ["MIN_FILL", "MAX_SCALE_UP", "step_volumes", "size_batches", "stock_plan"]
+
+#: Smallest batch volume over nominal vessel volume that can still be stirred [-]
+#: (common practice, no source).
+MIN_FILL = 0.20
+
+#: Largest ratio of a planned batch to the largest batch run so far [-]
+#: (common practice, no source).
+MAX_SCALE_UP = 10.0
+
+
+def step_volumes(route: "Route", steps: "tuple[StepPlan, ...]"):
+    """Volume in the vessel of each step over the whole campaign [L], and notes.
+
+    Returns
+    -------
+    dict
+        Step id -> (volume [L] as a pint Quantity, tuple of notes).
+    """
+    from routeplan.units import Q
+
+    by_id = {sp.id: sp for sp in steps}
+    maker = {sp.product: sp.id for sp in steps}
+    out: dict[str, tuple] = {}
+    for sp in steps:  # execution order: a telescoped step is sized before its user
+        total = Q(0.0, "L")
+        notes: list[str] = []
+        for c in sp.charges:
+            src = maker.get(c.material) if c.intermediate else None
+            if src is not None and not by_id[src].isolated:
+                carried, _ = out[src]
+                made = by_id[src].product_mol.m_as(unit("mol"))
+                share = (c.mol.m_as(unit("mol")) / made) if made > 0 and c.mol is not None else 1.0
+                total = total + carried * share
+                notes.append(f"{c.material} comes in solution from {src}: "
+                             f"{carried.m_as(unit('L')) * share:.4g} L carried in")
+            elif c.volume is not None:
+                total = total + c.volume
+            else:
+                notes.append(f"{c.material} has no density, so its volume is left out")
+        out[sp.id] = (total.to(unit("L")), tuple(notes))
+    return out
+
+
+def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
+    """Give every step its batches; return the new steps and the warnings.
+
+    Returns
+    -------
+    tuple
+        (tuple of StepPlan with ``batch`` set, list of Problem).
+    """
+    from routeplan.plan.model import BatchPlan
+
+    volumes = step_volumes(route, steps)
+    warnings: list[Problem] = []
+    out = []
+    for sp in steps:
+        volume, notes = volumes[sp.id]
+        step = route.step(sp.id)
+        vessel = route.equipment.get(sp.vessel) if sp.vessel else None
+        if vessel is None:
+            batches, fill = 1, None
+        else:
+            usable = (vessel.volume * vessel.max_fill).to(unit("L"))
+            batches = max(1, math.ceil(volume.m_as(unit("L")) / usable.m_as(unit("L")) - 1e-9))
+            fill = volume.m_as(unit("L")) / batches / vessel.volume.m_as(unit("L"))
+            if 0 < fill < MIN_FILL:
+                warnings.append(Problem(
+                    "warning",
+                    f"step {sp.id}: each batch fills {fill:.0%} of vessel {vessel.key} "
+                    f"({vessel.volume.m_as(unit('L')):g} L), below {MIN_FILL:.0%}: too little to stir",
+                    location=step.location, step=sp.id,
+                    hint="use a smaller vessel or a larger target"))
+        if step.demonstrated_batch is not None:
+            per_batch = sp.limiting_mass.m_as(unit("kg")) / batches
+            shown = step.demonstrated_batch.m_as(unit("kg"))
+            if shown > 0 and per_batch > MAX_SCALE_UP * shown:
+                warnings.append(Problem(
+                    "warning",
+                    f"step {sp.id}: a batch charges {per_batch:.4g} kg of {sp.limiting}, "
+                    f"{per_batch / shown:.0f} times the largest batch run so far ({shown:.4g} kg)",
+                    location=step.location, step=sp.id,
+                    hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
+        bp = BatchPlan(batches=batches, step_volume=volume, batch_volume=volume / batches,
+                       fill_fraction=fill, vessel=sp.vessel, notes=notes)
+        out.append(replace(sp, batch=bp))
+    return tuple(out), warnings
+
+
+def stock_plan(plan, stock):  # replaced by the stock work of issue 6
+    from routeplan.plan.stock import stock_plan as _stock_plan
+
+    return _stock_plan(plan, stock)

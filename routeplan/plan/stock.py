@@ -1,0 +1,217 @@
+"""Stock on hand: read a stock list, and say what it allows and what to buy.
+
+A stock list names raw materials and the amount on the shelf, as a YAML mapping
+(``aminophenol: 30 kg``), or as a CSV or xlsx table with the columns ``material``,
+``amount`` and ``unit``.  An amount is a mass, or a volume for a material with a
+density (or a solution).
+
+Every raw-material requirement of a plan is proportional to the target mass (the
+backward walk is linear), so the largest target the stock allows is
+``T * min(on_hand / need)`` over the raw materials in stock, with ``T`` the requested
+target [kg].  Raw materials that the list does not name are not in stock: they are
+bought in full and are listed as such, never taken as unlimited in silence.
+"""
+
+from __future__ import annotations
+
+import csv
+import difflib
+import io
+from pathlib import Path
+from typing import TYPE_CHECKING, Any, Mapping
+
+from routeplan.units import unit
+from routeplan.errors import Location, QuantityError, StockError
+
+if TYPE_CHECKING:  # pragma: no cover
+    import pint
+
+    from routeplan.plan.model import Plan, StockPlan
+    from routeplan.route.model import Route
+
+__all__ = ["read_stock", "stock_plan"]
+
+_COLUMNS = ("material", "amount", "unit")
+
+
+def _suggest(word: str, options) -> str:
+    near = difflib.get_close_matches(word, list(options), n=1, cutoff=0.6)
+    return f"did you mean '{near[0]}'?" if near else "use a material key of the route file"
+
+
+def _mass(route: "Route", key: str, text: str, where: Location) -> "pint.Quantity":
+    """Turn one stock amount into a mass [kg], checking the material."""
+    from routeplan.units import parse_quantity
+
+    if key not in route.materials:
+        raise StockError(f"unknown material '{key}'", location=where,
+                         hint=_suggest(key, route.materials))
+    if route.is_intermediate(key):
+        raise StockError(f"'{key}' is made in the route (step {route.producer[key]}); "
+                         "a stock list holds raw materials only", location=where)
+    mat = route.materials[key]
+    try:
+        q = parse_quantity(text, "mass", where=where)
+    except QuantityError as exc:
+        try:
+            q = parse_quantity(text, "volume", where=where)
+        except QuantityError:
+            raise StockError(exc.message, location=where, hint=exc.hint or "give a mass such as '30 kg' "
+                             "(or a volume such as '20 L' for a material with a density)") from None
+        density = mat.solution.density if mat.solution is not None else mat.density
+        if density is None:
+            raise StockError(f"'{text}' is a volume, but material '{key}' has no density",
+                             location=where, hint="give the stock as a mass, or a density in the route file")
+        q = q * density
+    q = q.to(unit("kg"))
+    if q.magnitude < 0:
+        raise StockError(f"amount '{text}' of '{key}' is negative", location=where,
+                         hint="give the amount on the shelf, 0 or more")
+    return q
+
+
+def _read_yaml(route, path: Path, data: bytes) -> dict[str, Any]:
+    from ruamel.yaml import YAML
+    from ruamel.yaml.error import YAMLError
+
+    yaml = YAML(typ="rt", pure=True)
+    yaml.allow_duplicate_keys = False
+    try:
+        doc = yaml.load(data.decode("utf-8"))
+    except UnicodeDecodeError:
+        raise StockError("the stock file is not UTF-8 text", location=Location(str(path))) from None
+    except YAMLError as exc:
+        mark = getattr(exc, "problem_mark", None)
+        loc = Location(str(path), mark.line + 1, mark.column + 1) if mark else Location(str(path))
+        raise StockError(f"not valid YAML: {getattr(exc, 'problem', exc)}", location=loc) from None
+    if not isinstance(doc, dict) or not doc:
+        raise StockError("a YAML stock list is a mapping of material to amount, e.g. 'toluene: 200 kg'",
+                         location=Location(str(path)))
+    out = {}
+    for key, value in doc.items():
+        line, col = doc.lc.key(key)
+        where = Location(str(path), line + 1, col + 1, str(key))
+        if not isinstance(value, str):
+            raise StockError(f"amount {value!r} has no unit", location=where, hint="write e.g. '30 kg'")
+        out[str(key)] = _mass(route, str(key), value, where)
+    return out
+
+
+def _table(route, path: Path, rows: list[list[Any]], cell) -> dict[str, Any]:
+    """Read header + rows; ``cell(row, col)`` names a cell for messages."""
+    if not rows:
+        raise StockError("the stock table is empty; it needs the columns material, amount, unit",
+                         location=Location(str(path)))
+    header = [str(h).strip().lower() if h is not None else "" for h in rows[0]]
+    missing = [c for c in _COLUMNS if c not in header]
+    if missing:
+        raise StockError(f"missing column{'s' if len(missing) > 1 else ''} {', '.join(missing)}; "
+                         f"found {', '.join(h for h in header if h) or 'none'}",
+                         location=Location(str(path), 1), hint="the first row must name: material, amount, unit")
+    idx = {c: header.index(c) for c in _COLUMNS}
+    out: dict[str, Any] = {}
+    for r, row in enumerate(rows[1:], start=2):
+        if all(v is None or str(v).strip() == "" for v in row):
+            continue
+        get = (lambda c: row[idx[c]] if idx[c] < len(row) else None)
+        key = str(get("material") or "").strip()
+        amount, unit = get("amount"), str(get("unit") or "").strip()
+        where = Location(str(path), r, None, cell(r, idx["material"]))
+        if not key:
+            raise StockError("row has no material", location=where)
+        if amount is None or str(amount).strip() == "":
+            raise StockError(f"row of '{key}' has no amount", location=where)
+        if not unit:
+            raise StockError(f"row of '{key}' has no unit", location=where, hint="e.g. kg, lb or L")
+        if key in out:
+            raise StockError(f"'{key}' is listed twice", location=where, hint="give one row per material")
+        text = f"{amount} {unit}" if not isinstance(amount, str) else f"{amount.strip()} {unit}"
+        out[key] = _mass(route, key, text, where)
+    return out
+
+
+def read_stock(route: "Route", path: str | Path) -> dict[str, "pint.Quantity"]:
+    """Read a stock list for ``route``: material key -> mass on hand [kg].
+
+    Raises
+    ------
+    StockError
+        Unreadable file, unknown or made-in-route material, a wrong unit, a negative
+        amount, a missing column, a material listed twice.
+    """
+    path = Path(path)
+    try:
+        data = path.read_bytes()
+    except OSError as exc:
+        raise StockError(f"cannot read the stock file: {exc.strerror}", location=Location(str(path))) from None
+    suffix = path.suffix.lower()
+    if suffix in (".yaml", ".yml"):
+        return _read_yaml(route, path, data)
+    if suffix == ".csv":
+        try:
+            text = data.decode("utf-8-sig")
+        except UnicodeDecodeError:
+            raise StockError("the stock file is not UTF-8 text", location=Location(str(path))) from None
+        rows = list(csv.reader(io.StringIO(text)))
+        return _table(route, path, rows, lambda r, c: f"row {r}")
+    if suffix in (".xlsx", ".xlsm"):
+        import openpyxl
+        from openpyxl.utils import get_column_letter
+
+        try:
+            wb = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=True)
+        except Exception as exc:  # openpyxl raises several kinds for a bad file
+            raise StockError(f"not a readable xlsx workbook ({type(exc).__name__})",
+                             location=Location(str(path))) from None
+        ws = wb.worksheets[0]
+        rows = [list(r) for r in ws.iter_rows(values_only=True)]
+        wb.close()
+        return _table(route, path, rows, lambda r, c: f"{ws.title}!{get_column_letter(c + 1)}{r}")
+    raise StockError(f"unknown stock file type '{path.suffix}'", location=Location(str(path)),
+                     hint="use .yaml, .csv or .xlsx")
+
+
+def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]") -> "StockPlan":
+    """Compare a plan's raw materials with the stock on hand.
+
+    Parameters
+    ----------
+    plan : Plan
+        A plan for the requested target.
+    stock : str, Path or Mapping[str, pint.Quantity]
+        A stock file, or material key -> mass on hand [kg].
+
+    Returns
+    -------
+    StockPlan
+        ``max_target`` [kg] (over the raw materials in stock; None if none of them is
+        needed), ``limited_by``, ``to_buy`` (key, mass [kg]) for the requested target
+        (materials not in stock in full), and ``on_hand``.
+    """
+    from routeplan.plan.model import StockPlan
+
+    source = None
+    if isinstance(stock, (str, Path)):
+        source = str(stock)
+        on_hand = read_stock(plan.route, stock)
+    else:
+        on_hand = {k: v.to(unit("kg")) for k, v in stock.items()}
+    target = plan.target_mass
+    best_ratio, limited_by = None, None
+    to_buy = []
+    for r in plan.raw_materials:
+        need = r.mass
+        have = on_hand.get(r.material)
+        if have is None:
+            to_buy.append((r.material, need))
+            continue
+        if need.magnitude > 0:
+            ratio = (have / need).m_as("")
+            if best_ratio is None or ratio < best_ratio:
+                best_ratio, limited_by = ratio, r.material
+        short = need - have
+        if short.magnitude > 0:
+            to_buy.append((r.material, short.to(unit("kg"))))
+    max_target = None if best_ratio is None else (target * best_ratio).to(unit("kg"))
+    return StockPlan(max_target=max_target, limited_by=limited_by, to_buy=tuple(to_buy),
+                     on_hand=on_hand, source=source)
