@@ -1,0 +1,77 @@
+"""``routeplan compare``: routes to one target, planned for one target mass, side by side."""
+
+from __future__ import annotations
+
+import click
+
+from routeplan.commands.common import caution_line, echo_err, echo_warnings
+
+
+@click.command("compare")
+@click.argument("routes", nargs=-1, required=True, type=click.Path(dir_okay=False, path_type=str))
+@click.option("--target", "target", metavar="MASS",
+              help='Mass to deliver from every route, with its unit, e.g. "40 kg" (default: the '
+                   "first route's target.amount, used for all routes).")
+@click.option("--json", "json_out", metavar="FILE",
+              help="Write the comparison as JSON to FILE ('-' for standard output).")
+@click.option("--xlsx", "xlsx_out", metavar="FILE",
+              help="Write the comparison as a workbook to FILE.")
+def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | None,
+                xlsx_out: str | None) -> None:
+    """Compare two or more ROUTES to the same target, side by side.
+
+    Every route is planned for the same mass of target: --target if given, else the
+    target.amount of the FIRST route (a note says so when the other files ask for
+    another amount); each route keeps its own overage.  The routes must make the same
+    target: the same material key, formula and molar mass, or it is an error.
+
+    Rows: steps, longest linear sequence, overall yield, process mass intensity,
+    complete and simple E-factor, raw-material cost per kg, batches and the largest
+    single raw material.  The best value of each row is marked (lower is better,
+    except overall yield), and one sentence sums up the trade-off.
+    """
+    if len(routes) < 2:
+        raise click.UsageError("give at least two route files to compare")
+    from routeplan.errors import Location
+    from routeplan.plan.compare import compare_plans, plan_for_comparison
+    from routeplan.route.load import load_route
+    from routeplan.units import parse_quantity
+
+    amount = None
+    if target is not None:
+        amount = parse_quantity(target, "mass", where=Location(key="--target"))
+    loaded = [load_route(path) for path in routes]
+    plans, notes = plan_for_comparison(loaded, amount)
+    cmp = compare_plans(plans, notes)
+    for label, plan in zip(cmp.labels, plans):
+        # a warning without a file in its location would not say which route it is about
+        echo_warnings([p if p.location is not None and p.location.file
+                       else p.__class__(p.severity, f"{label}: {p.message}", p.location, p.step, p.hint)
+                       for p in plan.warnings])
+    if json_out is not None:
+        from routeplan.export.compare_out import comparison_to_json
+
+        text = comparison_to_json(cmp)
+        if json_out == "-":
+            click.echo(text, nl=False)
+        else:
+            from routeplan.export.atomic import write_text_atomic
+
+            write_text_atomic(json_out, text)
+            echo_err(f"wrote {json_out}")
+    if xlsx_out is not None:
+        from routeplan.export.compare_out import write_comparison_xlsx
+
+        write_comparison_xlsx(cmp, xlsx_out)
+        echo_err(f"wrote {xlsx_out}")
+    if json_out == "-":
+        echo_err(caution_line())
+    else:
+        from routeplan.export.compare_out import print_comparison
+
+        print_comparison(cmp)
+
+
+def register(cli: click.Group) -> None:
+    """Add ``compare`` to the command line."""
+    cli.add_command(compare_cmd)

@@ -1,0 +1,249 @@
+"""A route comparison written out: terminal table, JSON and workbook.
+
+Reads a :class:`~routeplan.plan.compare.Comparison` and never recomputes it.  rich and
+xlsxwriter are imported inside the functions that need them.  Every output carries the
+safety caution.
+"""
+
+from __future__ import annotations
+
+import json
+from typing import TYPE_CHECKING, Any
+
+from routeplan.export.tables import display_quantity
+
+if TYPE_CHECKING:  # pragma: no cover
+    from rich.console import Console
+
+    from routeplan.plan.compare import Comparison, CompareRow
+
+__all__ = [
+    "COMPARE_FORMAT",
+    "BEST_MARK",
+    "format_value",
+    "comparison_to_dict",
+    "comparison_to_json",
+    "print_comparison",
+    "write_comparison_xlsx",
+]
+
+#: The ``format`` value of the comparison JSON.
+COMPARE_FORMAT = "routeplan-compare/1"
+
+#: Mark put after the best value of a row on the terminal.
+BEST_MARK = "*"
+
+_SHOWN_UNIT = {"fraction": "%"}
+
+
+def format_value(value: Any, kind: str) -> str:
+    """A value of a comparison row as text.
+
+    Parameters
+    ----------
+    value : float, int or None
+        In the row's unit: a count [-], a fraction [-], a ratio [kg/kg], money
+        [currency/kg] or a mass [kg].
+    kind : str
+        ``"count"``, ``"fraction"``, ``"ratio"``, ``"money"`` or ``"mass"``.
+
+    Examples
+    --------
+    >>> format_value(0.5236, "fraction")
+    '52.4 %'
+    >>> format_value(23.75, "ratio")
+    '23.8'
+    """
+    if value is None:
+        return "–"
+    if kind == "count":
+        return f"{int(value)}"
+    if kind == "fraction":
+        return f"{100 * value:.1f} %"
+    if kind == "money":
+        return f"{value:,.2f}"
+    if kind == "mass":
+        return display_quantity(value, "mass")
+    text = f"{value:.3g}"
+    return f"{value:.0f}" if "e" in text else text
+
+
+def _shown_unit(row: "CompareRow") -> str:
+    return _SHOWN_UNIT.get(row.kind, row.unit)
+
+
+# ------------------------------------------------------------------------ JSON
+
+
+def _row_dict(cmp: "Comparison", row: "CompareRow") -> dict[str, Any]:
+    out: dict[str, Any] = {
+        "key": row.key,
+        "heading": row.heading,
+        "unit": row.unit,
+        "better": row.better,
+        "values": list(row.values),
+        "best": [cmp.labels[i] for i in row.best],
+        "note": row.note,
+    }
+    if row.labels:
+        out["labels"] = list(row.labels)
+    return out
+
+
+def comparison_to_dict(cmp: "Comparison") -> dict[str, Any]:
+    """The comparison as plain JSON values (format ``routeplan-compare/1``).
+
+    ``rows[i].values`` are in route order (``routes``) and in the row's ``unit``;
+    ``rows[i].best`` lists the labels of the routes with the best value.
+    """
+    from routeplan import CAUTION, __version__
+
+    routes = []
+    for label, name, plan in zip(cmp.labels, cmp.names, cmp.plans):
+        src = plan.route.source
+        routes.append({"label": label, "name": name,
+                       "file": None if src is None else src.path,
+                       "sha256": None if src is None else src.sha256})
+    return {
+        "format": COMPARE_FORMAT,
+        "target": {"material": cmp.target_material, "amount_kg": cmp.amount},
+        "routes": routes,
+        "currency": cmp.currency,
+        "rows": [_row_dict(cmp, r) for r in cmp.rows],
+        "tradeoff": cmp.tradeoff,
+        "notes": list(cmp.notes),
+        "metrics": [p.metrics.to_dict() for p in cmp.plans],
+        "caution": CAUTION,
+        "generator": f"routeplan {__version__}",
+    }
+
+
+def comparison_to_json(cmp: "Comparison", *, indent: int = 2) -> str:
+    """The comparison as a JSON text (UTF-8, no NaN)."""
+    return json.dumps(comparison_to_dict(cmp), indent=indent, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+# -------------------------------------------------------------------- terminal
+
+
+def print_comparison(cmp: "Comparison", *, console: "Console | None" = None) -> None:
+    """Print the comparison table, the trade-off sentence, notes and the caution."""
+    from rich import box
+    from rich.console import Console
+    from rich.markup import escape
+    from rich.table import Table
+
+    from routeplan import CAUTION
+
+    con = console or Console()
+    title = (f"Routes to {escape(cmp.target_material)}, each planned for "
+             f"{display_quantity(cmp.amount, 'mass')} (before overage)")
+    t = Table(title=title, box=box.SIMPLE_HEAD, title_justify="left")
+    t.add_column("measure", min_width=22)
+    t.add_column("unit")
+    for label in cmp.labels:
+        t.add_column(escape(label), justify="right")
+    for row in cmp.rows:
+        cells = [escape(row.heading), escape(_shown_unit(row))]
+        for i, v in enumerate(row.values):
+            text = escape(format_value(v, row.kind))
+            if i in row.best:
+                text = f"[bold green]{text} {BEST_MARK}[/bold green]"
+            if row.labels and row.labels[i]:
+                text += f"\n[dim]{escape(row.labels[i])}[/dim]"
+            cells.append(text)
+        t.add_row(*cells)
+    con.print(t)
+    con.print(f"{BEST_MARK} best in its row: lower is better, except overall yield.")
+    for row in cmp.rows:
+        if row.note:
+            con.print(f"  {escape(row.short)}: {escape(row.note)}")
+    for note in cmp.notes:
+        con.print(f"note: {escape(note)}")
+    con.print()
+    con.print(f"[bold]Trade-off[/bold]: {escape(cmp.tradeoff)}")
+    con.print()
+    con.print(f"[bold]CAUTION[/bold]: {escape(CAUTION)}")
+
+
+# -------------------------------------------------------------------- workbook
+
+_NUMBER_FORMATS = {"count": "0", "fraction": "0.0%", "ratio": "0.00", "money": "#,##0.00",
+                   "mass": "#,##0.00"}
+
+
+def write_comparison_xlsx(cmp: "Comparison", path) -> None:
+    """Write the comparison to a workbook at ``path``, atomically.
+
+    One sheet, ``comparison``: a title, the caution, one row per measure (heading,
+    unit, which way is better, one column per route, the best routes), the text that
+    goes with a value on the row below it, then the trade-off sentence and notes.
+    Strings are written as strings (never read as formulas or links); best values are
+    bold on a green fill.
+    """
+    import xlsxwriter
+
+    from routeplan import CAUTION
+    from routeplan.export.atomic import atomic_path
+
+    with atomic_path(path, suffix=".xlsx") as tmp:
+        wb = xlsxwriter.Workbook(str(tmp), {"strings_to_formulas": False, "strings_to_urls": False,
+                                            "strings_to_numbers": False})
+        try:
+            _fill_sheet(wb, cmp, CAUTION)
+        finally:
+            wb.close()
+
+
+def _fill_sheet(wb, cmp: "Comparison", caution: str) -> None:
+    ws = wb.add_worksheet("comparison")
+    bold = wb.add_format({"bold": True})
+    head = wb.add_format({"bold": True, "bottom": 1, "text_wrap": True, "valign": "top"})
+    wrap = wb.add_format({"text_wrap": True, "valign": "top"})
+    dim = wb.add_format({"italic": True, "font_color": "#555555"})
+    plain = {k: wb.add_format({"num_format": f}) for k, f in _NUMBER_FORMATS.items()}
+    best = {k: wb.add_format({"num_format": f, "bold": True, "bg_color": "#D5EDD0"})
+            for k, f in _NUMBER_FORMATS.items()}
+    n = len(cmp.labels)
+    ws.write_string(0, 0, f"Routes to {cmp.target_material}, each planned for {cmp.amount:.6g} kg "
+                          "(before overage)", bold)
+    ws.merge_range(1, 0, 1, 3 + n, "", wrap)
+    ws.write_string(1, 0, "CAUTION: " + caution, wrap)
+    ws.set_row(1, 32)
+    r = 3
+    headings = ["measure", "unit", "better"] + list(cmp.labels) + ["best"]
+    for c, h in enumerate(headings):
+        ws.write_string(r, c, h, head)
+    for row in cmp.rows:
+        r += 1
+        ws.write_string(r, 0, row.heading)
+        ws.write_string(r, 1, _shown_unit(row))
+        ws.write_string(r, 2, row.better or "")
+        for i, v in enumerate(row.values):
+            if v is not None:
+                fmt = (best if i in row.best else plain)[row.kind]
+                ws.write_number(r, 3 + i, float(v), fmt)
+        ws.write_string(r, 3 + n, ", ".join(cmp.labels[i] for i in row.best))
+        if row.labels:
+            r += 1
+            ws.write_string(r, 0, f"{row.heading}: which", dim)
+            for i, text in enumerate(row.labels):
+                if text:
+                    ws.write_string(r, 3 + i, text, dim)
+    r += 2
+    ws.write_string(r, 0, "trade-off", bold)
+    ws.write_string(r, 1, cmp.tradeoff)
+    for row in cmp.rows:
+        if row.note:
+            r += 1
+            ws.write_string(r, 0, row.short)
+            ws.write_string(r, 1, row.note)
+    for note in cmp.notes:
+        r += 1
+        ws.write_string(r, 0, "note")
+        ws.write_string(r, 1, note)
+    ws.set_column(0, 0, 44)
+    ws.set_column(1, 2, 10)
+    ws.set_column(3, 2 + n, 24)
+    ws.set_column(3 + n, 3 + n, 30)
+    ws.freeze_panes(4, 1)

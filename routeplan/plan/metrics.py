@@ -1,0 +1,512 @@
+"""Route metrics: mass intensity, E-factors, atom economy, reaction mass efficiency, cost.
+
+Every metric is a plain number computed once from a finished :class:`~routeplan.plan.model.Plan`
+and kept in a frozen :class:`Metrics`; exporters read it and never recompute it.  Each
+function below names the paper that defines its metric; ``docs/metrics.md`` says the
+same in prose.
+
+Words used throughout
+    *raw material*: a charge that is bought, i.e. a :class:`~routeplan.plan.model.ChargePlan`
+    with ``intermediate=False`` (reactants, reagents, catalysts, solvents, work-up water);
+    *input of a step*: every charge of the step, a charged intermediate included;
+    *mass*: mass as charged [kg] (a solution's whole mass, a solid at its assay).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from types import MappingProxyType
+from typing import TYPE_CHECKING, Any, Mapping
+
+from routeplan.units import unit
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.plan.model import ChargePlan, Plan, StepPlan
+    from routeplan.route.model import Material, Route
+
+__all__ = [
+    "SOLVENT_ROLES",
+    "Metrics",
+    "compute_metrics",
+    "route_pmi",
+    "step_pmi",
+    "cumulative_pmi",
+    "simple_e_factor",
+    "atom_economy",
+    "reaction_mass_efficiency",
+    "raw_material_cost",
+    "is_water",
+]
+
+#: Charge roles left out of the simple E-factor, besides any charge of water
+#: (Roschangar, Sheldon and Senanayake, Green Chem. 2015, 17, 752: sEF ignores solvents
+#: and water).
+SOLVENT_ROLES = ("solvent", "workup")
+
+
+def _kg(q) -> float:
+    return float(q.m_as(unit("kg")))
+
+
+def _ratio(num: float, den: float) -> float | None:
+    return num / den if den > 0 else None
+
+
+# --------------------------------------------------------------------------- PMI
+
+
+def route_pmi(plan: "Plan") -> float:
+    """Process mass intensity of the whole route [kg/kg].
+
+    ``PMI = sum of the masses of every raw material charged in every step / mass of
+    target delivered``, with the target mass as isolated including overage
+    (``plan.target_mass``).  Reactants, reagents, catalysts, solvents and work-up
+    water all count; intermediates made in the route do not (their own raw materials
+    are already counted).
+
+    Source: C. Jimenez-Gonzalez, C. S. Ponder, Q. B. Broxterman and J. B. Manley,
+    Org. Process Res. Dev. 2011, 15, 912 (PMI of a multi-step route counts every
+    raw material of every step once, per mass of final product).
+
+    Parameters
+    ----------
+    plan : Plan
+        A finished plan.
+
+    Returns
+    -------
+    float
+        Route PMI [kg/kg].
+    """
+    raw = sum(_kg(c.mass) for sp in plan.steps for c in sp.charges if not c.intermediate)
+    return raw / _kg(plan.target_mass)
+
+
+def step_pmi(sp: "StepPlan") -> float | None:
+    """Process mass intensity of one step [kg/kg].
+
+    ``PMI_step = sum of the masses of every input of the step (a charged intermediate
+    included) / mass of the step's product as isolated``.  Step PMIs do not add up to
+    the route PMI: each step's PMI is per kg of its own product, and the intermediate
+    it makes is counted again as an input of the next step.
+
+    Source: Jimenez-Gonzalez et al., Org. Process Res. Dev. 2011, 15, 912.
+
+    Returns
+    -------
+    float or None
+        Step PMI [kg/kg]; None when the step makes nothing (it does not lead to the target).
+    """
+    return _ratio(sum(_kg(c.mass) for c in sp.charges), _kg(sp.product_mass))
+
+
+def _share(c: "ChargePlan", maker: "StepPlan") -> float:
+    """Fraction of ``maker``'s product that charge ``c`` takes [-]."""
+    if c.mol is not None and maker.product_mol.m_as(unit("mol")) > 0:
+        return float(c.mol.m_as(unit("mol")) / maker.product_mol.m_as(unit("mol")))
+    made = _kg(maker.product_mass)
+    return _kg(c.mass) / made if made > 0 else 0.0
+
+
+def _cumulative_raw_mass(plan: "Plan") -> dict[str, float]:
+    """Raw material mass [kg] behind each step's whole product, steps in execution order."""
+    by_product = {sp.product: sp for sp in plan.steps}
+    out: dict[str, float] = {}
+    for sp in plan.steps:  # execution order: every maker comes before its users
+        total = 0.0
+        for c in sp.charges:
+            maker = by_product.get(c.material) if c.intermediate else None
+            if maker is None:
+                if not c.intermediate:
+                    total += _kg(c.mass)
+                continue
+            total += _share(c, maker) * out[maker.id]
+        out[sp.id] = total
+    return out
+
+
+def cumulative_pmi(plan: "Plan") -> dict[str, float | None]:
+    """Cumulative process mass intensity of each step [kg/kg].
+
+    ``PMI_cum(step) = raw materials charged in the step and in every step upstream of
+    it / mass of the step's product``.  In a convergent route each branch's raw
+    materials count once.  Where an intermediate feeds more than one step, its
+    upstream raw materials are shared among those steps in proportion to the moles
+    each takes, so that no raw material is counted twice; the cumulative PMI of the
+    step that makes the target is then the route PMI.
+
+    Source: Jimenez-Gonzalez et al., Org. Process Res. Dev. 2011, 15, 912 (the PMI of
+    a convergent route sums each branch once); the proportional sharing of a shared
+    intermediate is our own choice.
+
+    Returns
+    -------
+    dict[str, float or None]
+        Step id -> cumulative PMI [kg/kg], in execution order; None for a step that
+        makes nothing.
+    """
+    raw = _cumulative_raw_mass(plan)
+    return {sp.id: _ratio(raw[sp.id], _kg(sp.product_mass)) for sp in plan.steps}
+
+
+# --------------------------------------------------------------------- E-factors
+
+
+def is_water(material: "Material") -> bool:
+    """True when ``material`` is water: formula H2O, or, without a formula, key ``water``/``H2O``.
+
+    A solution is never water (its formula is the solute's).
+
+    Examples
+    --------
+    >>> from routeplan.route.model import Material
+    >>> is_water(Material(key="pw", name="process water", formula="H2O"))
+    True
+    """
+    if material.solution is not None:
+        return False
+    if material.formula:
+        try:
+            from routeplan.chemistry.formula import element_counts
+
+            return element_counts(material.formula) == {"H": 2, "O": 1}
+        except Exception:  # noqa: BLE001 - an unreadable formula is not water
+            return False
+    return material.key.lower() in ("water", "h2o")
+
+
+def simple_e_factor(plan: "Plan") -> float:
+    """Simple E-factor of the route [kg/kg].
+
+    ``sEF = (mass of raw materials other than solvents and water - mass of target) /
+    mass of target``.  Left out: every charge with role ``solvent`` or ``workup``
+    (:data:`SOLVENT_ROLES`) and every charge of water (:func:`is_water`) whatever its
+    role.  A reagent bought as a solution counts at its whole mass.
+
+    Source: F. Roschangar, R. A. Sheldon and C. H. Senanayake, Green Chem. 2015, 17,
+    752 (sEF leaves out solvents and water; cEF counts them all, without recycling).
+
+    Returns
+    -------
+    float
+        sEF [kg/kg].
+    """
+    materials = plan.route.materials
+    kept = 0.0
+    for sp in plan.steps:
+        for c in sp.charges:
+            if c.intermediate or c.role in SOLVENT_ROLES or is_water(materials[c.material]):
+                continue
+            kept += _kg(c.mass)
+    target = _kg(plan.target_mass)
+    return (kept - target) / target
+
+
+# ------------------------------------------------------- atom economy and RME
+
+
+def atom_economy(route: "Route", step_id: str) -> float | None:
+    """Atom economy of one step from its equation [-].
+
+    ``AE = nu_p * M_p / sum_i(nu_i * M_i)`` over the reactants ``i`` of the equation,
+    with ``p`` the step's main product, ``nu`` the stoichiometric coefficients [-] and
+    ``M`` the molar masses [g/mol].
+
+    Source: B. M. Trost, Science 1991, 254, 1471.
+
+    Returns
+    -------
+    float or None
+        AE [-]; None when a molar mass is missing.
+    """
+    step = route.step(step_id)
+    mats = route.materials
+    prod = mats[step.product].molar_mass
+    if prod is None:
+        return None
+    den = 0.0
+    for t in step.equation.reactants:
+        m = mats[t.key].molar_mass
+        if m is None:
+            return None
+        den += t.coefficient * float(m.m_as(unit("g/mol")))
+    num = step.equation.coefficient(step.product) * float(prod.m_as(unit("g/mol")))
+    return _ratio(num, den)
+
+
+def reaction_mass_efficiency(route: "Route", sp: "StepPlan") -> float | None:
+    """Reaction mass efficiency of one step [-].
+
+    ``RME = m(product) / sum of m(reactant)`` over the reactants of the step's equation
+    as charged (an excess counts), where each mass is that of the compound itself
+    (moles x molar mass), so a lot's impurities and the solvent of a reagent solution
+    are not counted as reactant; the product mass is that of the pure product made.
+    For ``A + B -> C``: ``RME = m_C / (m_A + m_B)``.  RME folds yield, atom economy
+    and excess into one number; solvents, catalysts and other reagents are outside it.
+
+    Source: A. D. Curzons, D. J. C. Constable, D. N. Mortimer and V. L. Cunningham,
+    Green Chem. 2001, 3, 1 (defined there as mass of product C x 100 / (mass of A +
+    mass of B)); discussed in D. J. C. Constable, A. D. Curzons and V. L. Cunningham,
+    Green Chem. 2002, 4, 521.
+
+    Returns
+    -------
+    float or None
+        RME [-]; None when a molar mass is missing or the step makes nothing.
+    """
+    step = route.step(sp.id)
+    mats = route.materials
+    prod = mats[sp.product].molar_mass
+    if prod is None:
+        return None
+    reactants = {t.key for t in step.equation.reactants}
+    den = 0.0
+    for c in sp.charges:
+        if c.material not in reactants:
+            continue
+        m = mats[c.material].molar_mass
+        if m is None or c.mol is None:
+            return None
+        den += float((c.mol * m).m_as(unit("kg")))
+    num = float((sp.product_mol * prod).m_as(unit("kg")))
+    return _ratio(num, den) if num > 0 else None
+
+
+# ------------------------------------------------------------------------ cost
+
+
+def raw_material_cost(plan: "Plan") -> tuple[float | None, tuple[str, ...]]:
+    """Raw-material cost per kg of target [currency/kg], and the unpriced raw materials.
+
+    ``cost/kg = sum over priced raw materials of (mass as supplied [kg] x price
+    [currency/kg]) / mass of target [kg]`` (``RawMaterialTotal.cost``).  Where some raw
+    materials have no price the sum covers the priced ones only, and their keys are
+    returned so that every output can say the figure is incomplete.  Method: the
+    ordinary bill of raw materials (common practice, no source).
+
+    Returns
+    -------
+    cost_per_kg : float or None
+        [currency/kg]; None without a currency or without any price.
+    unpriced : tuple of str
+        Keys of raw materials without a price (empty without a currency).
+    """
+    if not plan.route.currency:
+        return None, ()
+    priced = [r.cost for r in plan.raw_materials if r.cost is not None]
+    unpriced = tuple(r.material for r in plan.raw_materials if r.cost is None)
+    if not priced:
+        return None, unpriced
+    return sum(priced) / _kg(plan.target_mass), unpriced
+
+
+# --------------------------------------------------------------------- Metrics
+
+
+def _frozen(d: Mapping) -> Mapping:
+    return MappingProxyType(dict(d))
+
+
+@dataclass(frozen=True, eq=False)
+class Metrics:
+    """The metrics of one plan; every ratio is per kg of target as delivered.
+
+    Attributes
+    ----------
+    target_mass_kg : float
+        Mass of target the ratios refer to, as isolated with overage [kg].
+    pmi : float
+        Route process mass intensity [kg/kg] (:func:`route_pmi`).
+    pmi_by_step : Mapping[str, float or None]
+        Step PMI [kg/kg] (:func:`step_pmi`), execution order.
+    pmi_cumulative_by_step : Mapping[str, float or None]
+        Cumulative PMI [kg/kg] (:func:`cumulative_pmi`).
+    e_factor_complete : float
+        Complete E-factor ``cEF = PMI - 1`` [kg/kg] (Roschangar, Sheldon and
+        Senanayake, Green Chem. 2015, 17, 752).
+    e_factor_simple : float
+        Simple E-factor [kg/kg] (:func:`simple_e_factor`).
+    atom_economy_by_step : Mapping[str, float or None]
+        Atom economy [-] (:func:`atom_economy`).
+    reaction_mass_efficiency_by_step : Mapping[str, float or None]
+        Reaction mass efficiency [-] (:func:`reaction_mass_efficiency`).
+    cost_per_kg : float or None
+        Raw-material cost [currency/kg] (:func:`raw_material_cost`).
+    currency : str or None
+        ISO 4217 code of ``cost_per_kg``.
+    unpriced : tuple of str
+        Raw materials left out of ``cost_per_kg`` for want of a price.
+    mass_per_kg_target : Mapping[str, float]
+        Mass of each raw material as supplied per kg of target [kg/kg], in order of
+        first use; the values add up to ``pmi``.
+    largest_raw_material : tuple of (str, float) or None
+        Key and mass [kg] of the raw material with the largest mass over the campaign.
+    step_count : int
+        Number of steps in the route [-].
+    longest_linear_sequence : tuple of str
+        Step ids of the longest chain of steps ending at the target.
+    """
+
+    target_mass_kg: float
+    pmi: float
+    pmi_by_step: Mapping[str, float | None]
+    pmi_cumulative_by_step: Mapping[str, float | None]
+    e_factor_complete: float
+    e_factor_simple: float
+    atom_economy_by_step: Mapping[str, float | None]
+    reaction_mass_efficiency_by_step: Mapping[str, float | None]
+    cost_per_kg: float | None
+    currency: str | None
+    unpriced: tuple[str, ...]
+    mass_per_kg_target: Mapping[str, float]
+    largest_raw_material: tuple[str, float] | None
+    step_count: int
+    longest_linear_sequence: tuple[str, ...]
+
+    @property
+    def cost_complete(self) -> bool:
+        """True when a cost was computed and every raw material had a price."""
+        return self.cost_per_kg is not None and not self.unpriced
+
+    def to_dict(self) -> dict[str, Any]:
+        """The metrics as plain JSON values (the ``metrics`` key of the plan JSON)."""
+        largest = None
+        if self.largest_raw_material is not None:
+            largest = {"material": self.largest_raw_material[0],
+                       "mass_kg": self.largest_raw_material[1]}
+        return {
+            "target_mass_kg": self.target_mass_kg,
+            "pmi": self.pmi,
+            "pmi_by_step": dict(self.pmi_by_step),
+            "pmi_cumulative_by_step": dict(self.pmi_cumulative_by_step),
+            "e_factor_complete": self.e_factor_complete,
+            "e_factor_simple": self.e_factor_simple,
+            "atom_economy_by_step": dict(self.atom_economy_by_step),
+            "reaction_mass_efficiency_by_step": dict(self.reaction_mass_efficiency_by_step),
+            "cost_per_kg": self.cost_per_kg,
+            "currency": self.currency,
+            "cost_complete": self.cost_complete,
+            "unpriced": list(self.unpriced),
+            "mass_per_kg_target": dict(self.mass_per_kg_target),
+            "largest_raw_material": largest,
+            "step_count": self.step_count,
+            "longest_linear_sequence": {"count": len(self.longest_linear_sequence),
+                                        "steps": list(self.longest_linear_sequence)},
+        }
+
+    def summary_lines(self, plan: "Plan") -> list[str]:
+        """Short lines for the terminal, with rich markup; numbers rounded for reading.
+
+        Parameters
+        ----------
+        plan : Plan
+            The plan these metrics belong to (for the target's key).
+
+        Returns
+        -------
+        list of str
+            One line per metric, the first a heading.
+        """
+        return _summary_lines(self, plan.target_material)
+
+
+def compute_metrics(plan: "Plan") -> Metrics:
+    """All metrics of a finished plan.
+
+    Parameters
+    ----------
+    plan : Plan
+        The plan, steps in execution order, raw materials totalled.
+
+    Returns
+    -------
+    Metrics
+        Frozen metrics; ``plan.metrics`` once :func:`~routeplan.plan.walk.plan_route` is done.
+    """
+    route = plan.route
+    target = _kg(plan.target_mass)
+    pmi = route_pmi(plan)
+    cost, unpriced = raw_material_cost(plan)
+    largest = None
+    if plan.raw_materials:
+        big = max(plan.raw_materials, key=lambda r: _kg(r.mass))
+        largest = (big.material, _kg(big.mass))
+    return Metrics(
+        target_mass_kg=target,
+        pmi=pmi,
+        pmi_by_step=_frozen({sp.id: step_pmi(sp) for sp in plan.steps}),
+        pmi_cumulative_by_step=_frozen(cumulative_pmi(plan)),
+        # cEF = PMI - 1 (Roschangar, Sheldon and Senanayake, Green Chem. 2015, 17, 752)
+        e_factor_complete=pmi - 1.0,
+        e_factor_simple=simple_e_factor(plan),
+        atom_economy_by_step=_frozen({sp.id: atom_economy(route, sp.id) for sp in plan.steps}),
+        reaction_mass_efficiency_by_step=_frozen(
+            {sp.id: reaction_mass_efficiency(route, sp) for sp in plan.steps}),
+        cost_per_kg=cost,
+        currency=route.currency,
+        unpriced=unpriced,
+        mass_per_kg_target=_frozen({r.material: _kg(r.mass) / target for r in plan.raw_materials}),
+        largest_raw_material=largest,
+        step_count=len(plan.steps),
+        longest_linear_sequence=tuple(plan.overall_yield.longest_linear_sequence),
+    )
+
+
+# ---------------------------------------------------------------- terminal text
+
+
+def _num(x: float | None, digits: int = 3) -> str:
+    """``x`` to ``digits`` significant figures, or an en dash for None."""
+    if x is None:
+        return "–"
+    text = f"{x:.{digits}g}"
+    return f"{x:.0f}" if "e" in text and abs(x) >= 1 else text
+
+
+def _pct(x: float | None) -> str:
+    return "–" if x is None else f"{100 * x:.1f} %"
+
+
+def _by_step(values: Mapping[str, float | None], show) -> str:
+    from rich.markup import escape
+
+    return " · ".join(f"{escape(k)} {show(v)}" for k, v in values.items())
+
+
+def _summary_lines(m: Metrics, target: str) -> list[str]:
+    """The lines of :meth:`Metrics.summary_lines`; ``target`` is the target's key."""
+    from rich.markup import escape
+
+    tgt = escape(target)
+    lines = [
+        "",
+        "[bold]Mass efficiency and cost[/bold] (per kg of target as delivered)",
+        f"  process mass intensity (PMI): {_num(m.pmi)} kg of raw materials per kg of {tgt}",
+        f"  E-factor: complete {_num(m.e_factor_complete)} kg/kg (PMI − 1), "
+        f"simple {_num(m.e_factor_simple)} kg/kg (solvents and water left out)",
+        "  step PMI, kg/kg (inputs per kg of the step's own product; these do not add up): "
+        + _by_step(m.pmi_by_step, _num),
+        "  cumulative PMI, kg/kg (raw materials up to and including the step): "
+        + _by_step(m.pmi_cumulative_by_step, _num),
+        "  atom economy: " + _by_step(m.atom_economy_by_step, _pct),
+        "  reaction mass efficiency: " + _by_step(m.reaction_mass_efficiency_by_step, _pct),
+    ]
+    if m.currency is None:
+        lines.append("  raw-material cost: not computed (the route gives no currency)")
+    elif m.cost_per_kg is None:
+        lines.append("  raw-material cost: not computed (no raw material has a price)")
+    elif m.unpriced:
+        lines.append(f"  raw-material cost: at least {_num(m.cost_per_kg, 4)} {escape(m.currency)} "
+                     f"per kg of {tgt}, [bold]priced materials only[/bold]; no price for: "
+                     + ", ".join(escape(k) for k in m.unpriced))
+    else:
+        lines.append(f"  raw-material cost: {_num(m.cost_per_kg, 4)} {escape(m.currency)} per kg of {tgt}")
+    top = sorted(m.mass_per_kg_target.items(), key=lambda kv: -kv[1])[:5]
+    if top:
+        lines.append(f"  largest raw materials, kg per kg of {tgt}: "
+                     + " · ".join(f"{escape(k)} {_num(v)}" for k, v in top))
+    lls = " → ".join(escape(s) for s in m.longest_linear_sequence)
+    plural = "s" if m.step_count != 1 else ""
+    lines.append(f"  {m.step_count} step{plural}; longest linear sequence "
+                 f"{len(m.longest_linear_sequence)} ({lls})")
+    return lines
