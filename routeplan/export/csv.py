@@ -1,0 +1,142 @@
+"""The plan's tables as CSV files (``routeplan plan ROUTE --csv DIR``), for other tools.
+
+Files written into ``DIR`` (made if missing), each atomically:
+
+``summary.csv``
+    item, value, unit: route, route file and SHA-256, date, target, overall yield,
+    cost, the caution and every warning.
+``steps.csv``
+    one line per step in execution order.
+``charges-NN-<step>.csv``
+    the charges of step number ``NN`` (execution order), whole campaign and per batch.
+``raw-materials.csv``
+    bought materials totalled over the route, with price and cost.
+``materials.csv``
+    every material of the route.
+
+Numbers are written in full precision in the units of the headings (mol, kg, L, g/mol,
+g/mL; fractions from 0 to 1 where the heading says ``[%]`` or ``[-]``); an empty field
+means "does not apply".  Text that a spreadsheet would run as a formula — a field
+beginning with ``=``, ``+``, ``-``, ``@``, a tab or a carriage return — is written
+with a leading apostrophe, as the OWASP advice on CSV injection recommends
+(https://owasp.org/www-community/attacks/CSV_Injection).  Numbers are never altered.
+"""
+
+from __future__ import annotations
+
+import csv
+import os
+import re
+from datetime import datetime
+from pathlib import Path
+from typing import TYPE_CHECKING, Any, Iterable, Sequence
+
+from routeplan.export.tables import (CHARGE_COLUMNS, STEP_COLUMNS, SUMMARY_COLUMNS, Column,
+                                     material_columns, material_rows, raw_export_columns, raw_export_rows,
+                                     step_charge_rows, step_rows, summary_rows)
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.plan.model import Plan
+
+__all__ = ["FORMULA_STARTS", "neutralise", "csv_field", "step_file_name", "write_table", "write_csv"]
+
+#: First characters that make a spreadsheet treat a field as a formula (OWASP).
+FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
+
+_UNSAFE_FILE_CHARS = re.compile(r"[^A-Za-z0-9._-]+")
+
+
+def neutralise(text: str) -> str:
+    """``text`` with a leading ``'`` when a spreadsheet would read it as a formula.
+
+    Examples
+    --------
+    >>> neutralise('=HYPERLINK("http://x")')
+    '\\'=HYPERLINK("http://x")'
+    >>> neutralise("acetone")
+    'acetone'
+    """
+    return "'" + text if text.startswith(FORMULA_STARTS) else text
+
+
+def csv_field(value: Any) -> Any:
+    """A table value as a CSV field: None empty, booleans ``true``/``false``, numbers
+    unchanged (full precision), text neutralised (:func:`neutralise`)."""
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, (int, float)):
+        return value
+    return neutralise(str(value))
+
+
+def step_file_name(index: int, step_id: str) -> str:
+    """File name of a step's charges: ``charges-NN-<id>.csv``, the id reduced to
+    letters, digits, ``.``, ``_`` and ``-`` (at most 40 characters).
+
+    Examples
+    --------
+    >>> step_file_name(3, "S3 / work-up")
+    'charges-03-S3_work-up.csv'
+    """
+    safe = _UNSAFE_FILE_CHARS.sub("_", step_id).strip("._-")[:40] or "step"
+    return f"charges-{index:02d}-{safe}.csv"
+
+
+def write_table(path: str | os.PathLike, columns: Sequence[Column], rows: Iterable[dict[str, Any]]) -> Path:
+    """Write ``rows`` under the headings of ``columns`` (titles with units) to the CSV
+    file ``path``, atomically (UTF-8, comma-separated, RFC 4180 quoting)."""
+    from routeplan.export.atomic import atomic_path
+
+    target = Path(path)
+    with atomic_path(target, suffix=".csv") as tmp:
+        with open(tmp, "w", encoding="utf-8", newline="") as fh:
+            writer = csv.writer(fh)
+            writer.writerow([neutralise(c.title) for c in columns])
+            for row in rows:
+                writer.writerow([csv_field(row.get(c.key)) for c in columns])
+    return target
+
+
+def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | None = None) -> list[Path]:
+    """Write the plan's tables as CSV files into ``folder`` (made if missing).
+
+    Parameters
+    ----------
+    plan : Plan
+        The plan; only read.
+    folder : str or path-like
+        Output folder.
+    written : datetime, optional
+        Date and time recorded in ``summary.csv`` (default: now, local time).
+
+    Returns
+    -------
+    list of Path
+        The files written, in the order above.
+
+    Raises
+    ------
+    OutputError
+        When the folder cannot be made or a file cannot be written.
+    """
+    from routeplan.errors import OutputError
+    from routeplan.export.workbook import written_text
+
+    out_dir = Path(folder)
+    try:
+        out_dir.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise OutputError(f"cannot make folder '{out_dir}': {exc.strerror}") from None
+    when = written or datetime.now().astimezone()
+    summary = [{k: row[k] for k in ("item", "value", "unit")} for row in summary_rows(plan, written_text(when))]
+    paths = [
+        write_table(out_dir / "summary.csv", SUMMARY_COLUMNS, summary),
+        write_table(out_dir / "steps.csv", STEP_COLUMNS, step_rows(plan)),
+    ]
+    for i, sp in enumerate(plan.steps, start=1):
+        paths.append(write_table(out_dir / step_file_name(i, sp.id), CHARGE_COLUMNS, step_charge_rows(sp)))
+    paths.append(write_table(out_dir / "raw-materials.csv", raw_export_columns(plan), raw_export_rows(plan)))
+    paths.append(write_table(out_dir / "materials.csv", material_columns(plan), material_rows(plan)))
+    return paths

@@ -1,0 +1,194 @@
+"""The charge-sheet workbook recalculated by a real spreadsheet: LibreOffice headless.
+
+External check (source: LibreOffice Calc, run headless): every workbook of this module
+is converted once, in one ``soffice --convert-to xlsx`` call, with a private user
+profile whose setting ``/org.openoffice.Office.Calc/Formula/Load/OOXMLRecalcMode = 0``
+("always recalculate" on load; LibreOffice's own default is 1, "never", so without it
+the cached values would come back unchanged).  The converted files hold LibreOffice's
+own results, read back with openpyxl (``data_only=True``).
+
+* A canary workbook whose formula ``=A1*3`` is stored with a wrong value (999) must
+  come back as 6: proof that LibreOffice did recalculate.
+* Every recalculated mass and volume to charge, and every cost, equals the Plan's
+  number to a relative 1e-9.
+* Lot assays typed into a copy (with openpyxl, as a person would in the plant) raise
+  the mass to charge by planned assay / lot assay, and the solvent linked to the
+  limiting reagent with it; charges that do not depend on them stay.
+"""
+
+from __future__ import annotations
+
+import shutil
+import subprocess
+from pathlib import Path
+from types import SimpleNamespace
+
+import openpyxl
+import pytest
+
+from routeplan.export.workbook import charge_sheet_names, write_workbook
+from test_workbook import WRITTEN, _raw_table, charge_table, close, make_plan
+
+pytestmark = pytest.mark.slow
+
+SOFFICE = shutil.which("soffice")
+
+_PROFILE_SETTINGS = """<?xml version="1.0" encoding="UTF-8"?>
+<oor:items xmlns:oor="http://openoffice.org/2001/registry" xmlns:xs="http://www.w3.org/2001/XMLSchema"
+           xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance">
+<item oor:path="/org.openoffice.Office.Calc/Formula/Load"><prop oor:name="OOXMLRecalcMode" oor:op="fuse"><value>0</value></prop></item>
+</oor:items>
+"""
+
+# Lot assays typed in the copy: (sheet index in charge_sheet_names, material, lot assay [-])
+LOTS = [
+    (0, "aminophenol", 0.90),   # limiting reagent of the two-batch step, planned 97 %
+    (2, "caustic", 0.45),       # solution by mass fraction, planned 50 %
+    (3, "bromoester", 0.95),    # reagent by equiv with a density, planned 98 %
+    (3, "HCl6M", 0.50),         # solution by molarity: recorded only, changes nothing
+    (3, "acetone", 0.90),       # solvent by volumes: recorded only, changes nothing
+]
+
+
+def _run_soffice(files: list[Path], out: Path, profile: Path) -> None:
+    (profile / "user").mkdir(parents=True)
+    (profile / "user" / "registrymodifications.xcu").write_text(_PROFILE_SETTINGS, encoding="utf-8")
+    cmd = [SOFFICE, f"-env:UserInstallation={profile.as_uri()}", "--headless", "--norestore",
+           "--convert-to", "xlsx", "--outdir", str(out), *map(str, files)]
+    done = subprocess.run(cmd, capture_output=True, text=True, timeout=180)
+    missing = [f.name for f in files if not (out / f.name).is_file()]
+    assert not missing, f"soffice did not convert {missing}: {done.stdout}\n{done.stderr}"
+
+
+def _row_of(ws, material):
+    _h, col, rows = charge_table(ws)
+    for r in rows:
+        if ws.cell(r, col["key"]).value == material:
+            return r, col
+    raise AssertionError(material)
+
+
+@pytest.fixture(scope="module")
+def recalc(tmp_path_factory):
+    if SOFFICE is None:
+        pytest.skip("LibreOffice (soffice) is not installed: the recalculation check needs it "
+                    "(.ci/run installs libreoffice-calc-nogui)")
+    import xlsxwriter
+
+    base = tmp_path_factory.mktemp("recalc")
+    src, out = base / "in", base / "out"
+    src.mkdir()
+    plan = make_plan()
+    names = charge_sheet_names(plan)
+    original = src / "plan.xlsx"
+    write_workbook(plan, original, written=WRITTEN)
+
+    lots = src / "lots.xlsx"
+    wb = openpyxl.load_workbook(original)
+    for index, material, value in LOTS:
+        ws = wb[names[index][2]]
+        r, col = _row_of(ws, material)
+        ws.cell(r, col["lot assay [%]"]).value = value
+    wb.save(lots)
+
+    canary = src / "canary.xlsx"
+    cw = xlsxwriter.Workbook(str(canary))
+    sheet = cw.add_worksheet("c")
+    sheet.write_number(0, 0, 2)
+    sheet.write_formula(0, 1, "=A1*3", None, 999)
+    cw.close()
+
+    _run_soffice([original, lots, canary], out, base / "profile")
+    return SimpleNamespace(
+        plan=plan, names=names,
+        planned=openpyxl.load_workbook(out / "plan.xlsx", data_only=True),
+        lots=openpyxl.load_workbook(out / "lots.xlsx", data_only=True),
+        canary=openpyxl.load_workbook(out / "canary.xlsx", data_only=True),
+    )
+
+
+def test_libreoffice_did_recalculate(recalc):
+    assert recalc.canary["c"]["B1"].value == 6
+
+
+def test_recalculated_charges_equal_the_plan(recalc):
+    n_cells = 0
+    for sp, _k, name in recalc.names:
+        ws = recalc.planned[name]
+        _h, col, rows = charge_table(ws)
+        for r, c in zip(rows, sp.charges):
+            n = sp.batches
+            assert close(ws.cell(r, col["mass to charge [kg]"]).value, c.mass.m_as("kg") / n), (name, c.material)
+            expected_v = None if c.volume is None else c.volume.m_as("L") / n
+            assert close(ws.cell(r, col["volume to charge [L]"]).value, expected_v), (name, c.material)
+            n_cells += 2
+    assert n_cells == 2 * sum(len(sp.charges) * sp.batches for sp in recalc.plan.steps)
+
+
+def test_recalculated_costs_equal_the_plan(recalc):
+    ws = recalc.planned["Summary"]
+    h, col = _raw_table(ws)
+    raws = recalc.plan.raw_materials
+    for i, raw in enumerate(raws):
+        assert close(ws.cell(h + 1 + i, col["cost [EUR]"]).value, raw.cost), raw.material
+    total = ws.cell(h + 1 + len(raws), col["cost [EUR]"]).value
+    assert close(total, sum(r.cost for r in raws if r.cost is not None))
+
+
+def test_text_from_the_route_stays_text_in_a_spreadsheet(recalc):
+    _sp, _k, name = recalc.names[-1]
+    ws = recalc.planned[name]
+    r, col = _row_of(ws, "KI")
+    assert ws.cell(r, col["material"]).value == '=HYPERLINK("http://x")'
+    assert ws.cell(r, col["material"]).data_type == "s"
+
+
+def _mass_volume(ws, material):
+    r, col = _row_of(ws, material)
+    return ws.cell(r, col["mass to charge [kg]"]).value, ws.cell(r, col["volume to charge [L]"]).value
+
+
+def test_a_lower_lot_assay_raises_the_charge(recalc):
+    plan, names = recalc.plan, recalc.names
+    mats = plan.route.materials
+
+    def planned(index, material, order=None):
+        sp = names[index][0]
+        c = next(c for c in sp.charges if c.material == material and (order is None or c.order == order))
+        n = sp.batches
+        return c.mass.m_as("kg") / n, None if c.volume is None else c.volume.m_as("L") / n
+
+    # limiting reagent, planned 97 %, lot 90 %: mass x 0.97 / 0.90
+    f = mats["aminophenol"].assay / 0.90
+    sheet = recalc.lots[names[0][2]]
+    m, _v = _mass_volume(sheet, "aminophenol")
+    assert close(m, planned(0, "aminophenol")[0] * f)
+    # water by volumes and charcoal by mass ratio follow the limiting reagent as charged
+    _h, col, rows = charge_table(sheet)
+    for r, c in zip(rows, names[0][0].charges):
+        got_m = sheet.cell(r, col["mass to charge [kg]"]).value
+        want_m = c.mass.m_as("kg") / 2
+        if c.basis in ("volumes", "mass_ratio") or c.material == "aminophenol":
+            assert close(got_m, want_m * f), c.material
+        else:  # Ac2O by equiv: moles fixed, its own assay unchanged
+            assert close(got_m, want_m), c.material
+            assert close(sheet.cell(r, col["volume to charge [L]"]).value, c.volume.m_as("L") / 2)
+    # the other batch of the same step, with no lot typed, keeps the planned numbers
+    other = recalc.lots[names[1][2]]
+    assert close(_mass_volume(other, "aminophenol")[0], planned(1, "aminophenol")[0])
+
+    # solution by mass fraction, planned 50 %, lot 45 %: mass and volume x 0.50 / 0.45
+    m, v = _mass_volume(recalc.lots[names[2][2]], "caustic")
+    pm, pv = planned(2, "caustic")
+    assert close(m, pm * 0.50 / 0.45) and close(v, pv * 0.50 / 0.45)
+
+    # reagent by equiv with a density, planned 98 %, lot 95 %
+    last = recalc.lots[names[3][2]]
+    m, v = _mass_volume(last, "bromoester")
+    pm, pv = planned(3, "bromoester")
+    assert close(m, pm * 0.98 / 0.95) and close(v, pv * 0.98 / 0.95)
+    # recorded-only lot assays change nothing
+    for material in ("HCl6M", "acetone"):
+        m, v = _mass_volume(last, material)
+        pm, pv = planned(3, material)
+        assert close(m, pm) and close(v, pv), material
