@@ -15,10 +15,11 @@ The rules are those of the route format, step 3 of "How the plan is computed":
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
-from routeplan.units import unit
 from routeplan.errors import PlanError
+from routeplan.units import unit
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -26,43 +27,77 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import ChargePlan, StepPlan
     from routeplan.route.model import Charge, Material, Route, Step
 
-__all__ = ["charge_from_moles", "charge_from_mass", "charge_from_volume", "compute_step"]
+__all__ = ["SuppliedForm", "supplied_form", "charge_from_moles", "charge_from_mass", "charge_from_volume", "compute_step"]
+
+
+@dataclass(frozen=True)
+class SuppliedForm:
+    """Conversion factors of a material as supplied (solid, neat liquid or solution).
+
+    Attributes
+    ----------
+    kg_per_mol : pint.Quantity or None
+        Mass as supplied per mole of the compound [kg/mol]: ``M / assay``, ``M / w`` for
+        a solution by mass fraction, ``rho / c`` for a solution by molarity; None without
+        a molar mass.
+    L_per_kg : pint.Quantity or None
+        Volume per mass as supplied [L/kg], ``1 / rho``; None without a density.
+    """
+
+    kg_per_mol: "pint.Quantity | None"
+    L_per_kg: "pint.Quantity | None"
+
+    @property
+    def mol_per_kg(self) -> "pint.Quantity | None":
+        """Moles of compound per kg as supplied [mol/kg]."""
+        return None if self.kg_per_mol is None else 1 / self.kg_per_mol
+
+
+def supplied_form(mat: "Material") -> SuppliedForm:
+    """The conversion factors of ``mat`` as supplied, computed once per material."""
+    cached = mat.__dict__.get("_supplied_form")
+    if cached is not None:
+        return cached
+    sol = mat.solution
+    density = sol.density if sol is not None else mat.density
+    kg_per_mol = None
+    if sol is not None and sol.molarity is not None:
+        kg_per_mol = (sol.density / sol.molarity).to(unit("kg/mol"))
+    elif mat.molar_mass is not None:
+        fraction = sol.mass_fraction if sol is not None else mat.assay
+        kg_per_mol = (mat.molar_mass / fraction).to(unit("kg/mol"))
+    L_per_kg = None if density is None else (1 / density).to(unit("L/kg"))
+    form = SuppliedForm(kg_per_mol, L_per_kg)
+    mat.__dict__["_supplied_form"] = form  # frozen dataclass: a private cache beside the fields
+    return form
 
 
 def charge_from_moles(mat: "Material", n: "pint.Quantity") -> tuple["pint.Quantity", "pint.Quantity | None"]:
-    """Mass as charged [kg] and volume [L] for ``n`` mol of ``mat``'s compound."""
-    sol = mat.solution
-    if sol is not None:
-        if sol.molarity is not None:
-            volume = (n / sol.molarity).to(unit("L"))
-            return (volume * sol.density).to(unit("kg")), volume
-        mass = (n * mat.molar_mass / sol.mass_fraction).to(unit("kg"))
-        return mass, (mass / sol.density).to(unit("L"))
-    mass = (n * mat.molar_mass / mat.assay).to(unit("kg"))
-    volume = (mass / mat.density).to(unit("L")) if mat.density is not None else None
+    """Mass as charged [kg] and volume [L] for ``n`` [mol] of ``mat``'s compound.
+
+    ``m = n * M / assay`` (or ``n * M / w`` for a solution by mass fraction, and
+    ``m = (n / c) * rho`` for a solution by molarity); ``V = m / rho``.
+    """
+    form = supplied_form(mat)
+    mass = n * form.kg_per_mol  # [mol] * [kg/mol] = [kg]
+    volume = None if form.L_per_kg is None else mass * form.L_per_kg  # [kg] * [L/kg]
     return mass, volume
 
 
 def charge_from_mass(mat: "Material", mass: "pint.Quantity") -> tuple["pint.Quantity | None", "pint.Quantity | None"]:
     """Moles of compound [mol] and volume [L] in ``mass`` [kg] of ``mat`` as supplied."""
-    sol = mat.solution
-    density = sol.density if sol is not None else mat.density
-    volume = (mass / density).to(unit("L")) if density is not None else None
-    if mat.molar_mass is None:
-        return None, volume
-    if sol is not None:
-        if sol.molarity is not None:
-            return (volume * sol.molarity).to(unit("mol")), volume
-        return (mass * sol.mass_fraction / mat.molar_mass).to(unit("mol")), volume
-    return (mass * mat.assay / mat.molar_mass).to(unit("mol")), volume
+    form = supplied_form(mat)
+    volume = None if form.L_per_kg is None else mass * form.L_per_kg
+    n = None if form.kg_per_mol is None else mass / form.kg_per_mol  # [kg] / [kg/mol]
+    return n, volume
 
 
 def charge_from_volume(mat: "Material", volume: "pint.Quantity") -> tuple["pint.Quantity | None", "pint.Quantity"]:
     """Moles [mol] and mass [kg] in ``volume`` [L] of ``mat`` as supplied (needs a density)."""
-    density = mat.solution.density if mat.solution is not None else mat.density
-    if density is None:  # the loader forbids this; kept as a guard
+    form = supplied_form(mat)
+    if form.L_per_kg is None:  # the loader forbids this; kept as a guard
         raise PlanError(f"material '{mat.key}' is charged by volume but has no density")
-    mass = (volume * density).to(unit("kg"))
+    mass = volume / form.L_per_kg  # [L] / [L/kg] = [kg]
     n, _ = charge_from_mass(mat, mass)
     return n, mass
 
@@ -76,7 +111,7 @@ def _line(route: "Route", step: "Step", charge: "Charge", order: int, n_lim, m_l
         n = n_lim * equiv
         mass, volume = charge_from_moles(mat, n)
     elif charge.basis == "volumes":
-        volume = (m_lim * _per_kg(charge.value)).to(unit("L"))  # [L/kg] * [kg]
+        volume = m_lim * _per_kg(charge.value)  # [kg] * [L/kg] = [L]
         n, mass = charge_from_volume(mat, volume)
     elif charge.basis == "mass_ratio":
         mass = m_lim * charge.value
@@ -119,12 +154,12 @@ def compute_step(route: "Route", step: "Step", n_product: "pint.Quantity") -> "S
     y = step.yield_.expected
     if not y > 0:
         raise PlanError(f"step {step.id} has a yield of {y:g}; it must be above 0", step=step.id)
-    n_lim = (n_product / (y * nu_p / nu_l)).to(unit("mol"))
+    n_lim = n_product / (y * nu_p / nu_l)  # [mol]
     lim = route.materials[step.limiting]
     m_lim, _v = charge_from_moles(lim, n_lim)
     lines = tuple(_line(route, step, c, i, n_lim, m_lim) for i, c in enumerate(step.charges, start=1))
     prod = route.materials[step.product]
-    product_mass = (n_product * prod.molar_mass / prod.assay).to(unit("kg"))
+    product_mass = n_product * supplied_form(prod).kg_per_mol  # as isolated, at its assay [kg]
     return StepPlan(
         id=step.id,
         name=step.name,
@@ -133,7 +168,7 @@ def compute_step(route: "Route", step: "Step", n_product: "pint.Quantity") -> "S
         limiting_mol=n_lim,
         limiting_mass=m_lim,
         product=step.product,
-        product_mol=n_product.to(unit("mol")),
+        product_mol=n_product,
         product_mass=product_mass,
         yield_=y,
         isolated=step.isolated,
