@@ -25,9 +25,9 @@ mass of the electrons gained or lost by an ion is neglected (5.5e-4 g/mol per ch
 from __future__ import annotations
 
 import functools
-import math
 import re
 from dataclasses import dataclass, field
+from decimal import Decimal
 from fractions import Fraction
 from types import MappingProxyType
 from typing import TYPE_CHECKING, Mapping, Union
@@ -475,8 +475,10 @@ def _mass_of(f: Formula) -> float:
                 f"formula '{f.text or f.hill()}': element '{sym}' ({element_name(sym)}) has no "
                 f"standard atomic weight", formula=f.text, token=sym,
                 position=_position_of(sym, f.text), hint=hint)
-        terms.append(k * weights[sym].weight)
-    return math.fsum(terms)
+        # decimal arithmetic: the table's weights are decimal numbers, so the sum is exact
+        # and rounded to a float once (CuSO4·5H2O is 249.677, not 249.67700000000002)
+        terms.append(Decimal(repr(k)) * Decimal(repr(weights[sym].weight)))
+    return float(sum(terms, Decimal(0)))
 
 
 @functools.lru_cache(maxsize=4096)
