@@ -21,3 +21,14 @@ def echo_warnings(problems, *, strict: bool = False) -> None:
 def caution_line() -> str:
     """The safety caution, as one line."""
     return "CAUTION: " + CAUTION
+
+
+def write_text_output(text: str, dest: str) -> None:
+    """Write ``text`` to standard output (``dest == "-"``) or atomically to a file."""
+    if dest == "-":
+        click.echo(text, nl=False)
+        return
+    from routeplan.export.atomic import write_text_atomic
+
+    write_text_atomic(dest, text)
+    echo_err(f"wrote {dest}")

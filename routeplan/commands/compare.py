@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import caution_line, echo_err, echo_warnings
+from routeplan.commands.common import caution_line, echo_err, echo_warnings, write_text_output
 
 
 @click.command("compare")
@@ -51,14 +51,7 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
     if json_out is not None:
         from routeplan.export.compare_out import comparison_to_json
 
-        text = comparison_to_json(cmp)
-        if json_out == "-":
-            click.echo(text, nl=False)
-        else:
-            from routeplan.export.atomic import write_text_atomic
-
-            write_text_atomic(json_out, text)
-            echo_err(f"wrote {json_out}")
+        write_text_output(comparison_to_json(cmp), json_out)
     if xlsx_out is not None:
         from routeplan.export.compare_out import write_comparison_xlsx
 

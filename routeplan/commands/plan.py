@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import caution_line, echo_err, echo_warnings
+from routeplan.commands.common import caution_line, echo_err, echo_warnings, write_text_output
 
 
 @click.command("plan")
@@ -41,18 +41,10 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     if strict and plan.warnings:
         raise RouteError([p.__class__("error", p.message, p.location, p.step, p.hint) for p in plan.warnings],
                          file=route)
-    echo_warnings(plan.warnings)
     if json_out is not None:
         from routeplan.export.json import plan_to_json
 
-        text = plan_to_json(plan)
-        if json_out == "-":
-            click.echo(text, nl=False)
-        else:
-            from routeplan.export.atomic import write_text_atomic
-
-            write_text_atomic(json_out, text)
-            echo_err(f"wrote {json_out}")
+        write_text_output(plan_to_json(plan), json_out)
     if xlsx_out is not None:
         from routeplan.export.workbook import write_workbook
 
@@ -63,14 +55,15 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
 
         for path in write_csv(plan, csv_dir):
             echo_err(f"wrote {path}")
-    if json_out == "-":
+    if json_out == "-" or quiet:
+        echo_warnings(plan.warnings)
         echo_err(caution_line())
-    elif not quiet:
+    else:
         from routeplan.export.terminal import print_plan
 
-        print_plan(plan)
-    else:
-        echo_err(caution_line())
+        print_plan(plan, caution=False)
+        echo_warnings(plan.warnings)  # after the tables, where the reader is
+        click.echo(caution_line())
 
 
 def register(cli: click.Group) -> None:

@@ -42,12 +42,7 @@ def _step_table(sp, route) -> Table:
     vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
     nu, nf = column_unit([r["mol"] for r in rows], "amount")
     per_batch = sp.batches > 1
-    title = f"{sp.id} · {sp.name}" if sp.name and sp.name != sp.id else sp.id
-    caption = f"{sp.equation}   yield {sp.yield_:.0%}"
-    if not sp.isolated:
-        caption += "   telescoped (product goes on in solution)"
-    t = Table(title=escape(title + "   " + caption), box=box.SIMPLE_HEAD, title_justify="left",
-              pad_edge=False, title_style="bold")
+    t = Table(box=box.SIMPLE_HEAD, pad_edge=False)
     t.add_column("#", justify="right")
     t.add_column("material")
     t.add_column("role")
@@ -93,7 +88,8 @@ def _raw_table(plan) -> Table:
     mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
     vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
     cur = plan.route.currency
-    t = Table(title="Raw materials to charge, whole campaign", box=box.SIMPLE_HEAD, title_justify="left")
+    t = Table(title="[bold]Raw materials to charge, whole campaign[/bold]", box=box.SIMPLE_HEAD,
+              title_justify="left", pad_edge=False)
     t.add_column("material")
     t.add_column(escape(f"mass [{mu}]"), justify="right")
     t.add_column(escape(f"volume [{vu}]"), justify="right")
@@ -106,19 +102,27 @@ def _raw_table(plan) -> Table:
     return t
 
 
-def print_plan(plan: "Plan", *, console: Console | None = None) -> None:
-    """Print the plan to the terminal (standard output by default)."""
+def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = True) -> None:
+    """Print the plan to the terminal (standard output by default).
+
+    With ``caution=False`` the caller prints the safety caution itself (the command line
+    prints the warnings first, then the caution).
+    """
     from routeplan import CAUTION
 
     con = console or Console()
     if console is None and not con.is_terminal:
         con = Console(width=120)  # piped to a file: no need to squeeze into 80 columns
     tm = plan.target_mass.m_as("kg")
-    con.print("n: amount of the compound, m: mass and V: volume as charged; "
-              "(S1) after a material: made in step S1")
     con.print(f"[bold]{escape(plan.route.name)}[/bold]: {fmt(tm)} kg of {escape(plan.target_material)} "
               f"({fmt(plan.target_mol.m_as('mol'))} mol), {len(plan.steps)} steps")
+    con.print("[dim]n:  amount of the compound, m: mass and V: volume as charged; "
+              "(S1) after a material: made in step S1[/dim]")
+    con.print()
     for sp in plan.steps:
+        title = f"{sp.id} · {sp.name}" if sp.name and sp.name != sp.id else sp.id
+        con.print(f"[bold]{escape(title)}[/bold]   {escape(sp.equation)}   yield {sp.yield_:.0%}"
+                  + ("   [italic]telescoped: the product goes on in solution[/italic]" if not sp.isolated else ""))
         con.print(_step_table(sp, plan.route))
         con.print(escape(_step_footer(sp)))
         con.print()
@@ -137,4 +141,5 @@ def print_plan(plan: "Plan", *, console: Console | None = None) -> None:
         for line in stock_lines(plan):
             con.print(escape(line))
     con.print()
-    con.print(f"[bold]CAUTION[/bold]: {CAUTION}")
+    if caution:
+        con.print(f"[bold]CAUTION[/bold]: {CAUTION}")

@@ -113,7 +113,7 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
                 warnings.append(Problem(
                     "warning",
                     f"step {sp.id}: a batch charges {per_batch:.4g} kg of {sp.limiting}, "
-                    f"{per_batch / shown:.0f} times the largest batch run so far ({shown:.4g} kg)",
+                    f"{per_batch / shown:.3g} times the largest batch run so far ({shown:.4g} kg)",
                     location=step.location, step=sp.id,
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
         bp = BatchPlan(batches=batches, step_volume=volume, batch_volume=volume / batches,
