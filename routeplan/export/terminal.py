@@ -116,7 +116,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
     tm = plan.target_mass.m_as("kg")
     con.print(f"[bold]{escape(plan.route.name)}[/bold]: {fmt(tm)} kg of {escape(plan.target_material)} "
               f"({fmt(plan.target_mol.m_as('mol'))} mol), {len(plan.steps)} steps")
-    con.print("[dim]n:  amount of the compound, m: mass and V: volume as charged; "
+    con.print("[dim]n: amount of the compound, m: mass and V: volume as charged; "
               "(S1) after a material: made in step S1[/dim]")
     con.print()
     for sp in plan.steps:
