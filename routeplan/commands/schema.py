@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import echo_err
+from routeplan.commands.common import write_text_output
 
 
 @click.command("schema")
@@ -22,20 +22,9 @@ def schema_cmd(output: str | None) -> None:
     The schema checks shape and spelling only; run 'routeplan check' for units,
     references and chemistry.
     """
-    from routeplan.errors import Location, OutputError
     from routeplan.route.jsonschema import route_json_schema_text
 
-    text = route_json_schema_text()
-    if output is None or output == "-":
-        click.echo(text, nl=False)
-        return
-    try:
-        with open(output, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
-    except OSError as exc:
-        raise OutputError(f"cannot write the schema: {exc.strerror or exc}",
-                          location=Location(file=output)) from None
-    echo_err(f"wrote {output}")
+    write_text_output(route_json_schema_text(), output or "-")
 
 
 def register(cli: click.Group) -> None:

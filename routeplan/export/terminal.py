@@ -115,7 +115,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
         con = Console(width=120)  # piped to a file: no need to squeeze into 80 columns
     tm = plan.target_mass.m_as("kg")
     con.print(f"[bold]{escape(plan.route.name)}[/bold]: {fmt(tm)} kg of {escape(plan.target_material)} "
-              f"({fmt(plan.target_mol.m_as('mol'))} mol), {len(plan.steps)} steps")
+              f"({fmt(plan.target_mol.m_as('mol'))} mol), {len(plan.steps)} step{'s' if len(plan.steps) != 1 else ''}")
     con.print("[dim]n: amount of the compound, m: mass and V: volume as charged; "
               "(S1) after a material: made in step S1[/dim]")
     con.print()
