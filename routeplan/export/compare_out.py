@@ -135,7 +135,9 @@ def print_comparison(cmp: "Comparison", *, console: "Console | None" = None) -> 
 
     from routeplan import CAUTION
 
-    con = console or Console()
+    from routeplan.export.terminal import make_console
+
+    con = console or make_console()
     title = (f"Routes to {escape(cmp.target_material)}, each planned for "
              f"{display_quantity(cmp.amount, 'mass')} (before overage)")
     t = Table(title=title, box=box.SIMPLE_HEAD, title_justify="left")

@@ -18,7 +18,13 @@ from routeplan.export.tables import column_unit, raw_material_rows, step_charge_
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
 
-__all__ = ["print_plan", "fmt"]
+__all__ = ["print_plan", "fmt", "make_console"]
+
+
+def make_console() -> Console:
+    """A console for standard output; 120 columns when piped to a file (no need to squeeze)."""
+    con = Console()
+    return con if con.is_terminal else Console(width=120)
 
 
 def fmt(value: float | None, digits: int = 4) -> str:
@@ -110,9 +116,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
     """
     from routeplan import CAUTION
 
-    con = console or Console()
-    if console is None and not con.is_terminal:
-        con = Console(width=120)  # piped to a file: no need to squeeze into 80 columns
+    con = console or make_console()
     tm = plan.target_mass.m_as("kg")
     con.print(f"[bold]{escape(plan.route.name)}[/bold]: {fmt(tm)} kg of {escape(plan.target_material)} "
               f"({fmt(plan.target_mol.m_as('mol'))} mol), {len(plan.steps)} step{'s' if len(plan.steps) != 1 else ''}")
