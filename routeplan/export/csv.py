@@ -125,6 +125,8 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
     from routeplan.export.workbook import written_text
 
     out_dir = Path(folder)
+    if out_dir.exists() and not out_dir.is_dir():
+        raise OutputError(f"'{out_dir}' is a file, not a folder", hint="give --csv a folder name")
     try:
         out_dir.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
