@@ -168,3 +168,27 @@ def test_demands_on_an_intermediate_add_up():
     n_i = n_i_direct + n_i_for_j
     assert math.isclose(plan.step("S1").product_mol.m_as("mol"), n_i, rel_tol=1e-12)
     assert math.isclose(plan.raw_materials[0].mol.m_as("mol"), n_i / 0.5, rel_tol=1e-12)
+
+
+RANGES = """
+route: yield ranges
+target: {material: C, amount: 1 kg}
+materials:
+  A: {molar_mass: 100 g/mol}
+  B: {molar_mass: 100 g/mol}
+  C: {molar_mass: 100 g/mol}
+steps:
+  - {id: S1, equation: A -> B, yield: {expected: 80 %, low: 70 %, high: 90 %}}
+  - {id: S2, equation: B -> C, yield: 50 %}
+"""
+
+
+def test_overall_yield_range():
+    plan = plan_route(load_route_text(RANGES, "ranges.yaml"))
+    oy = plan.overall_yield
+    # expected 0.80 * 0.50 = 0.40; low 0.70 * 0.50 = 0.35; high 0.90 * 0.50 = 0.45 (S2 has no range)
+    assert math.isclose(oy.yield_, 0.40)
+    assert math.isclose(oy.low, 0.35)
+    assert math.isclose(oy.high, 0.45)
+    doc = plan.to_dict()["overall_yield"]
+    assert doc["low"] == pytest.approx(0.35) and doc["high"] == pytest.approx(0.45)

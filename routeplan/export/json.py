@@ -78,6 +78,8 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
         "overall_yield": {
             "longest_linear_sequence": list(plan.overall_yield.longest_linear_sequence),
             "yield": plan.overall_yield.yield_,
+            "low": plan.overall_yield.low,
+            "high": plan.overall_yield.high,
             "by_raw_material": dict(plan.overall_yield.by_raw_material),
         },
         "currency": route.currency,

@@ -133,7 +133,9 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
     con.print(_raw_table(plan))
     oy = plan.overall_yield
     con.print(escape(f"Overall yield along the longest linear sequence "
-              f"({' -> '.join(oy.longest_linear_sequence)}): {oy.yield_:.1%}"))
+              f"({' -> '.join(oy.longest_linear_sequence)}): {oy.yield_:.1%}"
+                     + (f" (from {oy.low:.1%} to {oy.high:.1%} with the steps' low and high yields)"
+                        if oy.low is not None and (oy.low, oy.high) != (oy.yield_, oy.yield_) else "")))
     for key, y in oy.by_raw_material.items():
         con.print(escape(f"  from {key}: {y:.1%}"))
     if plan.metrics is not None:

@@ -207,11 +207,16 @@ class OverallYield:
     by_raw_material : Mapping[str, float]
         For each bought reactant of an equation: moles of target per mole charged,
         divided by the theoretical (stoichiometric) ratio along its path [-].
+    low, high : float
+        The same product over the steps' ``low`` and ``high`` yields, where a step gives
+        them (its expected yield where it does not) [-].
     """
 
     longest_linear_sequence: tuple[str, ...]
     yield_: float
     by_raw_material: Mapping[str, float] = field(default_factory=dict)
+    low: float | None = None
+    high: float | None = None
 
 
 @dataclass(frozen=True)

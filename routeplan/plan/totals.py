@@ -83,7 +83,8 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: "pint
     """Overall yield along the longest linear sequence, and from each raw reactant.
 
     The yield along the longest linear sequence is the product of its expected step
-    yields [-].  The yield from a bought reactant ``R`` is
+    yields [-]; ``low`` and ``high`` are the products of the steps' low and high yields
+    (the expected yield of a step that gives no range).  The yield from a bought reactant ``R`` is
     ``n_target * sum(1 / f_i) / sum(n_i)`` [-], with ``n_i`` the moles of ``R`` charged
     in each step that uses it and ``f_i`` the theoretical moles of target per mole of
     ``R`` there (:func:`stoichiometric_factor`); for one use, ``(n_target / n_R) / f_R``.
@@ -93,10 +94,13 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: "pint
     from routeplan.route.graph import longest_linear_sequence
 
     lls = tuple(longest_linear_sequence(route))
-    y = 1.0
+    y = low = high = 1.0
     by_step = {sp.id: sp for sp in steps}
     for sid in lls:
         y *= by_step[sid].yield_
+        step_yield = route.step(sid).yield_
+        low *= step_yield.low if step_yield.low is not None else step_yield.expected
+        high *= step_yield.high if step_yield.high is not None else step_yield.expected
     memo: dict = {}
     sum_n: dict[str, float] = {}
     sum_inv_f: dict[str, float] = {}
@@ -113,4 +117,4 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: "pint
                 sum_inv_f[c.material] = sum_inv_f.get(c.material, 0.0) + 1.0 / f
     # used in several steps, the theoretical need is n_t * sum(1/f_i) mol
     per_raw = {k: n_t * sum_inv_f[k] / n for k, n in sum_n.items() if n > 0}
-    return OverallYield(longest_linear_sequence=lls, yield_=y, by_raw_material=per_raw)
+    return OverallYield(longest_linear_sequence=lls, yield_=y, by_raw_material=per_raw, low=low, high=high)
