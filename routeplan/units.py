@@ -124,7 +124,7 @@ def parse_quantity(text: Any, dimension: str, *, where: Location | None = None) 
         raise QuantityError(f"expected {expect}, got {text!r}", location=where)
     if isinstance(text, (int, float)):
         raise QuantityError(
-            f"{text!r} has no unit; expected {expect}",
+            f"{text!r} has no unit; {_article(dimension)} needs one",
             location=where,
             hint=f"write it with its unit, e.g. '{text} {example.split()[1]}'",
         )
@@ -140,9 +140,9 @@ def parse_quantity(text: Any, dimension: str, *, where: Location | None = None) 
     unit = m.group("unit")
     if not unit:
         raise QuantityError(
-            f"'{text}' has no unit; expected {expect}",
+            f"'{text}' has no unit; {_article(dimension)} needs one",
             location=where,
-            hint=f"write e.g. '{m.group('num')} {example.split()[1]}'",
+            hint=f"write it with its unit, e.g. '{m.group('num')} {example.split()[1]}'",
         )
     ureg = registry()
     try:
