@@ -156,3 +156,48 @@ def test_pandas_reads_numbers(out):
     frame = pd.read_csv(paths[2])
     assert frame["mass [kg]"].dtype.kind == "f"
     assert frame["made in route"].dtype.kind == "b"
+
+
+# --- stock.csv ---------------------------------------------------------------------------
+
+
+@pytest.fixture(scope="module")
+def stock_out(tmp_path_factory):
+    from test_workbook_summary import make_stock_plan
+
+    plan = make_stock_plan()
+    folder = tmp_path_factory.mktemp("csv-stock")
+    return plan, folder, write_csv(plan, folder, written=WRITTEN)
+
+
+def test_stock_csv_equals_plan_stock(stock_out):
+    plan, folder, paths = stock_out
+    assert paths[-1] == folder / "stock.csv"
+    s = plan.stock
+    to_buy = {k: m.m_as("kg") for k, m in s.to_buy}
+    rows = read(folder / "stock.csv")
+    assert list(rows[0]) == ["key", "material", "need [kg]", "on hand [kg]", "to buy [kg]", "stock"]
+    assert [r["key"] for r in rows] == [r.material for r in plan.raw_materials]
+    for row, raw in zip(rows, plan.raw_materials):
+        have = s.on_hand.get(raw.material)
+        assert close(num(row["need [kg]"]), raw.mass.m_as("kg"))
+        assert close(num(row["on hand [kg]"]), None if have is None else have.m_as("kg"))
+        assert close(num(row["to buy [kg]"]), to_buy.get(raw.material, 0.0))
+        assert (row["stock"] == "not in stock") == (have is None)
+    ki = next(r for r in rows if r["key"] == "KI")
+    assert ki["material"] == "'=HYPERLINK(\"http://x\")"  # neutralised like the other files
+
+
+def test_summary_csv_says_what_the_stock_allows(stock_out):
+    plan, folder, _paths = stock_out
+    rows = {r["item"]: r for r in read(folder / "summary.csv")}
+    assert close(float(rows["largest target the stock allows"]["value"]), plan.stock.max_target.m_as("kg"))
+    assert rows["largest target the stock allows"]["unit"] == "kg"
+    assert rows["limited by"]["value"] == plan.stock.limited_by
+    items = list(rows)
+    assert items.index("limited by") < items.index("caution")
+
+
+def test_no_stock_csv_without_stock(out):
+    folder, _paths = out
+    assert not (folder / "stock.csv").exists()

@@ -14,10 +14,18 @@ own results, read back with openpyxl (``data_only=True``).
 * Lot assays typed into a copy (with openpyxl, as a person would in the plant) raise
   the mass to charge by planned assay / lot assay, and the solvent linked to the
   limiting reagent with it; charges that do not depend on them stay.
+* The stock table's ``to buy = MAX(0, need - on hand)`` recalculates to the Plan's
+  masses to buy, and follows an on-hand mass typed into a copy.
+
+The printed charge sheets are checked in a second, separate run (``--convert-to pdf``,
+read with ``pdftotext -bbox`` from poppler): each sheet's table prints on one page
+wide, without the reference columns, at a scale measured from the printed positions of
+two column headings of 80 % or more (so 10-pt text prints at 8 pt or larger).
 """
 
 from __future__ import annotations
 
+import re
 import shutil
 import subprocess
 from pathlib import Path
@@ -28,6 +36,7 @@ import pytest
 
 from routeplan.export.workbook import charge_sheet_names, write_workbook
 from test_workbook import WRITTEN, _raw_table, charge_table, close, make_plan
+from test_workbook_summary import column_widths, make_stock_plan, printed_px, stock_table
 
 pytestmark = pytest.mark.slow
 
@@ -50,13 +59,18 @@ LOTS = [
 ]
 
 
-def _run_soffice(files: list[Path], out: Path, profile: Path) -> None:
+# On-hand masses typed in a copy of the stock workbook: material -> mass [kg]
+ON_HAND_TYPED = {"bromoester": 3.0,   # was short (it limited the target): now nothing to buy
+                 "water": 5.0}        # was not in stock: now bought less by 5 kg
+
+
+def _run_soffice(files: list[Path], out: Path, profile: Path, to: str = "xlsx") -> None:
     (profile / "user").mkdir(parents=True)
     (profile / "user" / "registrymodifications.xcu").write_text(_PROFILE_SETTINGS, encoding="utf-8")
     cmd = [SOFFICE, f"-env:UserInstallation={profile.as_uri()}", "--headless", "--norestore",
-           "--convert-to", "xlsx", "--outdir", str(out), *map(str, files)]
+           "--convert-to", to, "--outdir", str(out), *map(str, files)]
     done = subprocess.run(cmd, capture_output=True, text=True, timeout=180)
-    missing = [f.name for f in files if not (out / f.name).is_file()]
+    missing = [f.name for f in files if not (out / f.with_suffix("." + to).name).is_file()]
     assert not missing, f"soffice did not convert {missing}: {done.stdout}\n{done.stderr}"
 
 
@@ -91,6 +105,19 @@ def recalc(tmp_path_factory):
         ws.cell(r, col["lot assay [%]"]).value = value
     wb.save(lots)
 
+    stock_plan = make_stock_plan()
+    stock = src / "stock.xlsx"
+    write_workbook(stock_plan, stock, written=WRITTEN)
+    typed = src / "stock-typed.xlsx"
+    wb = openpyxl.load_workbook(stock)
+    ws = wb["Summary"]
+    _h, col, rows = stock_table(ws)
+    for r in rows:
+        key = ws.cell(r, col["key"]).value
+        if key in ON_HAND_TYPED:
+            ws.cell(r, col["on hand [kg]"]).value = ON_HAND_TYPED[key]
+    wb.save(typed)
+
     canary = src / "canary.xlsx"
     cw = xlsxwriter.Workbook(str(canary))
     sheet = cw.add_worksheet("c")
@@ -98,9 +125,11 @@ def recalc(tmp_path_factory):
     sheet.write_formula(0, 1, "=A1*3", None, 999)
     cw.close()
 
-    _run_soffice([original, lots, canary], out, base / "profile")
+    _run_soffice([original, lots, stock, typed, canary], out, base / "profile")
     return SimpleNamespace(
-        plan=plan, names=names,
+        plan=plan, names=names, stock_plan=stock_plan,
+        stock=openpyxl.load_workbook(out / "stock.xlsx", data_only=True),
+        typed=openpyxl.load_workbook(out / "stock-typed.xlsx", data_only=True),
         planned=openpyxl.load_workbook(out / "plan.xlsx", data_only=True),
         lots=openpyxl.load_workbook(out / "lots.xlsx", data_only=True),
         canary=openpyxl.load_workbook(out / "canary.xlsx", data_only=True),
@@ -192,3 +221,79 @@ def test_a_lower_lot_assay_raises_the_charge(recalc):
         m, v = _mass_volume(last, material)
         pm, pv = planned(3, material)
         assert close(m, pm) and close(v, pv), material
+
+
+# --- stock --------------------------------------------------------------------------
+
+
+def _to_buy(book):
+    ws = book["Summary"]
+    _h, col, rows = stock_table(ws)
+    return {ws.cell(r, col["key"]).value: ws.cell(r, col["to buy [kg]"]).value for r in rows}
+
+
+def test_recalculated_to_buy_equals_the_plan(recalc):
+    plan = recalc.stock_plan
+    to_buy = {k: m.m_as("kg") for k, m in plan.stock.to_buy}
+    got = _to_buy(recalc.stock)
+    assert list(got) == [r.material for r in plan.raw_materials]
+    for key, value in got.items():
+        assert close(value, to_buy.get(key, 0.0)), key
+    assert got["water"] > 0 and got["aminophenol"] == 0  # not in stock; in stock, enough
+
+
+def test_to_buy_follows_a_typed_on_hand_mass(recalc):
+    plan = recalc.stock_plan
+    to_buy = {k: m.m_as("kg") for k, m in plan.stock.to_buy}
+    need = {r.material: r.mass.m_as("kg") for r in plan.raw_materials}
+    got = _to_buy(recalc.typed)
+    assert close(got["bromoester"], 0.0)  # 3 kg on hand covers the need now
+    assert close(got["water"], need["water"] - 5.0)
+    for key, value in got.items():
+        if key not in ON_HAND_TYPED:
+            assert close(value, to_buy.get(key, 0.0)), key
+
+
+# --- printed charge sheets ---------------------------------------------------------------
+
+_WORD = re.compile(r'<word xMin="([-\d.]+)" yMin="([-\d.]+)" xMax="[-\d.]+" yMax="[-\d.]+">([^<]*)</word>')
+
+
+@pytest.fixture(scope="module")
+def printed(tmp_path_factory):
+    """The workbook of :func:`make_plan` printed to PDF by LibreOffice, as words with
+    their positions per page [pt]."""
+    if SOFFICE is None or shutil.which("pdftotext") is None:
+        pytest.skip("LibreOffice (soffice) and pdftotext (poppler-utils) are needed to print")
+    base = tmp_path_factory.mktemp("print")
+    out = base / "out"
+    plan = make_plan()
+    book = base / "plan.xlsx"
+    write_workbook(plan, book, written=WRITTEN)
+    _run_soffice([book], out, base / "profile", to="pdf")
+    xml = subprocess.run(["pdftotext", "-bbox", str(out / "plan.pdf"), "-"], capture_output=True,
+                         text=True, check=True).stdout
+    pages = [[(float(x), float(y), w) for x, y, w in _WORD.findall(page)] for page in xml.split("<page ")[1:]]
+    return SimpleNamespace(plan=plan, pages=pages, workbook=openpyxl.load_workbook(book))
+
+
+def test_charge_sheets_print_one_page_wide_at_8_pt_or_more(printed):
+    names = charge_sheet_names(printed.plan)
+    sheets = [p for p in printed.pages if any(w == "Sign-off" for _x, _y, w in p)]
+    assert len(sheets) == len(names)  # each charge sheet of this route fits on one page
+    for page, (_sp, _k, name) in zip(sheets, names):
+        words = [w for _x, _y, w in page]
+        for heading in ("#", "material", "hazards", "lot", "actual", "checked"):
+            assert heading in words, (name, heading)
+        for reference in ("molar", "concentration", "key"):  # right of the print area
+            assert reference not in words, (name, reference)
+        # scale = printed distance from the "#" heading to the "lot number" heading over
+        # the same distance at 100 % (the widths of columns A to K, 0.75 pt per px)
+        ws = printed.workbook[name]
+        h, col, _rows = charge_table(ws)
+        widths = column_widths(ws)
+        nominal = 0.75 * sum(printed_px(widths[c]) for c in range(1, col["lot number"]))
+        hash_x, hash_y = next((x, y) for x, y, w in page if w == "#")
+        lot_x = min(x for x, y, w in page if w == "lot" and abs(y - hash_y) < 12)
+        scale = (lot_x - hash_x) / nominal
+        assert 0.80 <= scale <= 1.0, (name, scale)

@@ -13,6 +13,11 @@ Files written into ``DIR`` (made if missing), each atomically:
     bought materials totalled over the route, with price and cost.
 ``materials.csv``
     every material of the route.
+``stock.csv``
+    only when the plan has a stock comparison (``plan.stock``): per raw material, the
+    need, the mass on hand (empty when not in stock) and the mass to buy [kg], and
+    whether it is in stock.  ``summary.csv`` then also says the largest target the
+    stock allows and the material that limits it.
 
 Numbers are written in full precision in the units of the headings (mol, kg, L, g/mol,
 g/mL; fractions from 0 to 1 where the heading says ``[%]`` or ``[-]``); an empty field
@@ -31,9 +36,8 @@ from datetime import datetime
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, Iterable, Sequence
 
-from routeplan.export.tables import (CHARGE_COLUMNS, STEP_COLUMNS, SUMMARY_COLUMNS, Column,
-                                     material_columns, material_rows, raw_export_columns, raw_export_rows,
-                                     step_charge_rows, step_rows, summary_rows)
+from routeplan.export.tables import CHARGE_COLUMNS, Column, step_charge_rows
+from routeplan.export.sheet_rows import STEP_COLUMNS, STOCK_COLUMNS, SUMMARY_COLUMNS, material_columns, material_rows, raw_export_columns, raw_export_rows, step_rows, stock_rows, stock_summary_rows, summary_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -132,7 +136,10 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
     except OSError as exc:
         raise OutputError(f"cannot make folder '{out_dir}': {exc.strerror}") from None
     when = written or datetime.now().astimezone()
-    summary = [{k: row[k] for k in ("item", "value", "unit")} for row in summary_rows(plan, written_text(when))]
+    facts = summary_rows(plan, written_text(when))
+    at = next((i for i, row in enumerate(facts) if row["key"] == "caution"), len(facts))
+    facts[at:at] = stock_summary_rows(plan)  # before the caution and the warnings
+    summary = [{k: row[k] for k in ("item", "value", "unit")} for row in facts]
     paths = [
         write_table(out_dir / "summary.csv", SUMMARY_COLUMNS, summary),
         write_table(out_dir / "steps.csv", STEP_COLUMNS, step_rows(plan)),
@@ -141,4 +148,6 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
         paths.append(write_table(out_dir / step_file_name(i, sp.id), CHARGE_COLUMNS, step_charge_rows(sp)))
     paths.append(write_table(out_dir / "raw-materials.csv", raw_export_columns(plan), raw_export_rows(plan)))
     paths.append(write_table(out_dir / "materials.csv", material_columns(plan), material_rows(plan)))
+    if plan.stock is not None:
+        paths.append(write_table(out_dir / "stock.csv", STOCK_COLUMNS, stock_rows(plan)))
     return paths

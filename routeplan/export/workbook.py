@@ -4,11 +4,15 @@ Sheets, in order:
 
 ``Summary``
     Route, target, overall yield, the route file's name and SHA-256, the date, the
-    caution, a line per step (batches, fill, yield, product), the raw-material totals
-    (mass, volume, amount, price, cost, with a live total) and the warnings.
+    caution, the route metrics (PMI, E-factors, cost per kg of target), a line per
+    step (batches, fill, yield, product, step metrics), the raw-material totals (mass,
+    volume, amount, price, cost, with a live total), the stock comparison when the plan
+    has one (with ``to buy`` as a live formula) and the warnings; see
+    :mod:`routeplan.export.workbook_summary`.
 one charge sheet per step and batch
     Named after the step id (``S1``, or ``S1 batch 2 of 3``), made valid and unique;
-    see :mod:`routeplan.export.workbook_charges` for the layout and the live formulas.
+    see :mod:`routeplan.export.workbook_charges` for the layout, the print area and the
+    live formulas.
 ``Materials``
     Every material of the route: formula, molar mass, assay, density, solution data,
     price, hazards.

@@ -5,6 +5,14 @@ Layout (rows from the top): title with "batch k of n", the caution, a header blo
 route file and its SHA-256, notes), then the charge table — one row per charge in
 order of addition — and a short sign-off block under it.
 
+Columns of the charge table, from A: the planned columns the plant reads
+(:data:`PRINTED_COLUMNS`: order, material, role, basis, equiv, amount, planned assay,
+mass and volume to charge, hazards), the plant's fill-in columns, and then, outside the
+print area, the material data the formulas read (:data:`REFERENCE_COLUMNS`: key, molar
+mass, concentration, density).  Column widths are capped (:data:`WIDTH_BOUNDS`) and
+long text wraps, so the print area fitted to one landscape page wide prints at about
+80 % or more on Letter or A4: 10-pt text at 8 pt or larger (:data:`PRINT_BUDGET_PX`).
+
 The live formulas (``r`` is the row of the charge, ``lim`` the row of the limiting
 reagent in the same sheet):
 
@@ -32,18 +40,25 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from routeplan.export.tables import BATCH_COLUMNS, Column, batch_charge_rows
-from routeplan.export.workbook_styles import Styles, escape_header, put, set_widths, sheet_title
+from routeplan.export.tables import Column
+from routeplan.export.sheet_rows import BATCH_COLUMNS, batch_charge_rows
+from routeplan.export.workbook_styles import (Styles, escape_header, fit_widths, lines_height, put, sheet_title,
+                                              wrapped_lines)
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
 
 __all__ = [
     "FILL_IN_COLUMNS",
+    "PRINTED_COLUMNS",
+    "REFERENCE_COLUMNS",
     "SHEET_COLUMNS",
     "COL",
     "TABLE_HEADING_ROW",
     "LAST_COLUMN",
+    "PRINT_LAST_COLUMN",
+    "WIDTH_BOUNDS",
+    "PRINT_BUDGET_PX",
     "write_charge_sheet",
     "charge_formulas",
     "page_texts",
@@ -57,8 +72,19 @@ FILL_IN_COLUMNS = (
     Column("checked_by", "checked by"),
 )
 
+_BY_KEY = {c.key: c for c in BATCH_COLUMNS}
+
+#: Planned columns that are printed, from column A: what the plant charges and how much.
+PRINTED_COLUMNS = tuple(_BY_KEY[k] for k in (
+    "order", "name", "role", "basis", "basis_value", "equiv", "mol", "assay", "mass_kg", "volume_L",
+    "hazards"))
+
+#: Columns right of the fill-in columns, outside the print area: the material data
+#: the formulas read, for checking on screen.
+REFERENCE_COLUMNS = tuple(_BY_KEY[k] for k in ("material", "molar_mass", "molarity", "density"))
+
 #: Every column of the charge table, in sheet order from column A.
-SHEET_COLUMNS = BATCH_COLUMNS + FILL_IN_COLUMNS
+SHEET_COLUMNS = PRINTED_COLUMNS + FILL_IN_COLUMNS + REFERENCE_COLUMNS
 
 #: Column index (0-based) of each column key.
 COL = {c.key: i for i, c in enumerate(SHEET_COLUMNS)}
@@ -66,13 +92,38 @@ COL = {c.key: i for i, c in enumerate(SHEET_COLUMNS)}
 #: Last column index of the table.
 LAST_COLUMN = len(SHEET_COLUMNS) - 1
 
+#: Last column index of the print area (the last fill-in column).
+PRINT_LAST_COLUMN = COL[FILL_IN_COLUMNS[-1].key]
+
 #: Row index (0-based) of the charge table's headings; charges start on the next row.
 TABLE_HEADING_ROW = 11
 
-# header block: a label over two cells, then a value; two pairs on a line
-_LEFT = (0, 1, 2, 7)       # label first..last, value first..last
-_RIGHT = (8, 11, 12, LAST_COLUMN)
-_WIDE = (0, 1, 2, LAST_COLUMN)
+#: Lowest and highest width of each column [character units]; longer text wraps.  The
+#: highest widths of the printed columns add up to at most :data:`PRINT_BUDGET_PX`.
+WIDTH_BOUNDS = {
+    "order": (4, 4), "name": (12, 17), "role": (10, 14), "basis": (7, 12), "basis_value": (6, 8),
+    "equiv": (6, 8), "mol": (8, 10), "assay": (7, 8), "mass_kg": (9, 10), "volume_L": (9, 10),
+    "hazards": (14, 19), "lot": (12, 12), "lot_assay": (8, 8), "actual_mass_kg": (10, 10),
+    "checked_by": (8, 8), "material": (8, 16), "molar_mass": (9, 10), "molarity": (14, 14),
+    "density": (8, 9),
+}
+
+#: Widest the printed columns may be [px at 100 %] so that, fitted to the width of a
+#: Letter page in landscape (11 in less 0.4 in margins each side, 96 px per inch), the
+#: print scale would be 82 % or more.  LibreOffice was seen to print about 1.5 % below
+#: that estimate, so 10-pt text prints at 8 pt or larger; A4 landscape is wider
+#: (11.69 in) and prints larger still.
+PRINT_BUDGET_PX = (11.0 - 0.8) * 96 / 0.82
+
+# Columns whose text wraps: their line count sets the row's height.
+_TEXT_KEYS = ("name", "role", "basis", "hazards", "material")
+# Lowest height of a charge row [pt]: room to write by hand in the fill-in cells.
+_CHARGE_ROW_HEIGHT = 24.0
+
+# header block: a label over three cells, then a value; two pairs on a line
+_LEFT = (0, 2, 3, 7)       # label first..last, value first..last
+_RIGHT = (8, 10, 11, PRINT_LAST_COLUMN)
+_WIDE = (0, 2, 3, PRINT_LAST_COLUMN)
 
 
 def _cell(row: int, key: str) -> str:
@@ -87,7 +138,7 @@ def charge_formulas(row: dict[str, Any], r: int, lim_row: int | None, lim_mass: 
     Parameters
     ----------
     row : dict
-        A row of :func:`routeplan.export.tables.batch_charge_rows`.
+        A row of :func:`routeplan.export.sheet_rows.batch_charge_rows`.
     r : int
         Its 0-based sheet row.
     lim_row : int or None
@@ -130,15 +181,6 @@ def _role_text(row: dict[str, Any]) -> str:
     return ", ".join(parts)
 
 
-def _pair(ws, st: Styles, r: int, span: tuple[int, int, int, int], label: str, value: Any, fmt=None) -> None:
-    a, b, c, d = span
-    ws.merge_range(r, a, r, b, "", st.label)
-    put(ws, r, a, label, st.label)
-    fmt = fmt or st.value_text
-    ws.merge_range(r, c, r, d, "", fmt)
-    put(ws, r, c, value, fmt)
-
-
 def _vessel_text(plan: "Plan", sp: "StepPlan") -> str:
     if sp.vessel is None:
         return "(none given)"
@@ -171,40 +213,48 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int, con
     -------
     dict
         ``first_row`` and ``last_row`` (0-based) of the charges, and ``rows`` (the
-        rows of :func:`routeplan.export.tables.batch_charge_rows`).
+        rows of :func:`routeplan.export.sheet_rows.batch_charge_rows`).
     """
     from routeplan import CAUTION
 
     n = sp.batches
     rows = batch_charge_rows(plan, sp)
+    widths = _set_widths(ws, rows)
     ws.write_string(0, 0, f"Charge sheet · step {sp.id} · batch {k} of {n}", st.title)
-    ws.merge_range(1, 0, 1, LAST_COLUMN, "", st.caution)
+    ws.merge_range(1, 0, 1, PRINT_LAST_COLUMN, "", st.caution)
     ws.write_string(1, 0, "CAUTION: " + CAUTION, st.caution)
     ws.set_row(1, 28)
-    _pair(ws, st, 2, _LEFT, "step", sp.id)
-    _pair(ws, st, 2, _RIGHT, "batch", f"{k} of {n}")
-    _pair(ws, st, 3, _LEFT, "name", sp.name)
-    _pair(ws, st, 3, _RIGHT, "written", context["written"])
-    _pair(ws, st, 4, _WIDE, "equation", sp.equation)
-    _pair(ws, st, 5, _WIDE, "vessel", _vessel_text(plan, sp))
-    _pair(ws, st, 6, _LEFT, "yield (expected) [%]", sp.yield_, st.value_percent)
+    pair = _Pairs(ws, st, widths)
+    pair(2, _LEFT, "step", sp.id)
+    pair(2, _RIGHT, "batch", f"{k} of {n}")
+    pair(3, _LEFT, "name", sp.name)
+    pair(3, _RIGHT, "written", context["written"])
+    pair(4, _WIDE, "equation", sp.equation)
+    pair(5, _WIDE, "vessel", _vessel_text(plan, sp))
+    pair(6, _LEFT, "yield (expected) [%]", sp.yield_, st.value_percent)
     batch_volume = None if sp.batch is None else float(sp.batch.batch_volume.m_as("L"))
-    _pair(ws, st, 6, _RIGHT, "volume per batch [L]", batch_volume, st.quantity(batch_volume, plain=True))
+    pair(6, _RIGHT, "volume per batch [L]", batch_volume, st.quantity(batch_volume, plain=True))
     lim_mol = float(sp.limiting_mol.m_as("mol")) / n
-    _pair(ws, st, 7, _LEFT, "limiting reagent", sp.limiting)
-    _pair(ws, st, 7, _RIGHT, "limiting reagent per batch [mol]", lim_mol, st.quantity(lim_mol, plain=True))
+    pair(7, _LEFT, "limiting reagent", sp.limiting)
+    pair(7, _RIGHT, "limiting reagent per batch [mol]", lim_mol, st.quantity(lim_mol, plain=True))
     product_kg = float(sp.product_mass.m_as("kg")) / n
     made = "as isolated" if sp.isolated else "in solution, goes on to the next step"
-    _pair(ws, st, 8, _LEFT, "product", f"{sp.product}, {made}")
-    _pair(ws, st, 8, _RIGHT, "product per batch [kg]", product_kg, st.quantity(product_kg, plain=True))
-    _pair(ws, st, 9, _WIDE, "route", context["route_line"])
-    _pair(ws, st, 10, _WIDE, "notes", sp.notes or "")
+    pair(8, _LEFT, "product", f"{sp.product}, {made}")
+    pair(8, _RIGHT, "product per batch [kg]", product_kg, st.quantity(product_kg, plain=True))
+    pair(9, _WIDE, "route", context["route_line"])
+    pair(10, _WIDE, "notes", sp.notes or "")
+    pair.set_heights()
 
     h = TABLE_HEADING_ROW
+    ref = COL[REFERENCE_COLUMNS[0].key]
+    ws.merge_range(h - 1, ref, h - 1, LAST_COLUMN, "", st.ref_note)
+    ws.write_string(h - 1, ref, "material data the formulas read (not printed)", st.ref_note)
+    head_lines = 1
     for i, col in enumerate(SHEET_COLUMNS):
         fmt = st.heading_fill_in if col in FILL_IN_COLUMNS else st.heading
         ws.write_string(h, i, sheet_title(col), fmt)
-    ws.set_row(h, 30)
+        head_lines = max(head_lines, wrapped_lines(sheet_title(col), widths[i], bold=True))
+    ws.set_row(h, lines_height(head_lines, 30))
 
     first = h + 1
     lim_row = next((first + i for i, row in enumerate(rows) if row["limiting"]), None)
@@ -212,6 +262,8 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int, con
     for i, row in enumerate(rows):
         r = first + i
         _write_charge_row(ws, st, row, r, lim_row, lim_mass)
+        lines = max(wrapped_lines(_text_of(row, key), widths[COL[key]]) for key in _TEXT_KEYS)
+        ws.set_row(r, lines_height(lines, _CHARGE_ROW_HEIGHT))
     last = first + len(rows) - 1
 
     s = last + 2
@@ -221,20 +273,51 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int, con
         r = s + 1 + j
         ws.merge_range(r, 0, r, 2, "", st.label)
         put(ws, r, 0, label, st.label)
-        ws.merge_range(r, 3, r, 7, "", st.fill_text)
-
-    widths = [(sheet_title(c), [row.get(c.key) for row in rows]) for c in BATCH_COLUMNS]
-    widths[COL["role"]] = (sheet_title(SHEET_COLUMNS[COL["role"]]), [_role_text(row) for row in rows])
-    widths += [(sheet_title(c), []) for c in FILL_IN_COLUMNS]
-    fitted = set_widths(ws, widths)
-    # the header block's labels sit over the first two columns
-    ws.set_column(COL["material"], COL["material"], max(16.0, fitted[COL["material"]]))
-    ws.set_column(COL["lot"], COL["lot"], 16)
-    ws.set_column(COL["checked_by"], COL["checked_by"], 14)
-    ws.set_column(COL["actual_mass_kg"], COL["actual_mass_kg"], 12)
+        ws.merge_range(r, 3, r, COL["hazards"], "", st.fill_sign)
+        ws.set_row(r, 22)
     ws.freeze_panes(h + 1, 0)
-    _page_setup(ws, h, context)
+    _page_setup(ws, h, s + 5, context)
     return {"first_row": first, "last_row": last, "rows": rows}
+
+
+def _text_of(row: dict[str, Any], key: str) -> Any:
+    return _role_text(row) if key == "role" else row.get(key)
+
+
+def _set_widths(ws, rows: list[dict[str, Any]]) -> list[float]:
+    """Fit the columns to the headings and this batch's values, within :data:`WIDTH_BOUNDS`."""
+    specs = []
+    for col in SHEET_COLUMNS:
+        values = [] if col in FILL_IN_COLUMNS else [_text_of(row, col.key) for row in rows]
+        if col.key == "basis":  # our own short words: wrap between them ("volumes" / "[L/kg]")
+            values = [w for v in values for w in v.split()]
+        specs.append((sheet_title(col), values, *WIDTH_BOUNDS[col.key]))
+    return fit_widths(ws, specs)
+
+
+class _Pairs:
+    """Writes the header block's label-value pairs and then sizes each row to its
+    longest wrapped value."""
+
+    def __init__(self, ws, st: Styles, widths: list[float]) -> None:
+        self.ws, self.st, self.widths = ws, st, widths
+        self.lines: dict[int, int] = {}
+
+    def __call__(self, r: int, span: tuple[int, int, int, int], label: str, value: Any, fmt=None) -> None:
+        a, b, c, d = span
+        ws, st = self.ws, self.st
+        ws.merge_range(r, a, r, b, "", st.label)
+        put(ws, r, a, label, st.label)
+        fmt = fmt or st.value_text
+        ws.merge_range(r, c, r, d, "", fmt)
+        put(ws, r, c, value, fmt)
+        lines = wrapped_lines(value, sum(self.widths[c:d + 1]), columns=d - c + 1)
+        self.lines[r] = max(self.lines.get(r, 1), lines)
+
+    def set_heights(self) -> None:
+        for r, lines in self.lines.items():
+            if lines > 1:
+                self.ws.set_row(r, lines_height(lines))
 
 
 def _write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int | None, lim_mass: float) -> None:
@@ -292,8 +375,11 @@ def _write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int 
     put(ws, r, COL["checked_by"], None, st.fill_text)
 
 
-def _page_setup(ws, heading_row: int, context: dict[str, str]) -> None:
+def _page_setup(ws, heading_row: int, last_row: int, context: dict[str, str]) -> None:
+    """Landscape, the printed columns (A to the last fill-in column) fitted to one page
+    wide, headings repeated on every page."""
     ws.set_landscape()
+    ws.print_area(0, 0, last_row, PRINT_LAST_COLUMN)
     ws.fit_to_pages(1, 0)
     ws.repeat_rows(heading_row)
     ws.set_margins(left=0.4, right=0.4, top=0.7, bottom=0.7)

@@ -20,6 +20,11 @@ __all__ = [
     "escape_header",
     "PERCENT_KEYS",
     "sheet_title",
+    "LINE_HEIGHT",
+    "px_width",
+    "wrapped_lines",
+    "lines_height",
+    "fit_widths",
 ]
 
 #: Options of every workbook routeplan writes: strings stay strings.
@@ -40,7 +45,12 @@ _BORDER_COLOUR = "#9AA7B1"
 
 
 #: Columns holding fractions (0 to 1) that sheets show as percent.
-PERCENT_KEYS = frozenset({"assay", "lot_assay", "fill_fraction", "yield", "solution_mass_fraction"})
+PERCENT_KEYS = frozenset({"assay", "lot_assay", "fill_fraction", "yield", "solution_mass_fraction",
+                          "atom_economy", "rme"})
+
+#: Height of one line of 10-pt text in a row [pt] (a spreadsheet's default row for a
+#: 10-11 pt font is about 13-15 pt; common practice, no source).
+LINE_HEIGHT = 13.0
 
 
 def sheet_title(column) -> str:
@@ -114,6 +124,11 @@ class Styles:
         self.value_text = add(text_wrap=True)
         self.value_money = add(num_format="#,##0.00", align="left")
         self.value_int = add(num_format="0", align="left")
+        self.value_ratio = add(num_format="0.0##", align="left")
+        self.note = add(italic=True, text_wrap=True)
+        self.ref_note = add(italic=True, font_size=9)
+        self.fill_sign = add(bg_color=_FILL_IN, border=1, border_color=_BORDER_COLOUR, locked=False,
+                             valign="bottom")
 
     def _make(self, **props):
         merged = dict(self._base)
@@ -199,3 +214,63 @@ def escape_header(text: str, limit: int = 80) -> str:
     if len(text) > limit:
         text = text[: limit - 1] + "…"
     return text.replace("&", "&&")
+
+
+def px_width(width: float) -> int:
+    """Pixels of a column ``width`` [character units] at 100 % zoom, for the default
+    font of an xlsxwriter workbook (Calibri 11, maximum digit width 7 px, padding 5 px):
+    ``int(7 * width + 0.5) + 5`` for a width of 1 or more (the conversion in
+    xlsxwriter's worksheet module)."""
+    if width < 1:
+        return int(width * 12 + 0.5)
+    return int(7 * width + 0.5) + 5
+
+
+def wrapped_lines(value: Any, width: float, *, bold: bool = False, columns: int = 1) -> int:
+    """How many lines ``value`` takes in a wrapping cell ``width`` character units wide
+    (for ``columns`` merged cells, the sum of their widths).
+
+    A cautious guess: a character of 10-pt text is taken as 6 px wide (6.3 px in bold),
+    a little wider than the average of a proportional font at 96 px per inch (about
+    5.5 px), and a word longer than a line is broken.  Numbers take one line.
+    """
+    import textwrap
+
+    if value is None or not isinstance(value, str) or not value:
+        return 1
+    room = 7 * width + 5 * columns - 4  # the cells' pixels less the inner margins
+    per_line = max(1, int(room / (6.3 if bold else 6.0)))
+    return sum(max(1, len(textwrap.wrap(part, per_line, break_long_words=True)))
+               for part in value.splitlines() or [""])
+
+
+def lines_height(lines: int, minimum: float = 0.0) -> float:
+    """Row height [pt] for ``lines`` lines of 10-pt text, at least ``minimum``."""
+    return max(minimum, LINE_HEIGHT * lines + 3.0)
+
+
+def fit_widths(ws, columns: list[tuple[str, list[Any], float, float]]) -> list[float]:
+    """Set each column's width to fit its heading's longest word and its values, between
+    its own bounds; text beyond the upper bound wraps.
+
+    Parameters
+    ----------
+    ws : xlsxwriter worksheet
+    columns : list of (heading, values, lowest, highest)
+        In column order from column A; bounds in character units.
+
+    Returns
+    -------
+    list of float
+        The widths set [character units].
+    """
+    widths = []
+    for i, (heading, values, lowest, highest) in enumerate(columns):
+        longest_word = max((len(w) for w in heading.split()), default=0)
+        words = [len(w) for v in values if isinstance(v, str) for w in v.split()]
+        fit = max([longest_word + 2, max(words, default=0) + 1]
+                  + [text_width(v) + 2 for v in values])
+        width = float(max(lowest, min(highest, fit)))
+        ws.set_column(i, i, width)
+        widths.append(width)
+    return widths

@@ -1,9 +1,14 @@
 """The Summary and Materials sheets of the charge-sheet workbook.
 
-Summary (columns A to H): title, caution, the plan's key facts (route, route file and
-SHA-256, date, target, overall yield, cost), a line per step with the names of its
-charge sheets, the raw-material totals with ``cost = mass * price`` as live formulas
-and their total, and the warnings.
+Summary (columns A to L): title, caution, the plan's key facts (route, route file and
+SHA-256, date, target, overall yield, cost), the route metrics read from
+``plan.metrics`` (process mass intensity, complete and simple E-factor, raw-material
+cost per kg of target and the raw materials without a price), a line per step with the
+names of its charge sheets and the step metrics (step and cumulative PMI, atom economy,
+reaction mass efficiency), the raw-material totals with ``cost = mass * price`` as live
+formulas and their total, the stock comparison when ``plan.stock`` is set (largest
+target the stock allows, the limiting material, and per raw material need, on hand and
+``to buy = MAX(0, need - on hand)`` as a live formula), and the warnings.
 
 Materials: one row per material of the route (:data:`~routeplan.export.tables.MATERIAL_COLUMNS`).
 """
@@ -12,19 +17,18 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from routeplan.export.tables import (Column, material_columns, material_rows, raw_export_columns,
-                                     raw_export_rows, step_rows, summary_rows)
-from routeplan.export.workbook_styles import Styles, put, set_widths, sheet_title
+from routeplan.export.tables import Column
+from routeplan.export.sheet_rows import STEP_METRIC_COLUMNS, STOCK_COLUMNS, material_columns, material_rows, metric_rows, raw_export_columns, raw_export_rows, step_metric_rows, step_rows, stock_rows, stock_summary_rows, summary_rows
+from routeplan.export.workbook_styles import Styles, fit_widths, lines_height, put, sheet_title, wrapped_lines
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
 
-__all__ = ["SUMMARY_LAST_COLUMN", "SUMMARY_STEP_COLUMNS", "write_summary", "write_materials"]
+__all__ = ["SUMMARY_LAST_COLUMN", "SUMMARY_STEP_COLUMNS", "SUMMARY_WIDTH_BOUNDS", "MATERIAL_WIDTH_BOUNDS",
+           "write_summary", "write_materials"]
 
-#: Last column (0-based) used on the Summary sheet.
-SUMMARY_LAST_COLUMN = 7
-
-#: Step lines on the Summary sheet (a subset of the step table, plus the sheet names).
+#: Step lines on the Summary sheet (a subset of the step table, plus the sheet names),
+#: then the step metrics.
 SUMMARY_STEP_COLUMNS = (
     Column("step", "step"),
     Column("name", "name"),
@@ -34,7 +38,29 @@ SUMMARY_STEP_COLUMNS = (
     Column("yield", "yield", "-"),
     Column("product_mass_kg", "product mass", "kg"),
     Column("sheets", "charge sheets"),
-)
+) + STEP_METRIC_COLUMNS
+
+#: Last column (0-based) used on the Summary sheet.
+SUMMARY_LAST_COLUMN = len(SUMMARY_STEP_COLUMNS) - 1
+
+#: Lowest and highest width of each Summary column [character units], shared by its
+#: tables; the highest add up to 1180 px, within the charge sheets' print budget
+#: (:data:`~routeplan.export.workbook_charges.PRINT_BUDGET_PX`), so the sheet prints at
+#: about 80 % or more on a Letter page in landscape.
+SUMMARY_WIDTH_BOUNDS = ((10, 16), (20, 26), (9, 11), (9, 11), (9, 11), (9, 11), (9, 11), (12, 16),
+                        (8, 10), (9, 11), (12, 12), (13, 14))
+
+#: Lowest and highest width of each Materials column [character units], by key; the
+#: highest add up to 1192 px, within the charge sheets' print budget.
+MATERIAL_WIDTH_BOUNDS = {
+    "material": (8, 16), "name": (12, 18), "formula": (8, 12), "molar_mass": (8, 10), "assay": (7, 9),
+    "density": (8, 9), "solution_molarity": (14, 15), "solution_mass_fraction": (9, 10),
+    "solution_density": (9, 10), "price": (8, 10), "made_in": (8, 10), "hazards": (12, 17),
+    "notes": (12, 15),
+}
+
+# the stock table's text column spans three columns, from its own
+_STATUS_SPAN = 2
 
 
 def _caution(ws, st: Styles, row: int, last_col: int) -> None:
@@ -55,6 +81,8 @@ def _page_setup(ws, repeat: tuple[int, int], context: dict[str, str]) -> None:
 
 
 def _value_format(st: Styles, kind: str, value: Any):
+    if isinstance(value, str) or value is None:
+        return st.value_text
     if kind == "fraction":
         return st.value_percent
     if kind in ("mass", "amount"):
@@ -63,7 +91,87 @@ def _value_format(st: Styles, kind: str, value: Any):
         return st.value_money
     if kind == "count":
         return st.value_int
+    if kind == "ratio":
+        return st.value_ratio
     return st.value_text
+
+
+def _label(row: dict[str, Any]) -> str:
+    unit = row["unit"]
+    if row["kind"] == "fraction":
+        return row["item"] + " [%]"
+    if unit and row["kind"] != "count" and not isinstance(row["value"], str):
+        return row["item"] + f" [{unit}]"
+    return row["item"]
+
+
+class _Sheet:
+    """The Summary sheet being written: its column widths and a few writers."""
+
+    def __init__(self, ws, st: Styles, widths: list[float]) -> None:
+        self.ws, self.st, self.widths = ws, st, widths
+        self.last = SUMMARY_LAST_COLUMN
+
+    def span(self, a: int, b: int) -> float:
+        return sum(self.widths[a:b + 1])
+
+    def fact(self, r: int, row: dict[str, Any]) -> None:
+        """A label (A to C), its value and, where the row has one, a note (F to the end)."""
+        ws, st = self.ws, self.st
+        ws.merge_range(r, 0, r, 2, "", st.label)
+        put(ws, r, 0, _label(row), st.label)
+        fmt = _value_format(st, row["kind"], row["value"])
+        note = row.get("note") or ""
+        value_end = 4 if note else self.last
+        ws.merge_range(r, 3, r, value_end, "", fmt)
+        put(ws, r, 3, row["value"], fmt)
+        lines = wrapped_lines(row["value"], self.span(3, value_end), columns=value_end - 2)
+        if note:
+            ws.merge_range(r, 5, r, self.last, "", st.note)
+            ws.write_string(r, 5, note, st.note)
+            lines = max(lines, wrapped_lines(note, self.span(5, self.last), columns=self.last - 4))
+        if lines > 1:
+            ws.set_row(r, lines_height(lines))
+
+    def headings(self, r: int, titles: list[str], fmt=None) -> None:
+        lines = 1
+        for i, title in enumerate(titles):
+            if title is not None:
+                self.ws.write_string(r, i, title, fmt or self.st.heading)
+                lines = max(lines, wrapped_lines(title, self.widths[i], bold=True))
+        self.ws.set_row(r, lines_height(lines))
+
+    def fit_row(self, r: int, texts: dict[int, Any], spans: dict[int, int] | None = None) -> None:
+        """Raise row ``r`` to the most lines any of ``texts`` (column -> value) wraps to."""
+        spans = spans or {}
+        lines = max((wrapped_lines(v, self.span(i, spans.get(i, i)), columns=spans.get(i, i) - i + 1)
+                     for i, v in texts.items()), default=1)
+        if lines > 1:
+            self.ws.set_row(r, lines_height(lines))
+
+
+def _steps(plan: "Plan", sheet_names) -> list[dict[str, Any]]:
+    sheets_of: dict[str, list[str]] = {}
+    for sp, _k, name in sheet_names:
+        sheets_of.setdefault(sp.id, []).append(name)
+    rows = step_rows(plan)
+    for row, metrics in zip(rows, step_metric_rows(plan)):
+        names = sheets_of.get(row["step"], [])
+        row["sheets"] = names[0] if len(names) == 1 else f"{names[0]} … {names[-1]}" if names else ""
+        row.update({k: v for k, v in metrics.items() if k != "step"})
+    return rows
+
+
+def _widths(ws, tables: list[tuple[tuple[Column, ...], list[dict[str, Any]]]]) -> list[float]:
+    specs = []
+    for i, (lo, hi) in enumerate(SUMMARY_WIDTH_BOUNDS):
+        heads, values = [], []
+        for cols, rows in tables:
+            if i < len(cols):
+                heads.append(sheet_title(cols[i]))
+                values += [row.get(cols[i].key) for row in rows]
+        specs.append((max(heads, key=len) if heads else "", values, lo, hi))
+    return fit_widths(ws, specs)
 
 
 def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str, str],
@@ -73,61 +181,62 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
     Returns
     -------
     dict
-        0-based rows: ``facts`` (first fact line), ``steps`` and ``raw`` (heading
-        rows of the two tables), ``raw_total`` (the total cost line, -1 without one)
-        and ``warnings`` (first warning line, -1 without one).
+        0-based rows: ``facts`` (first fact line), ``metrics`` (first metric line, -1
+        without metrics), ``steps`` and ``raw`` (heading rows of the two tables),
+        ``raw_total`` (the total cost line, -1 without one), ``stock`` (heading row of
+        the stock table, -1 without stock) and ``warnings`` (first warning line, -1
+        without one).
     """
+    steps = _steps(plan, sheet_names)
+    raw_cols, raws = raw_export_columns(plan), raw_export_rows(plan)
+    stocks = stock_rows(plan)
+    sh = _Sheet(ws, st, _widths(ws, [(SUMMARY_STEP_COLUMNS, steps), (raw_cols, raws),
+                                     (STOCK_COLUMNS[:-1], stocks)]))
     last = SUMMARY_LAST_COLUMN
     ws.write_string(0, 0, f"Charge sheets · {plan.route.name}", st.title)
     _caution(ws, st, 1, last)
     out: dict[str, int] = {}
 
     r = 3
-    facts = [row for row in summary_rows(plan, written) if row["key"] not in ("caution", "warning")]
     out["facts"] = r
-    for row in facts:
-        unit = row["unit"]
-        label = row["item"] + (f" [{unit}]" if unit and row["kind"] not in ("fraction", "count") else "")
-        if row["kind"] == "fraction":
-            label += " [%]"
-        ws.merge_range(r, 0, r, 1, "", st.label)
-        put(ws, r, 0, label, st.label)
-        fmt = _value_format(st, row["kind"], row["value"])
-        ws.merge_range(r, 2, r, last, "", fmt)
-        put(ws, r, 2, row["value"], fmt)
+    for row in summary_rows(plan, written):
+        if row["key"] not in ("caution", "warning"):
+            sh.fact(r, row)
+            r += 1
+
+    out["metrics"] = -1
+    metrics = metric_rows(plan)
+    if metrics:
         r += 1
+        put(ws, r, 0, "Mass efficiency and cost, per kg of target as delivered", st.subtitle)
+        out["metrics"] = r + 1
+        for row in metrics:
+            r += 1
+            sh.fact(r, row)
 
     # steps
-    r += 1
+    r += 2
     put(ws, r, 0, "Steps, in execution order", st.subtitle)
     r += 1
     out["steps"] = r
-    sheets_of: dict[str, list[str]] = {}
-    for sp, _k, name in sheet_names:
-        sheets_of.setdefault(sp.id, []).append(name)
-    steps = step_rows(plan)
-    for row in steps:
-        names = sheets_of.get(row["step"], [])
-        row["sheets"] = names[0] if len(names) == 1 else f"{names[0]} … {names[-1]}" if names else ""
-    for i, col in enumerate(SUMMARY_STEP_COLUMNS):
-        ws.write_string(r, i, sheet_title(col), st.heading)
-    step_formats = {"batches": st.integer, "fill_fraction": st.percent, "yield": st.percent}
+    sh.headings(r, [sheet_title(c) for c in SUMMARY_STEP_COLUMNS])
+    step_formats = {"batches": st.integer, "fill_fraction": st.percent, "yield": st.percent,
+                    "step_pmi": st.ratio, "cumulative_pmi": st.ratio, "atom_economy": st.percent,
+                    "rme": st.percent}
     for row in steps:
         r += 1
         for i, col in enumerate(SUMMARY_STEP_COLUMNS):
             v = row[col.key]
             fmt = step_formats.get(col.key) or (st.quantity(v) if isinstance(v, float) else st.cell_text)
             put(ws, r, i, v, fmt)
+        sh.fit_row(r, {0: row["step"], 1: row["name"], 7: row["sheets"]})
 
     # raw materials
     r += 2
     put(ws, r, 0, "Raw materials to charge, whole campaign", st.subtitle)
     r += 1
     out["raw"] = r
-    raw_cols = raw_export_columns(plan)
-    raws = raw_export_rows(plan)
-    for i, col in enumerate(raw_cols):
-        ws.write_string(r, i, sheet_title(col), st.heading)
+    sh.headings(r, [sheet_title(c) for c in raw_cols])
     first_raw = r + 1
     ci = {c.key: i for i, c in enumerate(raw_cols)}
     from xlsxwriter.utility import xl_rowcol_to_cell as ref
@@ -145,6 +254,7 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
             ws.write_formula(r, ci["cost"], formula, st.money, row["cost"])
         else:
             put(ws, r, ci["cost"], None, st.money)
+        sh.fit_row(r, {0: row["material"], 1: row["name"], ci["steps"]: row["steps"]})
     costs = [row["cost"] for row in raws if row["cost"] is not None]
     out["raw_total"] = -1
     if costs:
@@ -154,6 +264,17 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
         ws.write_formula(r, col, f"=SUM({ref(first_raw, col)}:{ref(r - 1, col)})", st.money_bold, sum(costs))
         out["raw_total"] = r
 
+    out["stock"] = -1
+    if plan.stock is not None:
+        r += 2
+        put(ws, r, 0, "Stock on hand, for the requested target", st.subtitle)
+        for row in stock_summary_rows(plan):
+            r += 1
+            sh.fact(r, row)
+        r += 1
+        out["stock"] = r
+        r = _stock_table(sh, r, stocks)
+
     # warnings
     r += 2
     put(ws, r, 0, "Warnings" if plan.warnings else "Warnings: none", st.subtitle)
@@ -162,46 +283,68 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
         r += 1
         ws.merge_range(r, 0, r, last, "", st.value_text)
         put(ws, r, 0, p.render(), st.value_text)
-        ws.set_row(r, 26)
+        ws.set_row(r, lines_height(wrapped_lines(p.render(), sh.span(0, last), columns=last + 1)))
 
-    columns = []
-    for i in range(last + 1):
-        values: list[Any] = []
-        heads = []
-        if i < len(SUMMARY_STEP_COLUMNS):
-            heads.append(sheet_title(SUMMARY_STEP_COLUMNS[i]))
-            values += [row[SUMMARY_STEP_COLUMNS[i].key] for row in steps]
-        if i < len(raw_cols):
-            heads.append(sheet_title(raw_cols[i]))
-            values += [row[raw_cols[i].key] for row in raws]
-        columns.append((max(heads, key=len) if heads else "", values))
-    set_widths(ws, columns, highest=36)
     ws.freeze_panes(2, 0)
     _page_setup(ws, (0, 1), context)
     return out
+
+
+def _stock_table(sh: _Sheet, r: int, rows: list[dict[str, Any]]) -> int:
+    """The stock table with its headings on row ``r``; return its last row.
+
+    ``to buy = MAX(0, need - on hand)`` is a live formula stored with the plan's number;
+    an empty on-hand cell (not in stock) counts as 0.
+    """
+    from xlsxwriter.utility import xl_rowcol_to_cell as ref
+
+    ws, st = sh.ws, sh.st
+    ci = {c.key: i for i, c in enumerate(STOCK_COLUMNS)}
+    status = ci["status"]
+    sh.headings(r, [sheet_title(c) for c in STOCK_COLUMNS])
+    ws.merge_range(r, status, r, status + _STATUS_SPAN, sheet_title(STOCK_COLUMNS[status]), st.heading)
+    for row in rows:
+        r += 1
+        put(ws, r, ci["material"], row["material"], st.cell_text)
+        put(ws, r, ci["name"], row["name"], st.cell_text)
+        put(ws, r, ci["need_kg"], row["need_kg"], st.quantity(row["need_kg"]))
+        put(ws, r, ci["on_hand_kg"], row["on_hand_kg"], st.quantity(row["on_hand_kg"]))
+        need, have = ref(r, ci["need_kg"]), ref(r, ci["on_hand_kg"])
+        ws.write_formula(r, ci["to_buy_kg"], f"=MAX(0,{need}-{have})", st.quantity(row["to_buy_kg"], bold=True),
+                         row["to_buy_kg"])
+        ws.merge_range(r, status, r, status + _STATUS_SPAN, "", st.cell_text)
+        put(ws, r, status, row["status"], st.cell_text)
+        sh.fit_row(r, {0: row["material"], 1: row["name"], status: row["status"]},
+                   {status: status + _STATUS_SPAN})
+    return r
 
 
 def write_materials(ws, st: Styles, plan: "Plan", context: dict[str, str]) -> int:
     """Write the Materials sheet; return the 0-based row of its headings."""
     cols = material_columns(plan)
     last = len(cols) - 1
+    rows = material_rows(plan)
+    widths = fit_widths(ws, [(sheet_title(c), [row[c.key] for row in rows], *MATERIAL_WIDTH_BOUNDS[c.key])
+                             for c in cols])
     ws.write_string(0, 0, f"Materials · {plan.route.name}", st.title)
     _caution(ws, st, 1, last)
     h = 3
     for i, col in enumerate(cols):
         ws.write_string(h, i, sheet_title(col), st.heading)
-    ws.set_row(h, 30)
+    ws.set_row(h, lines_height(max(wrapped_lines(sheet_title(c), widths[i], bold=True)
+                                   for i, c in enumerate(cols)), 30))
     formats = {
         "molar_mass": st.molar_mass, "assay": st.percent, "density": st.density,
         "solution_molarity": st.density, "solution_mass_fraction": st.percent,
         "solution_density": st.density, "price": st.money,
     }
-    rows = material_rows(plan)
     for j, row in enumerate(rows):
         r = h + 1 + j
         for i, col in enumerate(cols):
             put(ws, r, i, row[col.key], formats.get(col.key, st.cell_text))
-    set_widths(ws, [(sheet_title(c), [row[c.key] for row in rows]) for c in cols])
+        lines = max(wrapped_lines(row[c.key], widths[i]) for i, c in enumerate(cols))
+        if lines > 1:
+            ws.set_row(r, lines_height(lines))
     ws.freeze_panes(h + 1, 0)
     _page_setup(ws, (h, h), context)
     return h
