@@ -192,3 +192,22 @@ def test_overall_yield_range():
     assert math.isclose(oy.high, 0.45)
     doc = plan.to_dict()["overall_yield"]
     assert doc["low"] == pytest.approx(0.35) and doc["high"] == pytest.approx(0.45)
+
+
+@pytest.mark.parametrize("basis, s1_yield", [("expected", 0.80), ("low", 0.70), ("high", 0.90)])
+def test_planning_at_low_or_high_yields(basis, s1_yield):
+    plan = plan_route(load_route_text(RANGES, "ranges.yaml"), yields=basis)
+    n_t = 1000 / 100  # 10 mol of C
+    # S2 has no range: 0.50 whatever the basis; S1 takes the chosen yield
+    (raw,) = plan.raw_materials
+    assert math.isclose(raw.mol.m_as("mol"), n_t / (0.50 * s1_yield), rel_tol=1e-12)
+    assert plan.yield_basis == basis
+    assert plan.to_dict()["yield_basis"] == basis
+    assert math.isclose(plan.overall_yield.yield_, 0.50 * s1_yield)
+
+
+def test_unknown_yield_basis_is_an_error():
+    from routeplan.errors import PlanError
+
+    with pytest.raises(PlanError, match="unknown yield basis 'worst'"):
+        plan_route(load_route_text(RANGES, "ranges.yaml"), yields="worst")

@@ -19,10 +19,14 @@ from routeplan.commands.common import caution_line, echo_err, echo_warnings, wri
               help="Write the plan's tables as CSV files into folder DIR (made if missing).")
 @click.option("--stock", "stock_file", metavar="FILE",
               help="Stock on hand (YAML, CSV or xlsx: material, amount, unit): say what it allows and what to buy.")
+@click.option("--yields", "yields", type=click.Choice(["expected", "low", "high"]), default="expected",
+              show_default=True,
+              help="Which yield of each step to plan with; 'low' sizes charges and purchases for the worst "
+                   "case the yield ranges allow (a step without a range uses its expected yield).")
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
-             csv_dir: str | None, stock_file: str | None, strict: bool, quiet: bool) -> None:
+             csv_dir: str | None, stock_file: str | None, yields: str, strict: bool, quiet: bool) -> None:
     """Plan every charge of every step of ROUTE for the target mass.
 
     Prints one table per step in execution order (mol, kg, L), the raw materials to
@@ -37,7 +41,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
     r = load_route(route)
-    plan = plan_route(r, amount, stock=stock_file)
+    plan = plan_route(r, amount, stock=stock_file, yields=yields)
     if strict and plan.warnings:
         raise RouteError([p.__class__("error", p.message, p.location, p.step, p.hint) for p in plan.warnings],
                          file=route)

@@ -82,6 +82,7 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
             "high": plan.overall_yield.high,
             "by_raw_material": dict(plan.overall_yield.by_raw_material),
         },
+        "yield_basis": plan.yield_basis,
         "currency": route.currency,
         "warnings": [p.render() for p in plan.warnings],
         "caution": CAUTION,

@@ -309,6 +309,7 @@ def summary_rows(plan: "Plan", written: str) -> list[dict[str, Any]]:
         row("target_mass", "target mass, with overage", in_unit(plan.target_mass, "kg"), "kg", "mass"),
         row("overage", "overage", route.target.overage, "fraction", "fraction"),
         row("target_mol", "target amount", in_unit(plan.target_mol, "mol"), "mol", "amount"),
+        row("yield_basis", "step yields planned at", f"{plan.yield_basis} yields"),
         row("overall_yield", "overall yield (longest linear sequence)", oy.yield_, "fraction", "fraction"),
         row("lls", "longest linear sequence", " → ".join(oy.longest_linear_sequence)),
         row("steps", "steps", len(plan.steps), "", "count"),

@@ -119,7 +119,9 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
     con = console or make_console()
     tm = plan.target_mass.m_as("kg")
     con.print(f"[bold]{escape(plan.route.name)}[/bold]: {fmt(tm)} kg of {escape(plan.target_material)} "
-              f"({fmt(plan.target_mol.m_as('mol'))} mol), {len(plan.steps)} step{'s' if len(plan.steps) != 1 else ''}")
+              f"({fmt(plan.target_mol.m_as('mol'))} mol), {len(plan.steps)} step{'s' if len(plan.steps) != 1 else ''}"
+              + (f", planned at the steps' [bold]{plan.yield_basis}[/bold] yields" if plan.yield_basis != "expected"
+                 else ""))
     con.print("[dim]n: amount of the compound, m: mass and V: volume as charged; "
               "(S1) after a material: made in step S1[/dim]")
     con.print()

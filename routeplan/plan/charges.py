@@ -141,17 +141,21 @@ def _per_kg(volumes: float) -> "pint.Quantity":
     return Q(volumes, unit("L/kg"))
 
 
-def compute_step(route: "Route", step: "Step", n_product: "pint.Quantity") -> "StepPlan":
+def compute_step(route: "Route", step: "Step", n_product: "pint.Quantity", *,
+                 yields: str = "expected") -> "StepPlan":
     """Plan one step for a demand of ``n_product`` mol of its main product.
 
-    ``n_lim = n_product / (yield * nu_product / nu_limiting)`` [mol].
+    ``n_lim = n_product / (yield * nu_product / nu_limiting)`` [mol], with the step's
+    ``yields`` yield (``"expected"``, ``"low"`` or ``"high"``; the expected yield where
+    the step gives no range).
     """
     from routeplan.plan.model import StepPlan
 
     eq = step.equation
     nu_p = eq.coefficient(step.product)
     nu_l = eq.coefficient(step.limiting)
-    y = step.yield_.expected
+    chosen = getattr(step.yield_, yields)
+    y = step.yield_.expected if chosen is None else chosen
     if not y > 0:
         raise PlanError(f"step {step.id} has a yield of {y:g}; it must be above 0", step=step.id)
     n_lim = n_product / (y * nu_p / nu_l)  # [mol]

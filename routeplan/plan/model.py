@@ -130,7 +130,7 @@ class StepPlan:
     product_mass : pint.Quantity
         Mass of product as isolated, at the product's assay [kg].
     yield_ : float
-        Expected molar yield [-].
+        Molar yield the walk used [-] (the expected one unless planned at low or high).
     isolated : bool
         False for a telescoped step.
     charges : tuple of ChargePlan
@@ -268,6 +268,8 @@ class Plan:
         Route metrics (see :mod:`routeplan.plan.metrics`), once computed.
     stock : StockPlan or None
         Stock comparison, when a stock list was given.
+    yield_basis : str
+        Which step yields the walk used: ``"expected"``, ``"low"`` or ``"high"``.
     """
 
     route: "Route"
@@ -280,6 +282,7 @@ class Plan:
     warnings: tuple[Problem, ...] = ()
     metrics: Any = None
     stock: StockPlan | None = None
+    yield_basis: str = "expected"
 
     def __hash__(self) -> int:
         return id(self)

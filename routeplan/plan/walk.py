@@ -25,7 +25,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
     from routeplan.route.model import Route
 
-__all__ = ["plan_route", "target_moles"]
+__all__ = ["plan_route", "target_moles", "YIELD_BASES"]
 
 
 def target_moles(route: "Route", amount: "pint.Quantity") -> "pint.Quantity":
@@ -41,7 +41,12 @@ def target_moles(route: "Route", amount: "pint.Quantity") -> "pint.Quantity":
     return n.to(unit("mol"))
 
 
-def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None) -> "Plan":
+#: Which of each step's yields the walk uses.
+YIELD_BASES = ("expected", "low", "high")
+
+
+def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None,
+               yields: str = "expected") -> "Plan":
     """Plan a campaign: every charge of every step for a target mass.
 
     Parameters
@@ -54,6 +59,10 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     stock : Mapping[str, pint.Quantity] or str or Path, optional
         Raw materials on hand [kg], or a stock file (YAML, CSV or xlsx); when given, the
         plan says the largest target the stock allows and what to buy.
+    yields : {"expected", "low", "high"}
+        Which yield of each step the walk uses; a step without a ``low`` or ``high``
+        uses its expected yield.  Planning at the low yields sizes charges and purchases
+        for a campaign in which every step does as badly as its range allows.
 
     Returns
     -------
@@ -71,6 +80,8 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     from routeplan.route.graph import execution_order
     from routeplan.units import Q, parse_quantity
 
+    if yields not in YIELD_BASES:
+        raise PlanError(f"unknown yield basis '{yields}'", hint="use expected, low or high")
     if target is None:
         amount = route.target.amount
     elif isinstance(target, str):
@@ -94,7 +105,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         if n_p is None:
             # a step that does not lead to the target: the loader has warned already
             n_p = zero
-        sp = compute_step(route, step, n_p)
+        sp = compute_step(route, step, n_p, yields=yields)
         planned[sid] = sp
         for c in sp.charges:
             if c.intermediate and c.mol is not None:
@@ -115,6 +126,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         raw_materials=raws,
         overall_yield=overall_yield(route, steps, n_target),
         warnings=tuple(warnings),
+        yield_basis=yields,
     )
     from dataclasses import replace
 
