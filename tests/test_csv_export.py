@@ -201,3 +201,17 @@ def test_summary_csv_says_what_the_stock_allows(stock_out):
 def test_no_stock_csv_without_stock(out):
     folder, _paths = out
     assert not (folder / "stock.csv").exists()
+
+
+def test_metrics_in_steps_and_summary(plan, out):
+    folder, _ = out
+    m = plan.metrics
+    rows = {r["step"]: r for r in read(folder / "steps.csv")}
+    assert set(rows) == set(m.pmi_by_step)
+    for sid, value in m.pmi_by_step.items():
+        assert close(num(rows[sid]["step PMI [kg/kg]"]), value)
+        assert close(num(rows[sid]["cumulative PMI [kg/kg]"]), m.pmi_cumulative_by_step[sid])
+    facts = {r["item"]: r for r in read(folder / "summary.csv")}
+    assert close(num(facts["process mass intensity, route"]["value"]), m.pmi)
+    assert facts["process mass intensity, route"]["unit"] == "kg/kg"
+    assert close(num(facts["complete E-factor"]["value"]), m.e_factor_complete)

@@ -37,7 +37,10 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any, Iterable, Sequence
 
 from routeplan.export.tables import CHARGE_COLUMNS, Column, step_charge_rows
-from routeplan.export.sheet_rows import STEP_COLUMNS, STOCK_COLUMNS, SUMMARY_COLUMNS, material_columns, material_rows, raw_export_columns, raw_export_rows, step_rows, stock_rows, stock_summary_rows, summary_rows
+from routeplan.export.sheet_rows import (STEP_COLUMNS, STEP_METRIC_COLUMNS, STOCK_COLUMNS, SUMMARY_COLUMNS,
+                                         material_columns, material_rows, metric_rows, raw_export_columns,
+                                         raw_export_rows, step_metric_rows, step_rows, stock_rows,
+                                         stock_summary_rows, summary_rows)
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -138,11 +141,12 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
     when = written or datetime.now().astimezone()
     facts = summary_rows(plan, written_text(when))
     at = next((i for i, row in enumerate(facts) if row["key"] == "caution"), len(facts))
-    facts[at:at] = stock_summary_rows(plan)  # before the caution and the warnings
+    facts[at:at] = metric_rows(plan) + stock_summary_rows(plan)  # before the caution and the warnings
     summary = [{k: row[k] for k in ("item", "value", "unit")} for row in facts]
     paths = [
         write_table(out_dir / "summary.csv", SUMMARY_COLUMNS, summary),
-        write_table(out_dir / "steps.csv", STEP_COLUMNS, step_rows(plan)),
+        write_table(out_dir / "steps.csv", STEP_COLUMNS + STEP_METRIC_COLUMNS,
+                    [{**row, **metrics} for row, metrics in zip(step_rows(plan), step_metric_rows(plan))]),
     ]
     for i, sp in enumerate(plan.steps, start=1):
         paths.append(write_table(out_dir / step_file_name(i, sp.id), CHARGE_COLUMNS, step_charge_rows(sp)))
