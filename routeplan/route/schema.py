@@ -401,6 +401,22 @@ def keys_of(model: type[BaseModel]) -> list[str]:
     return [f.alias or name for name, f in model.model_fields.items()]
 
 
+#: Spellings process chemists often use for a key, and the key routeplan reads.
+KEY_ALIASES = {
+    "eq": "equiv", "eqs": "equiv", "eq.": "equiv", "equivalents": "equiv", "equivalent": "equiv",
+    "mol%": "mol_percent", "mol_%": "mol_percent", "mol_pct": "mol_percent", "molpercent": "mol_percent",
+    "mol percent": "mol_percent", "mole_percent": "mol_percent",
+    "vol": "volumes", "vols": "volumes", "volume": "volumes", "vol.": "volumes", "v": "volumes",
+    "wt": "mass_ratio", "w/w": "mass_ratio", "weight_ratio": "mass_ratio", "ratio": "mass_ratio",
+    "purity": "assay", "mw": "molar_mass", "mol_weight": "molar_mass", "molecular_weight": "molar_mass",
+    "fw": "molar_mass", "rho": "density", "d": "density", "conc": "molarity", "concentration": "molarity",
+    "m": "molarity", "wt%": "mass_fraction", "w%": "mass_fraction", "cost": "price",
+    "reagent": "material", "reaction": "equation", "eqn": "equation",
+    "expected_yield": "yield", "y": "yield", "reactor": "vessel",
+    "size": "volume", "fill": "max_fill", "mass": "amount", "quantity": "amount",
+}
+
+
 def validation_problems(error: ValidationError, positions: Positions) -> list[Problem]:
     """Turn pydantic's errors into located problems in our words.
 
@@ -438,8 +454,10 @@ def validation_problems(error: ValidationError, positions: Positions) -> list[Pr
             model = model_at(parent)
             where = positions.at(loc, key=True)
             valid = keys_of(model) if model else []
-            near = difflib.get_close_matches(key, valid, n=1, cutoff=0.6) or \
-                difflib.get_close_matches(key.lower(), valid, n=1, cutoff=0.6)
+            near = [KEY_ALIASES[key.lower()]] if KEY_ALIASES.get(key.lower()) in valid else []
+            near = near or difflib.get_close_matches(key, valid, n=1, cutoff=0.6) or \
+                difflib.get_close_matches(key.lower(), valid, n=1, cutoff=0.6) or \
+                [v for v in valid if len(key) >= 2 and v.startswith(key.lower())][:1]
             message = f"unknown key '{key}'"
             hint = f"did you mean '{near[0]}'?" if near else "valid keys here: " + ", ".join(valid)
         else:
