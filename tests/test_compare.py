@@ -27,8 +27,9 @@ from routeplan.plan.compare import (
 )
 from routeplan.route.load import load_route, load_route_text
 
-LINEAR = "demo_routes/hx17-linear.yaml"
-CONVERGENT = "demo_routes/hx17-convergent.yaml"
+DEMO = Path(__file__).resolve().parents[1] / "demo_routes"
+LINEAR = str(DEMO / "hx17-linear.yaml")
+CONVERGENT = str(DEMO / "hx17-convergent.yaml")
 
 
 @pytest.fixture(scope="module")

@@ -10,6 +10,8 @@ import io
 import json
 import math
 
+from pathlib import Path
+
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
@@ -28,7 +30,8 @@ from routeplan.route.load import load_route, load_route_text
 from routeplan.route.model import Material, Solution
 from routeplan.units import Q
 
-DEMOS = ("demo_routes/hx17-linear.yaml", "demo_routes/hx17-convergent.yaml")
+_DEMO = Path(__file__).resolve().parents[1] / "demo_routes"
+DEMOS = (str(_DEMO / "hx17-linear.yaml"), str(_DEMO / "hx17-convergent.yaml"))
 
 # Two steps, every molar mass 100 g/mol so that 1 kg is 10 mol.
 #   target: 0.8 kg of P = 8 mol.
