@@ -1,4 +1,4 @@
-"""Campaign sizing: the volume of each step, batches in its vessel, and the stock.
+"""Campaign sizing: the volume of each step and its batches in its vessel.
 
 Volume of a step
     The largest volume in the vessel is taken as the sum of the volumes of every charge
@@ -32,7 +32,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import StepPlan
     from routeplan.route.model import Route
 
-__all__ = ["MIN_FILL", "MAX_SCALE_UP", "step_volumes", "size_batches", "stock_plan"]
+__all__ = ["MIN_FILL", "MAX_SCALE_UP", "step_volumes", "size_batches"]
 
 #: Smallest batch volume over nominal vessel volume that can still be stirred [-]
 #: (common practice, no source).
@@ -120,9 +120,3 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
                        fill_fraction=fill, vessel=sp.vessel, notes=notes)
         out.append(replace(sp, batch=bp))
     return tuple(out), warnings
-
-
-def stock_plan(plan, stock):  # replaced by the stock work of issue 6
-    from routeplan.plan.stock import stock_plan as _stock_plan
-
-    return _stock_plan(plan, stock)

@@ -134,5 +134,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
 
     plan = replace(plan, metrics=compute_metrics(plan))
     if stock is not None:
-        plan = replace(plan, stock=campaign.stock_plan(plan, stock))
+        from routeplan.plan.stock import stock_plan
+
+        plan = replace(plan, stock=stock_plan(plan, stock))
     return plan
