@@ -131,3 +131,13 @@ def test_bad_stock_on_the_command_line(tmp_path):
     assert result.exit_code == 2
     assert "stock.csv:2" in result.stderr and "negative" in result.stderr
     assert "Traceback" not in result.output
+
+
+def test_stock_json_lists_on_hand_and_missing(tmp_path, route):
+    stock = _write(tmp_path, "yaml", [("A", 5, "kg"), ("solv1", 10, "L")])
+    doc = plan_route(route, stock=stock).to_dict()["stock"]
+    # 10 L of solv1 at 0.8 kg/L is 8 kg on hand
+    assert doc["on_hand"] == [{"material": "A", "mass_kg": pytest.approx(5.0)},
+                              {"material": "solv1", "mass_kg": pytest.approx(8.0)}]
+    assert doc["not_in_stock"] == ["solv2"]
+    assert doc["file"] == str(stock)

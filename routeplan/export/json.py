@@ -98,6 +98,9 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
             "max_target_kg": _m(s.max_target, "kg"),
             "limited_by": s.limited_by,
             "to_buy": [{"material": k, "mass_kg": _m(m, "kg")} for k, m in s.to_buy],
+            "on_hand": [{"material": k, "mass_kg": _m(m, "kg")} for k, m in s.on_hand.items()],
+            "not_in_stock": [r.material for r in plan.raw_materials if r.material not in s.on_hand],
+            "file": s.source,
         }
     return out
 
