@@ -189,9 +189,20 @@ class _Checker:
             return None
         from routeplan.chemistry.formula import molar_mass
 
-        mol = Chem.MolFromSmiles(m.smiles)
+        from rdkit import rdBase
+
+        with rdBase.BlockLogs():  # RDKit's own log lines would bypass our messages
+            mol = Chem.MolFromSmiles(m.smiles)
+            if mol is None:
+                raw = Chem.MolFromSmiles(m.smiles, sanitize=False)
+                if raw is None:
+                    detail = "it cannot be parsed (check brackets, ring-closure digits and atom symbols)"
+                else:
+                    found = [p.Message() for p in Chem.DetectChemistryProblems(raw)]
+                    detail = "; ".join(found) if found else "RDKit cannot sanitise it"
         if mol is None:
-            self.add("error", ("materials", key, "smiles"), f"'{m.smiles}' is not a valid SMILES")
+            self.add("error", ("materials", key, "smiles"), f"'{m.smiles}' is not a valid SMILES: {detail}",
+                     "correct the SMILES, or give a formula instead")
             return None
         formula = rdMolDescriptors.CalcMolFormula(mol)
         try:
