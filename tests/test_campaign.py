@@ -110,3 +110,14 @@ def test_terminal_shows_batches(tmp_path):
     assert result.exit_code == 0, result.output
     assert "2 batches of 40 L" in result.stdout
     assert "m/batch [kg]" in result.stdout
+
+
+def test_plan_strict_turns_campaign_warnings_into_errors(tmp_path):
+    path = write_route(tmp_path, ROUTE)
+    loose = run_cli("plan", path, "--json", "-")
+    assert loose.exit_code == 0
+    assert "warning:" in loose.stderr and "15 times the largest batch" in loose.stderr
+    strict = run_cli("plan", path, "--strict")
+    assert strict.exit_code == 2
+    assert "15 times the largest batch" in strict.stderr
+    assert "Traceback" not in strict.output
