@@ -32,7 +32,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     Prints one table per step in execution order (mol, kg, L), the raw materials to
     charge over the whole campaign, and the overall yield.
     """
-    from routeplan.errors import Location, RouteError
+    from routeplan.errors import Location
     from routeplan.plan.walk import plan_route
     from routeplan.route.load import load_route
     from routeplan.units import parse_quantity
@@ -43,8 +43,10 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     r = load_route(route)
     plan = plan_route(r, amount, stock=stock_file, yields=yields)
     if strict and plan.warnings:
-        raise RouteError([p.__class__("error", p.message, p.location, p.step, p.hint) for p in plan.warnings],
-                         file=route)
+        echo_warnings(plan.warnings, strict=True)
+        n = len(plan.warnings)
+        echo_err(f"{route}: {n} warning{'s' if n != 1 else ''}, counted as errors under --strict; nothing written")
+        raise click.exceptions.Exit(2)
     if json_out is not None:
         from routeplan.export.json import plan_to_json
 
