@@ -141,3 +141,18 @@ def test_stock_json_lists_on_hand_and_missing(tmp_path, route):
                               {"material": "solv1", "mass_kg": pytest.approx(8.0)}]
     assert doc["not_in_stock"] == ["solv2"]
     assert doc["file"] == str(stock)
+
+
+@pytest.mark.parametrize("kind", ["yaml", "csv"])
+def test_largest_target_fed_back_needs_nothing_more(tmp_path, kind):
+    # law: planning the largest target the stock allows, as --target, leaves nothing of the
+    # limiting material to buy, also when the route adds an overage (here 5 %)
+    text = ROUTE.replace("target: {material: P, amount: 20 kg}", "target: {material: P, amount: 20 kg, overage: 5 %}")
+    route = load_route_text(text, "overage.yaml")
+    stock = _write(tmp_path, kind, [("A", 5, "kg"), ("solv1", 100, "kg")])
+    s = plan_route(route, stock=stock).stock
+    # need of A at 20 kg * 1.05 = 10.5 kg; 5 / 10.5 of the 20 kg asked for = 9.5238 kg
+    assert math.isclose(s.max_target.m_as("kg"), 20 * 5 / 10.5, rel_tol=1e-12)
+    again = plan_route(route, s.max_target, stock=stock).stock
+    assert "A" not in {k for k, m in again.to_buy if m.m_as("kg") > 1e-9}
+    assert math.isclose(again.max_target.m_as("kg"), s.max_target.m_as("kg"), rel_tol=1e-12)

@@ -14,12 +14,15 @@ def stock_lines(plan) -> list[str]:
     tgt = plan.target_material
     in_stock = set(s.on_hand)
     missing = [r.material for r in plan.raw_materials if r.material not in in_stock]
+    overage = plan.route.target.overage
     if s.max_target is None:
-        lines.append(f"Stock: none of the raw materials of this route is in stock.")
+        lines.append("Stock: no raw material this plan needs is in the stock list.")
     else:
-        lines.append(f"Stock: the materials on hand allow at most {display_quantity(s.max_target.m_as('kg'), 'mass')} "
-                     f"of {tgt}, limited by {s.limited_by}"
-                     + (" (counting only the materials in stock)" if missing else "") + ".")
+        most = display_quantity(s.max_target.m_as("kg"), "mass")
+        lines.append(f"Stock: the materials on hand allow a target of at most {most} of {tgt}"
+                     + (f" (plus the {overage * 100:.3g} % overage, so --target \"{most}\")" if overage else "")
+                     + f", limited by {s.limited_by}"
+                     + (", counting only the materials in stock" if missing else "") + ".")
     if missing:
         lines.append("  not in stock, to buy in full: " + ", ".join(missing))
     unused = sorted(k for k in in_stock if k not in {r.material for r in plan.raw_materials})

@@ -8,7 +8,8 @@ density (or a solution).
 Every raw-material requirement of a plan is proportional to the target mass (the
 backward walk is linear), so the largest target the stock allows is
 ``T * min(on_hand / need)`` over the raw materials in stock, with ``T`` the requested
-target [kg].  Raw materials that the list does not name are not in stock: they are
+target amount before overage [kg] (the number ``--target`` takes; the plan adds the
+route's overage to it).  Raw materials that the list does not name are not in stock: they are
 bought in full and are listed as such, never taken as unlimited in silence.
 """
 
@@ -184,7 +185,8 @@ def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]") 
     Returns
     -------
     StockPlan
-        ``max_target`` [kg] (over the raw materials in stock; None if none of them is
+        ``max_target`` [kg] (the largest target amount, before the route's overage, as
+        ``--target`` takes it; over the raw materials in stock; None if none of them is
         needed), ``limited_by``, ``to_buy`` (key, mass [kg]) for the requested target
         (materials not in stock in full), and ``on_hand``.
     """
@@ -196,7 +198,8 @@ def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]") 
         on_hand = read_stock(plan.route, stock)
     else:
         on_hand = {k: v.to(unit("kg")) for k, v in stock.items()}
-    target = plan.target_mass
+    # on the --target basis: the amount before overage, which the plan scales by (1 + overage)
+    target = plan.target_mass / (1 + plan.route.target.overage)
     best_ratio, limited_by = None, None
     to_buy = []
     for r in plan.raw_materials:
