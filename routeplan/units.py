@@ -13,6 +13,7 @@ fraction in [0, 1].
 from __future__ import annotations
 
 import functools
+import math
 import re
 from typing import TYPE_CHECKING, Any
 
@@ -150,6 +151,9 @@ def parse_quantity(text: Any, dimension: str, *, where: Location | None = None) 
     except Exception:
         raise QuantityError(f"'{text}': unknown unit '{unit}'; expected {expect}", location=where) from None
     value = float(m.group("num"))
+    if not math.isfinite(value) or (value != 0 and not 1e-30 < abs(value) < 1e30):
+        raise QuantityError(f"'{text}': {m.group('num')} is out of any sensible range", location=where,
+                            hint=f"write {expect}")
     q = ureg.Quantity(value, units)
     if q.dimensionality != ureg.get_dimensionality(spec):
         found = dimension_name(q)

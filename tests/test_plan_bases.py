@@ -165,3 +165,14 @@ def test_target_override_any_mass_unit():
     # NIST SP 811, B.8: 1 lb = 0.45359237 kg exactly, so 22.0462262185 lb is 10 kg to 1e-11
     plan = plan_route(route, "22.0462262185 lb")
     assert math.isclose(plan.target_mol.m_as("mol"), 47.25, rel_tol=1e-10)
+
+
+def test_numbers_that_overflow_are_a_located_error():
+    from routeplan.errors import PlanError
+
+    # a yield of 1e-300 on a 1e29 kg target needs 1e331 mol: beyond any float
+    text = OVERAGE.replace("yield: 80 %", "yield: 1e-300").replace("amount: 10 kg", "amount: 1e29 kg")
+    with pytest.raises(PlanError) as info:
+        plan_route(load_route_text(text, "overflow.yaml"))
+    assert "step S1" in str(info.value) and "out of range" in str(info.value)
+    assert "overflow.yaml:" in str(info.value)

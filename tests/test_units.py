@@ -105,3 +105,10 @@ def test_overage_may_exceed_one_when_allowed():
 def test_q_builds_quantities():
     q = Q(2.0, "kg") * 3
     assert q.m_as("g") == 6000.0
+
+
+@pytest.mark.parametrize("text", ["1e400 kg", "1e308 kg", "1e-40 kg", "nan kg", "inf kg"])
+def test_numbers_out_of_any_sensible_range(text):
+    with pytest.raises(QuantityError) as info:
+        parse_quantity(text, "mass")
+    assert text.split()[0] in str(info.value)

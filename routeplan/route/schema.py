@@ -98,6 +98,12 @@ def _text(value: Any) -> str:
     raise _fail(f"must be text, got {describe_value(value)}")
 
 
+#: Largest plain number a route file may give for an equiv, mol %, volumes, mass ratio or
+#: price: no charge line is a million times its limiting reagent (common practice, no
+#: source); beyond it the number is a typo, and far beyond it the arithmetic overflows.
+LARGEST_COUNT = 1e6
+
+
 def _number(*, positive: bool):
     word = "a positive number" if positive else "a number of 0 or more"
 
@@ -116,6 +122,9 @@ def _number(*, positive: bool):
             raise _fail(f"must be {word}, got {describe_value(value)}", hint)
         if not math.isfinite(value) or value < 0 or (positive and value == 0):
             raise _fail(f"must be {word}, got {describe_value(value)}")
+        if value > LARGEST_COUNT:
+            raise _fail(f"{describe_value(value)} is far out of range (more than {LARGEST_COUNT:g})",
+                        "check for a misplaced decimal point or exponent")
         return float(value)
 
     return check
