@@ -15,6 +15,7 @@ The rules are those of the route format, step 3 of "How the plan is computed":
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
@@ -162,6 +163,13 @@ def compute_step(route: "Route", step: "Step", n_product: "pint.Quantity", *,
     lim = route.materials[step.limiting]
     m_lim, _v = charge_from_moles(lim, n_lim)
     lines = tuple(_line(route, step, c, i, n_lim, m_lim) for i, c in enumerate(step.charges, start=1))
+    for line in lines:
+        for what, q in (("amount", line.mol), ("mass", line.mass), ("volume", line.volume)):
+            if q is not None and not math.isfinite(q.magnitude):
+                raise PlanError(f"step {step.id}: the {what} of {line.material} comes out as {q.magnitude}; "
+                                "a number in the route or the target is far out of range",
+                                location=step.location, step=step.id,
+                                hint="check the target amount, the equation's coefficients and the charge lines")
     prod = route.materials[step.product]
     product_mass = n_product * supplied_form(prod).kg_per_mol  # as isolated, at its assay [kg]
     return StepPlan(
