@@ -39,6 +39,11 @@ DIMENSIONS: dict[str, tuple[str, str]] = {
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
 _QUANTITY_RE = re.compile(rf"^\s*(?P<num>{_NUMBER})\s*(?P<unit>.*?)\s*$")
 _DECIMAL_COMMA_RE = re.compile(r"^\s*[+-]?\d+,\d")
+# a percent or a bare count inside a quantity would be multiplied in silently ('10 % kg')
+_NOT_IN_A_QUANTITY = re.compile(r"%|\bpercent\b|\bdimensionless\b|\bppm\b|\bppb\b")
+_TON = re.compile(r"\btons?\b")
+# a length unit followed by 2 or 3 is a power, as chemists write cm3 for cm³
+_POWER = re.compile(r"\b(mm|cm|dm|m|km|in|ft)([23])\b")
 _PERCENT_RE = re.compile(rf"^\s*(?P<num>{_NUMBER})\s*(?P<unit>%|percent)\s*$")
 
 
@@ -145,6 +150,14 @@ def parse_quantity(text: Any, dimension: str, *, where: Location | None = None) 
             location=where,
             hint=f"write it with its unit, e.g. '{m.group('num')} {example.split()[1]}'",
         )
+    bad = _NOT_IN_A_QUANTITY.search(unit)
+    if bad:
+        raise QuantityError(f"'{text}': '{bad.group(0)}' does not belong in {_article(dimension)}",
+                            location=where, hint=f"write {expect}")
+    if _TON.search(unit):
+        raise QuantityError(f"'{text}': 'ton' is ambiguous (a US ton is 907.18 kg, a metric one 1000 kg)",
+                            location=where, hint="write 't' or 'tonne' for 1000 kg, or 'short_ton' / 'long_ton'")
+    unit = _POWER.sub(r"\1**\2", unit)  # cm3 and m3 as chemists write them
     ureg = registry()
     try:
         units = ureg.parse_units(unit)

@@ -112,3 +112,23 @@ def test_numbers_out_of_any_sensible_range(text):
     with pytest.raises(QuantityError) as info:
         parse_quantity(text, "mass")
     assert text.split()[0] in str(info.value)
+
+
+@pytest.mark.parametrize("text, fragment", [("10 % kg", "'%' does not belong"),
+                                            ("10 percent kg", "'percent' does not belong"),
+                                            ("10 dimensionless kg", "'dimensionless' does not belong"),
+                                            ("10 ton", "'ton' is ambiguous"), ("2 tons", "'ton' is ambiguous")])
+def test_nothing_is_guessed_inside_a_quantity(text, fragment):
+    with pytest.raises(QuantityError) as info:
+        parse_quantity(text, "mass")
+    assert fragment in str(info.value)
+
+
+def test_cubic_units_as_chemists_write_them():
+    # 1 cm³ = 1 mL and 1 dm³ = 1 L exactly (NIST SP 811, the litre as a special name for dm³)
+    assert math.isclose(parse_quantity("1.07 g/cm3", "density").m_as("g/mL"), 1.07)
+    assert math.isclose(parse_quantity("2.5 mol/dm3", "molarity").m_as("mol/L"), 2.5)
+    assert math.isclose(parse_quantity("0.25 m3", "volume").m_as("L"), 250.0)
+    # metric and short tons, written out, are fine: 1 short ton = 2000 lb = 907.18474 kg (NIST SP 811)
+    assert math.isclose(parse_quantity("1 short_ton", "mass").m_as("kg"), 907.18474)
+    assert math.isclose(parse_quantity("2 tonne", "mass").m_as("kg"), 2000.0)
