@@ -214,11 +214,14 @@ def parse_fraction(value: Any, *, where: Location | None = None, allow_zero: boo
         if frac != frac or frac in (float("inf"), float("-inf")):
             raise QuantityError(f"expected a percent such as '85 %', got {value!r}", location=where)
         if frac > 1:
-            raise QuantityError(
-                f"{value!r} is above 1; a plain number here is a fraction",
-                location=where,
-                hint=f"write '{value:g} %' for percent, or {frac / 100:g} as a fraction",
-            )
+            if frac > 100 and not allow_above_one:
+                hint = "a percent here is at most 100 %"
+            elif frac > 100:
+                hint = f"write '{value:g} %' for percent"
+            else:
+                hint = f"write '{value:g} %' for percent, or {frac / 100:g} as a fraction"
+            raise QuantityError(f"{value!r} is above 1; a plain number here is a fraction",
+                                location=where, hint=hint)
     elif isinstance(value, str):
         if _DECIMAL_COMMA_RE.match(value):
             raise QuantityError(f"'{value}' uses a decimal comma", location=where,

@@ -132,3 +132,13 @@ def test_cubic_units_as_chemists_write_them():
     # metric and short tons, written out, are fine: 1 short ton = 2000 lb = 907.18474 kg (NIST SP 811)
     assert math.isclose(parse_quantity("1 short_ton", "mass").m_as("kg"), 907.18474)
     assert math.isclose(parse_quantity("2 tonne", "mass").m_as("kg"), 2000.0)
+
+
+def test_hints_above_one_never_suggest_a_rejected_value():
+    with pytest.raises(QuantityError) as info:
+        parse_fraction(150)
+    assert "at most 100 %" in str(info.value) and "1.5" not in str(info.value)
+    with pytest.raises(QuantityError) as info:
+        parse_fraction(200, allow_above_one=True)  # an overage may be 200 %, written as a percent
+    assert "'200 %'" in str(info.value) and "as a fraction" not in str(info.value)
+    assert parse_fraction("200 %", allow_above_one=True) == 2.0
