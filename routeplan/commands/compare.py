@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import caution_line, echo_err, echo_warnings, write_text_output
+from routeplan.commands.common import (caution_line, check_output_paths, echo_err, echo_warnings,
+                                       write_text_output)
 
 
 @click.command("compare")
@@ -37,6 +38,7 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
     from routeplan.route.load import load_route
     from routeplan.units import parse_quantity
 
+    check_output_paths(json_out=json_out, xlsx_out=xlsx_out)
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
