@@ -156,3 +156,18 @@ def test_largest_target_fed_back_needs_nothing_more(tmp_path, kind):
     again = plan_route(route, s.max_target, stock=stock).stock
     assert "A" not in {k for k, m in again.to_buy if m.m_as("kg") > 1e-9}
     assert math.isclose(again.max_target.m_as("kg"), s.max_target.m_as("kg"), rel_tol=1e-12)
+
+
+def test_stock_file_slips_are_named(tmp_path, route):
+    cases = {
+        "empty.yaml": ("A:\n", "'A' has no amount"),
+        "semi.csv": ("material;amount;unit\nA;5;kg\n", "separated by ';'"),
+        "extra.csv": ("material,amount,unit\nA,1,5,kg\n", "row 2 has 4 fields"),
+    }
+    for name, (text, fragment) in cases.items():
+        p = tmp_path / name
+        p.write_text(text)
+        with pytest.raises(StockError) as info:
+            plan_route(route, stock=p)
+        assert fragment in str(info.value), name
+        assert name in str(info.value)

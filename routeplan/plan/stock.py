@@ -57,8 +57,8 @@ def _mass(route: "Route", key: str, text: str, where: Location) -> "pint.Quantit
         try:
             q = parse_quantity(text, "volume", where=where)
         except QuantityError:
-            raise StockError(exc.message, location=where, hint=exc.hint or "give a mass such as '30 kg' "
-                             "(or a volume such as '20 L' for a material with a density)") from None
+            raise StockError(exc.message, location=where, hint=exc.hint or "give a mass such as '30 kg', "
+                             "or a volume such as '20 L' for a material with a density") from None
         density = mat.solution.density if mat.solution is not None else mat.density
         if density is None:
             raise StockError(f"'{text}' is a volume, but material '{key}' has no density",
@@ -92,8 +92,10 @@ def _read_yaml(route, path: Path, data: bytes) -> dict[str, Any]:
     for key, value in doc.items():
         line, col = doc.lc.key(key)
         where = Location(str(path), line + 1, col + 1, str(key))
+        if value is None:
+            raise StockError(f"'{key}' has no amount", location=where, hint="write e.g. '30 kg'")
         if not isinstance(value, str):
-            raise StockError(f"amount {value!r} has no unit", location=where, hint="write e.g. '30 kg'")
+            raise StockError(f"amount {value!r} has no unit", location=where, hint=f"write e.g. '{value} kg'")
         out[str(key)] = _mass(route, str(key), value, where)
     return out
 
@@ -105,6 +107,10 @@ def _table(route, path: Path, rows: list[list[Any]], cell) -> dict[str, Any]:
                          location=Location(str(path)))
     header = [str(h).strip().lower() if h is not None else "" for h in rows[0]]
     missing = [c for c in _COLUMNS if c not in header]
+    if missing and len(header) == 1 and ";" in header[0]:
+        raise StockError("the fields are separated by ';', a stock CSV uses commas",
+                         location=Location(str(path), 1),
+                         hint="save it as CSV with commas, or as .xlsx: material, amount, unit")
     if missing:
         raise StockError(f"missing column{'s' if len(missing) > 1 else ''} {', '.join(missing)}; "
                          f"found {', '.join(h for h in header if h) or 'none'}",
@@ -114,6 +120,10 @@ def _table(route, path: Path, rows: list[list[Any]], cell) -> dict[str, Any]:
     for r, row in enumerate(rows[1:], start=2):
         if all(v is None or str(v).strip() == "" for v in row):
             continue
+        if len(row) > len(header) and any(str(v).strip() for v in row[len(header):] if v is not None):
+            raise StockError(f"row {r} has {len(row)} fields but the first row names {len(header)} columns",
+                             location=Location(str(path), r, None, cell(r, len(header))),
+                             hint="a decimal comma or a stray comma splits a field; quote it or remove it")
         get = (lambda c: row[idx[c]] if idx[c] < len(row) else None)
         key = str(get("material") or "").strip()
         amount, unit = get("amount"), str(get("unit") or "").strip()
