@@ -211,3 +211,19 @@ def test_unknown_yield_basis_is_an_error():
 
     with pytest.raises(PlanError, match="unknown yield basis 'worst'"):
         plan_route(load_route_text(RANGES, "ranges.yaml"), yields="worst")
+
+
+def test_unlisted_limiting_reagent_is_charged_first():
+    text = """
+route: order of unlisted reactants
+target: {material: P, amount: 1 kg}
+materials:
+  A: {molar_mass: 100 g/mol}
+  B: {molar_mass: 100 g/mol}
+  P: {molar_mass: 200 g/mol}
+steps:
+  - {id: S1, equation: B + A -> P, limiting: A, yield: 50 %}
+"""
+    plan = plan_route(load_route_text(text, "order.yaml"))
+    assert [c.material for c in plan.steps[0].charges] == ["A", "B"]
+    assert all(c.implicit for c in plan.steps[0].charges)

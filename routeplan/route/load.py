@@ -276,9 +276,11 @@ def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
     reactants = {t.key: t.coefficient / nu_lim for t in eq.reactants}
     listed = list(s.charges or ())
     charged = {c.material for c in listed}
-    lines = [Charge(material=key, basis="stoichiometric", value=ratio, role="reactant", implicit=True,
+    # reactants without a line come first, the limiting reagent before the others
+    order = sorted(reactants, key=lambda key: key != limiting)
+    lines = [Charge(material=key, basis="stoichiometric", value=reactants[key], role="reactant", implicit=True,
                     location=pos.at(("steps", i, "equation")))
-             for key, ratio in reactants.items() if key not in charged]
+             for key in order if key not in charged]
     for j, c in enumerate(listed):
         basis = next((b for b in ("equiv", "mol_percent", "volumes", "mass_ratio") if getattr(c, b) is not None),
                      None)
