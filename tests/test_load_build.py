@@ -48,10 +48,10 @@ def charges():
     return load_route_text(CHARGES, "charges.yaml").steps[0].charges
 
 
-def test_implicit_lines_come_first_in_equation_order(charges):
+def test_implicit_lines_come_first_limiting_reagent_leading(charges):
     implicit = [(c.material, c.basis, c.value, c.role) for c in charges if c.implicit]
-    # A: nu 2 / nu_B 1 = 2; B is the limiting reagent: 1
-    assert implicit == [("A", "stoichiometric", 2.0, "reactant"), ("B", "stoichiometric", 1.0, "reactant")]
+    # B is the limiting reagent (1 equiv) and leads; then A in equation order: nu 2 / nu_B 1 = 2
+    assert implicit == [("B", "stoichiometric", 1.0, "reactant"), ("A", "stoichiometric", 2.0, "reactant")]
     assert [c.implicit for c in charges] == [True, True, False, False, False, False, False, False]
 
 
