@@ -121,3 +121,12 @@ def test_plan_strict_turns_campaign_warnings_into_errors(tmp_path):
     assert strict.exit_code == 2
     assert "15 times the largest batch" in strict.stderr
     assert "Traceback" not in strict.output
+
+
+def test_many_batches_are_warned():
+    # R50 written as 50 mL: 80 L in 0.05 L * 0.8 = 0.04 L batches -> 2000 batches
+    text = ROUTE.replace("R50: {volume: 50 L}", "R50: {volume: 50 mL}")
+    plan = plan_route(load_route_text(text, "ml.yaml"))
+    assert plan.step("S2").batches == 2000
+    texts = [w.render() for w in plan.warnings]
+    assert any("needs 2000 batches in vessel R50 (0.05 L)" in t and "ml.yaml:" in t for t in texts), texts

@@ -31,9 +31,22 @@ def out(plan, tmp_path_factory):
     return folder, paths
 
 
+CAUTION_FIELD = "CAUTION: " + CAUTION
+
+
 def read(path: Path) -> list[dict[str, str]]:
+    """The data rows of a CSV file written by routeplan: its last row, the caution, is
+    checked and dropped, as docs/charge-sheets.md tells readers to."""
     with open(path, encoding="utf-8", newline="") as fh:
-        return list(csv.DictReader(fh))
+        rows = list(csv.DictReader(fh))
+    last = list(rows.pop().values())
+    assert last == [CAUTION_FIELD] + [""] * (len(last) - 1), (path.name, last)
+    return rows
+
+
+def raw_rows(path: Path) -> list[list[str]]:
+    with open(path, encoding="utf-8", newline="") as fh:
+        return list(csv.reader(fh))
 
 
 def num(text: str) -> float | None:
@@ -149,13 +162,40 @@ def test_failure_part_way_keeps_earlier_files(plan, tmp_path, monkeypatch):
     assert after == before  # same files, byte for byte, and no temporary file left
 
 
-def test_pandas_reads_numbers(out):
+def test_pandas_reads_numbers(plan, out):
+    """Read as the documentation says, dropping the caution row, pandas gets numbers
+    and booleans; read whole, the caution is the last row's first field."""
     import pandas as pd
 
     folder, paths = out
-    frame = pd.read_csv(paths[2])
+    frame = pd.read_csv(paths[2], skipfooter=1, engine="python")
+    assert len(frame) == len(plan.steps[0].charges)
     assert frame["mass [kg]"].dtype.kind == "f"
     assert frame["made in route"].dtype.kind == "b"
+    whole = pd.read_csv(paths[2])
+    assert whole.iloc[-1, 0] == CAUTION_FIELD and whole.iloc[-1, 1:].isna().all()
+
+
+def _csv_files(folder: Path) -> list[Path]:
+    return sorted(folder.glob("*.csv"))
+
+
+@pytest.mark.parametrize("which", ["plain", "stock"])
+def test_every_csv_ends_with_the_caution(out, stock_out, which):
+    """Every file, summary.csv as well, ends with one row: ``CAUTION: ...`` in the
+    first field, the others empty, as many fields as the header has."""
+    folder = out[0] if which == "plain" else stock_out[1]
+    files = _csv_files(folder)
+    expected = {"summary.csv", "steps.csv", "raw-materials.csv", "materials.csv"} | (
+        {"stock.csv"} if which == "stock" else set())
+    assert expected <= {p.name for p in files}
+    assert sum(p.name.startswith("charges-") for p in files) == 3
+    for path in files:
+        rows = raw_rows(path)
+        assert len(rows) >= 3, path.name  # header, data, caution
+        assert rows[-1] == [CAUTION_FIELD] + [""] * (len(rows[0]) - 1), path.name
+        assert all(CAUTION_FIELD not in row for row in rows[:-1]), path.name  # only once, at the end
+        assert path.read_bytes().endswith(b"," * (len(rows[0]) - 1) + b"\r\n"), path.name  # nothing after it
 
 
 # --- stock.csv ---------------------------------------------------------------------------

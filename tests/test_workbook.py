@@ -211,17 +211,75 @@ def test_stored_charge_values_equal_the_plan(plan, book):
 
 
 def test_mass_and_volume_cells_hold_formulas(plan, book):
+    """Every mass and volume to charge is a live formula, except those of an
+    intermediate carried in solution: the plan's plain numbers (nothing to weigh)."""
+    carried = 0
     for sp, _k, name in charge_sheet_names(plan):
         ws = book.f[name]
         _h, col, rows = charge_table(ws)
         for r, c in zip(rows, sp.charges):
             mass = ws.cell(r, col["mass to charge [kg]"])
-            assert mass.data_type == "f" and mass.value.startswith("="), (name, c.material, mass.value)
             vol = ws.cell(r, col["volume to charge [L]"])
+            if c.carried_from is not None:
+                assert (mass.data_type, vol.data_type) == ("n", "n"), (name, c.material)
+                carried += 1
+                continue
+            assert mass.data_type == "f" and mass.value.startswith("="), (name, c.material, mass.value)
             if c.volume is None:
                 assert vol.value is None
             else:
                 assert vol.data_type == "f", (name, c.material, vol.value)
+    assert carried == 1  # the salt, in solution from the telescoped step
+
+
+def _lot_rules(ws):
+    """Data validation of each cell of a sheet: ``{"J13": rule}``."""
+    return {rng.coord: dv for dv in ws.data_validations.dataValidation for rng in dv.sqref.ranges}
+
+
+def test_intermediate_in_solution_is_transferred_not_weighed(plan, book):
+    """The salt made by the telescoped step A?1/[prep] comes in its reaction mixture:
+    the sheet says to transfer the whole mixture, the volume to charge is the plan's
+    volume of mixture carried in (the salt has no density, so it cannot be mass /
+    density), the mass is the salt's content shown in italics, and the lot assay is
+    grey and read by no formula."""
+    from openpyxl.utils import get_column_letter as L
+
+    src, sp = plan.steps[1], plan.steps[2]
+    c = next(c for c in sp.charges if c.material == "salt")
+    assert c.carried_from == src.id and not src.isolated
+    assert plan.route.materials["salt"].density is None
+    name = next(n for s, _k, n in charge_sheet_names(plan) if s is sp)
+    ws, wv = book.f[name], book.v[name]
+    _h, col, rows = charge_table(ws)
+    r = rows[c.order - 1]
+    assert ws.cell(r, col["key"]).value == "salt"
+    role = ws.cell(r, col["role"]).value
+    assert f"in solution from {src.id}" in role and "transfer the whole mixture" in role
+    assert "limiting reagent" in role
+    # the whole mixture of the one-batch telescoped step goes into the one batch
+    vol = ws.cell(r, col["volume to charge [L]"])
+    assert vol.data_type == "n" and close(vol.value, c.volume.m_as("L") / sp.batches)
+    assert close(vol.value, src.batch.step_volume.m_as("L"))
+    assert vol.font.b
+    mass = ws.cell(r, col["mass to charge [kg]"])
+    assert mass.data_type == "n" and close(mass.value, c.mass.m_as("kg") / sp.batches)
+    assert mass.font.i and not mass.font.b
+    assert close(wv.cell(r, col["mass to charge [kg]"]).value, c.mass.m_as("kg") / sp.batches)
+    # the lot-assay cell is grey like that of the solution by molarity (HCl6M), and only recorded
+    lot = ws.cell(r, col["lot assay [%]"])
+    hcl_r = rows[[x.material for x in sp.charges].index("HCl6M")]
+    assert lot.fill.fgColor.rgb == ws.cell(hcl_r, col["lot assay [%]"]).fill.fgColor.rgb
+    assert lot.fill.fgColor.rgb != ws.cell(rows[1], col["lot number"]).fill.fgColor.rgb  # not the fill-in green
+    rules = _lot_rules(ws)
+    assert rules[lot.coordinate].type in (None, "any")
+    assert "no lot assay" in rules[lot.coordinate].prompt
+    assert "nothing is weighed" in rules[mass.coordinate].prompt
+    used = " ".join(str(x.value) for row in ws.iter_rows() for x in row if x.data_type == "f")
+    assert f"{L(col['lot assay [%]'])}{r}" not in used
+    # the acetone by volumes still follows the limiting salt's (now plain) mass cell
+    acetone_r = rows[[x.material for x in sp.charges].index("acetone")]
+    assert f"{L(col['mass to charge [kg]'])}{r}" in ws.cell(acetone_r, col["volume to charge [L]"]).value
 
 
 def test_formulas_follow_the_design(plan, book):
@@ -384,21 +442,26 @@ def test_print_setup_panes_formats(plan, book):
 
 
 def test_lot_assay_cells_accept_only_a_fraction(plan, book):
-    sp = plan.steps[0]
-    ws = book.f[charge_sheet_names(plan)[0][2]]
-    _h, col, rows = charge_table(ws)
-    lot = openpyxl.utils.get_column_letter(col["lot assay [%]"])
-    rules = {}
-    for dv in ws.data_validations.dataValidation:
-        for rng in dv.sqref.ranges:
-            rules[rng.coord] = dv
-    for r, c in zip(rows, sp.charges):
-        dv = rules[f"{lot}{r}"]
-        if c.equiv is not None:
-            assert dv.type == "decimal" and dv.operator in (None, "between")  # "between" is the default
-            assert float(dv.formula1) > 0 and float(dv.formula2) == 1
-        else:
-            assert dv.type is None or dv.type == "any"  # recorded only
+    """A lot assay is asked for where a charge by equiv (or mol %) of a solid, a neat
+    liquid or a solution by mass fraction depends on it; elsewhere (volumes, mass ratio,
+    a solution by molarity, an intermediate carried in solution) it is recorded only."""
+    kinds = set()
+    for sp, _k, name in charge_sheet_names(plan):
+        ws = book.f[name]
+        _h, col, rows = charge_table(ws)
+        lot = openpyxl.utils.get_column_letter(col["lot assay [%]"])
+        rules = _lot_rules(ws)
+        for r, c in zip(rows, sp.charges):
+            dv = rules[f"{lot}{r}"]
+            sol = plan.route.materials[c.material].solution
+            asked = c.equiv is not None and c.carried_from is None and not (sol and sol.molarity is not None)
+            if asked:
+                assert dv.type == "decimal" and dv.operator in (None, "between")  # "between" is the default
+                assert float(dv.formula1) > 0 and float(dv.formula2) == 1
+            else:
+                assert dv.type is None or dv.type == "any", (name, c.material)  # recorded only
+            kinds.add(asked)
+    assert kinds == {True, False}
 
 
 def test_pandas_sees_numbers(plan, book):

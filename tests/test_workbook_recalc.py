@@ -13,7 +13,8 @@ own results, read back with openpyxl (``data_only=True``).
   number to a relative 1e-9.
 * Lot assays typed into a copy (with openpyxl, as a person would in the plant) raise
   the mass to charge by planned assay / lot assay, and the solvent linked to the
-  limiting reagent with it; charges that do not depend on them stay.
+  limiting reagent with it; charges that do not depend on them stay (a solution by
+  molarity, a solvent by volumes, an intermediate carried in solution).
 * The stock table's ``to buy = MAX(0, need - on hand)`` recalculates to the Plan's
   masses to buy, and follows an on-hand mass typed into a copy.
 
@@ -56,6 +57,7 @@ LOTS = [
     (3, "bromoester", 0.95),    # reagent by equiv with a density, planned 98 %
     (3, "HCl6M", 0.50),         # solution by molarity: recorded only, changes nothing
     (3, "acetone", 0.90),       # solvent by volumes: recorded only, changes nothing
+    (3, "salt", 0.50),          # limiting, in solution from the telescoped step: recorded only
 ]
 
 
@@ -216,8 +218,9 @@ def test_a_lower_lot_assay_raises_the_charge(recalc):
     m, v = _mass_volume(last, "bromoester")
     pm, pv = planned(3, "bromoester")
     assert close(m, pm * 0.98 / 0.95) and close(v, pv * 0.98 / 0.95)
-    # recorded-only lot assays change nothing
-    for material in ("HCl6M", "acetone"):
+    # recorded-only lot assays change nothing: not even the acetone by volumes, which
+    # follows the mass cell of the limiting salt carried in solution
+    for material in ("HCl6M", "acetone", "salt"):
         m, v = _mass_volume(last, material)
         pm, pv = planned(3, material)
         assert close(m, pm) and close(v, pv), material

@@ -299,3 +299,35 @@ def test_summary_and_materials_fit_the_same_budget(stock_book, sheet):
     total = sum(printed_px(w) for w in widths.values())
     assert total <= PRINT_BUDGET_PX, total
     assert ws.sheet_properties.pageSetUpPr.fitToPage and ws.page_setup.orientation == "landscape"
+
+
+# --- one percent format ---------------------------------------------------------------------
+
+
+def test_every_percentage_has_one_number_format(stock_plan, stock_book):
+    """Fill, yields, atom economy, reaction mass efficiency, overage, assays and lot
+    assays: every cell shown as a percent on the Summary, the charge sheets and the
+    Materials sheet has the same number format, one decimal (38.0%, 47.6%, 28.1%)."""
+    from routeplan.export.workbook_styles import PERCENT_FORMAT
+
+    assert PERCENT_FORMAT == "0.0%"
+    wb = stock_book.f
+    formats = {c.number_format for ws in wb.worksheets for row in ws.iter_rows() for c in row
+               if "%" in c.number_format}
+    assert formats == {"0.0%"}, formats
+    # and the cells that must be percentages are
+    ws = wb["Summary"]
+    _h, col, rows = table(ws, "step", "name")
+    for heading in ("vessel fill [%]", "yield [%]", "atom economy [%]", "reaction mass efficiency [%]"):
+        assert ws.cell(rows[0], col[heading]).number_format == "0.0%", heading
+    assert ws.cell(*_where(stock_book.v["Summary"], "overall yield (longest linear sequence) [%]")).number_format \
+        == "0.0%"
+    assert ws.cell(*_where(stock_book.v["Summary"], "overage [%]")).number_format == "0.0%"
+    for _sp, _k, name in charge_sheet_names(stock_plan):
+        sheet = wb[name]
+        _h, ccol, crows = charge_table(sheet)
+        for r in crows:
+            assert sheet.cell(r, ccol["assay [%]"]).number_format == "0.0%"
+            assert sheet.cell(r, ccol["lot assay [%]"]).number_format == "0.0%"
+        assert sheet.cell(*_where(stock_book.v[name], "yield (expected) [%]")).number_format == "0.0%"
+

@@ -19,6 +19,11 @@ Files written into ``DIR`` (made if missing), each atomically:
     whether it is in stock.  ``summary.csv`` then also says the largest target the
     stock allows and the material that limits it.
 
+Every file ends with one row whose first field is ``CAUTION: `` and the caution
+(:data:`routeplan.CAUTION`), its other fields empty: the files are read by people too.
+A program reading the numbers drops that last row (pandas: ``skipfooter=1,
+engine="python"``).
+
 Numbers are written in full precision in the units of the headings (mol, kg, L, g/mol,
 g/mL; fractions from 0 to 1 where the heading says ``[%]`` or ``[-]``); an empty field
 means "does not apply".  Text that a spreadsheet would run as a formula — a field
@@ -45,7 +50,8 @@ from routeplan.export.sheet_rows import (STEP_COLUMNS, STEP_METRIC_COLUMNS, STOC
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
 
-__all__ = ["FORMULA_STARTS", "neutralise", "csv_field", "step_file_name", "write_table", "write_csv"]
+__all__ = ["FORMULA_STARTS", "neutralise", "csv_field", "caution_row", "step_file_name", "write_table",
+           "write_csv"]
 
 #: First characters that make a spreadsheet treat a field as a formula (OWASP).
 FORMULA_STARTS = ("=", "+", "-", "@", "\t", "\r")
@@ -78,6 +84,21 @@ def csv_field(value: Any) -> Any:
     return neutralise(str(value))
 
 
+def caution_row(width: int) -> list[str]:
+    """The last row of every CSV file: ``CAUTION: `` and the caution in the first of
+    ``width`` fields, the others empty (neutralised like any text field).
+
+    Examples
+    --------
+    >>> row = caution_row(3)
+    >>> row[0].startswith("CAUTION: Planning estimates only"), row[1:]
+    (True, ['', ''])
+    """
+    from routeplan import CAUTION
+
+    return [neutralise("CAUTION: " + CAUTION)] + [""] * (width - 1)
+
+
 def step_file_name(index: int, step_id: str) -> str:
     """File name of a step's charges: ``charges-NN-<id>.csv``, the id reduced to
     letters, digits, ``.``, ``_`` and ``-`` (at most 40 characters).
@@ -93,7 +114,8 @@ def step_file_name(index: int, step_id: str) -> str:
 
 def write_table(path: str | os.PathLike, columns: Sequence[Column], rows: Iterable[dict[str, Any]]) -> Path:
     """Write ``rows`` under the headings of ``columns`` (titles with units) to the CSV
-    file ``path``, atomically (UTF-8, comma-separated, RFC 4180 quoting)."""
+    file ``path``, atomically (UTF-8, comma-separated, RFC 4180 quoting), and the
+    caution as the last row (:func:`caution_row`)."""
     from routeplan.export.atomic import atomic_path
 
     target = Path(path)
@@ -103,6 +125,7 @@ def write_table(path: str | os.PathLike, columns: Sequence[Column], rows: Iterab
             writer.writerow([neutralise(c.title) for c in columns])
             for row in rows:
                 writer.writerow([csv_field(row.get(c.key)) for c in columns])
+            writer.writerow(caution_row(len(columns)))
     return target
 
 

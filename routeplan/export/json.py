@@ -30,6 +30,7 @@ def _charge(c, batches: int) -> dict[str, Any]:
         "basis": c.basis,
         "basis_value": c.basis_value,
         "intermediate": c.intermediate,
+        "carried_from": c.carried_from,
         "per_batch": {
             "mol": None if c.mol is None else _m(c.mol, "mol") / batches,
             "mass_kg": _m(c.mass, "kg") / batches,

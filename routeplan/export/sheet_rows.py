@@ -131,9 +131,12 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
     ([mol], [kg], [L]); material data come from the route: molar mass [g/mol], assay
     [-] (a solution's mass fraction, None for a solution by molarity), concentration of
     a solution by molarity [mol/L], density as supplied [g/mL] (a solution's own).
-    ``rule`` says how the mass follows (:func:`charge_rule`); ``limiting`` marks the
-    limiting reagent's line; ``made_in`` names the step that makes an intermediate and
-    ``in_solution`` is True when that step is telescoped.
+    ``rule`` says how the mass follows (:func:`charge_rule`), or is ``"carried"`` for
+    an intermediate that comes in solution from a telescoped step: its ``volume_L`` is
+    then the volume of that step's mixture carried in [L] and ``mass_kg`` the mass of
+    the compound in it [kg], nothing weighed.  ``limiting`` marks the limiting
+    reagent's line; ``made_in`` names the step that makes an intermediate and
+    ``in_solution`` is True when it is carried in solution.
     """
     route = plan.route
     n = sp.batches
@@ -143,7 +146,7 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
     for c in sp.charges:
         mat = route.materials[c.material]
         sol = mat.solution
-        rule = charge_rule(c.basis, mat)
+        rule = "carried" if c.carried_from is not None else charge_rule(c.basis, mat)
         if sol is not None:
             assay = sol.mass_fraction
             density = sol.density
@@ -171,8 +174,8 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
             "hazards": "; ".join(mat.hazards),
             "rule": rule,
             "limiting": is_limiting,
-            "made_in": None if made is None else made.id,
-            "in_solution": made is not None and not made.isolated,
+            "made_in": c.carried_from or (None if made is None else made.id),
+            "in_solution": c.carried_from is not None,
             "intermediate": c.intermediate,
         })
     return rows

@@ -55,6 +55,7 @@ CHARGE_COLUMNS = (
     Column("batch_mass_kg", "mass per batch", "kg"),
     Column("batch_volume_L", "volume per batch", "L"),
     Column("intermediate", "made in route"),
+    Column("carried_from", "in solution from step"),
 )
 
 RAW_COLUMNS = (
@@ -95,6 +96,7 @@ def step_charge_rows(sp: "StepPlan") -> list[dict[str, Any]]:
             "batch_mass_kg": mass / n,
             "batch_volume_L": None if vol is None else vol / n,
             "intermediate": c.intermediate,
+            "carried_from": c.carried_from,
         })
     return rows
 

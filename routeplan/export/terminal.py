@@ -21,10 +21,21 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = ["print_plan", "fmt", "make_console"]
 
 
+class _Console(Console):
+    """A rich console that leaves quietly, with a shell's code 141, when its reader goes away."""
+
+    def on_broken_pipe(self) -> None:
+        import os
+
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, 1)  # nothing more reaches the closed pipe
+        raise SystemExit(141)  # 128 + SIGPIPE
+
+
 def make_console() -> Console:
     """A console for standard output; 120 columns when piped to a file (no need to squeeze)."""
-    con = Console()
-    return con if con.is_terminal else Console(width=120)
+    con = _Console()
+    return con if con.is_terminal else _Console(width=120)
 
 
 def fmt(value: float | None, digits: int = 4) -> str:
@@ -60,7 +71,11 @@ def _step_table(sp, route) -> Table:
         t.add_column(escape(f"m/batch [{mu}]"), justify="right")
         t.add_column(escape(f"V/batch [{vu}]"), justify="right")
     for r in rows:
-        name = r["material"] + (f" ({made_in[r['material']]})" if r["intermediate"] else "")
+        name = r["material"]
+        if r["carried_from"]:
+            name += f" ({r['carried_from']}, in solution)"
+        elif r["intermediate"]:
+            name += f" ({made_in[r['material']]})"
         cells = [
             str(r["order"]), name, r["role"], fmt(r["equiv"], 3),
             fmt(None if r["mol"] is None else r["mol"] / nf),
@@ -118,12 +133,15 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
 
     con = console or make_console()
     tm = plan.target_mass.m_as("kg")
+    overage = plan.route.target.overage
+    made_of = (f"{fmt(tm / (1 + overage))} kg + {overage * 100:.3g} % overage, " if overage else "")
     con.print(f"[bold]{escape(plan.route.name)}[/bold]: {fmt(tm)} kg of {escape(plan.target_material)} "
-              f"({fmt(plan.target_mol.m_as('mol'))} mol), {len(plan.steps)} step{'s' if len(plan.steps) != 1 else ''}"
+              f"({made_of}{fmt(plan.target_mol.m_as('mol'))} mol), "
+              f"{len(plan.steps)} step{'s' if len(plan.steps) != 1 else ''}"
               + (f", planned at the steps' [bold]{plan.yield_basis}[/bold] yields" if plan.yield_basis != "expected"
                  else ""))
     con.print("[dim]n: amount of the compound, m: mass and V: volume as charged; "
-              "(S1) after a material: made in step S1[/dim]")
+              "(S1) after a material: made in step S1; in solution: V is the reaction mixture carried in[/dim]")
     con.print()
     for sp in plan.steps:
         title = f"{sp.id} · {sp.name}" if sp.name and sp.name != sp.id else sp.id

@@ -11,8 +11,11 @@ Sheets, in order:
     :mod:`routeplan.export.workbook_summary`.
 one charge sheet per step and batch
     Named after the step id (``S1``, or ``S1 batch 2 of 3``), made valid and unique;
-    see :mod:`routeplan.export.workbook_charges` for the layout, the print area and the
-    live formulas.
+    see :mod:`routeplan.export.workbook_charges` for the layout and the print area, and
+    :mod:`routeplan.export.workbook_charge_table` for the live formulas.  A step of more
+    than :data:`MAX_BATCH_SHEETS` batches gets one sheet (``S1 all 596 batches``) headed
+    "each of 596 batches (identical)", its quantities per batch: a vessel given in mL
+    instead of L must not make a workbook of hundreds of sheets.
 ``Materials``
     Every material of the route: formula, molar mass, assay, density, solution data,
     price, hazards.
@@ -36,6 +39,7 @@ __all__ = [
     "SUMMARY_SHEET",
     "MATERIALS_SHEET",
     "MAX_SHEET_NAME",
+    "MAX_BATCH_SHEETS",
     "write_workbook",
     "charge_sheet_names",
     "safe_sheet_name",
@@ -44,6 +48,10 @@ __all__ = [
 
 SUMMARY_SHEET = "Summary"
 MATERIALS_SHEET = "Materials"
+
+#: Most batches of one step that get a charge sheet each; a step of more batches gets
+#: one sheet for all of them (they are identical) [-].
+MAX_BATCH_SHEETS = 12
 
 #: Longest sheet name a spreadsheet accepts [UTF-16 code units].
 MAX_SHEET_NAME = 31
@@ -90,16 +98,27 @@ def safe_sheet_name(base: str, suffix: str, taken: set[str]) -> str:
         n += 1
 
 
-def charge_sheet_names(plan: "Plan") -> list[tuple["StepPlan", int, str]]:
+def charge_sheet_names(plan: "Plan") -> list[tuple["StepPlan", int | None, str]]:
     """``(step, batch number, sheet name)`` of every charge sheet, in execution order.
 
-    A step of one batch is named after its id; a step of ``n`` batches gives sheets
-    ``"<id> batch k of n"``.
+    A step of one batch is named after its id; a step of ``n`` batches, ``n`` at most
+    :data:`MAX_BATCH_SHEETS`, gives sheets ``"<id> batch k of n"``; a step of more
+    batches gives one sheet ``"<id> all n batches"`` whose batch number is None (it
+    stands for each of them).
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace as NS
+    >>> [(k, name) for _sp, k, name in charge_sheet_names(NS(steps=[NS(id="S1", batches=2), NS(id="S2", batches=596)]))]
+    [(1, 'S1 batch 1 of 2'), (2, 'S1 batch 2 of 2'), (None, 'S2 all 596 batches')]
     """
     taken = {name.casefold() for name in _RESERVED}
-    out = []
+    out: list[tuple["StepPlan", int | None, str]] = []
     for sp in plan.steps:
         n = sp.batches
+        if n > MAX_BATCH_SHEETS:
+            out.append((sp, None, safe_sheet_name(sp.id, f" all {n} batches", taken)))
+            continue
         for k in range(1, n + 1):
             suffix = f" batch {k} of {n}" if n > 1 else ""
             out.append((sp, k, safe_sheet_name(sp.id, suffix, taken)))

@@ -1,47 +1,30 @@
-"""One charge sheet: one batch of one step, with live formulas and the plant's columns.
+"""One charge sheet: one batch of one step (or each of its many identical batches),
+with live formulas and the plant's columns.
 
-Layout (rows from the top): title with "batch k of n", the caution, a header block
-(step, name, equation, vessel, yield, limiting reagent, product per batch, route,
-route file and its SHA-256, notes), then the charge table — one row per charge in
-order of addition — and a short sign-off block under it.
+Layout (rows from the top): title with "batch k of n" (or "each of n batches
+(identical)" for a step of more than
+:data:`~routeplan.export.workbook.MAX_BATCH_SHEETS` batches, which gets one sheet), the
+caution, a header block (step, name, equation, vessel, yield, limiting reagent, product
+per batch, route, route file and its SHA-256, notes), then the charge table — one row
+per charge in order of addition — and a short sign-off block under it.
 
-Columns of the charge table, from A: the planned columns the plant reads
-(:data:`PRINTED_COLUMNS`: order, material, role, basis, equiv, amount, planned assay,
-mass and volume to charge, hazards), the plant's fill-in columns, and then, outside the
-print area, the material data the formulas read (:data:`REFERENCE_COLUMNS`: key, molar
-mass, concentration, density).  Column widths are capped (:data:`WIDTH_BOUNDS`) and
-long text wraps, so the print area fitted to one landscape page wide prints at about
-80 % or more on Letter or A4: 10-pt text at 8 pt or larger (:data:`PRINT_BUDGET_PX`).
-
-The live formulas (``r`` is the row of the charge, ``lim`` the row of the limiting
-reagent in the same sheet):
-
-* charged on a molar basis (equiv, mol %, stoichiometric), a solid, a neat liquid or
-  a solution by mass fraction::
-
-      mass [kg]   = amount [mol] * M [g/mol] / 1000 / effective assay
-      effective assay = lot assay when a number is typed in it, else the planned assay
-      volume [L]  = mass [kg] / density [g/mL]          (where a density is known)
-
-  (for a solution by mass fraction, the "assay" is its mass fraction, and the lot
-  assay is the lot's measured mass fraction);
-* a solution by molarity: ``volume = amount / concentration``,
-  ``mass = volume * density``; the lot assay is recorded only;
-* ``volumes``: ``volume = volumes [L/kg] * mass of limiting reagent in this batch``
-  (the cell of that row, so a weaker lot of limiting reagent, charged heavier, also
-  raises the solvent), ``mass = volume * density``;
-* ``mass_ratio``: ``mass = ratio [kg/kg] * mass of limiting reagent in this batch``,
-  ``volume = mass / density``.
-
-Every formula is stored with the plan's number as its computed value.
+The charge table's columns and live formulas are those of
+:mod:`routeplan.export.workbook_charge_table`: the planned columns the plant reads
+(:data:`PRINTED_COLUMNS`), the plant's fill-in columns, and then, outside the print
+area, the material data the formulas read (:data:`REFERENCE_COLUMNS`).  Column widths
+are capped (:data:`WIDTH_BOUNDS`) and long text wraps, so the print area fitted to one
+landscape page wide prints at about 80 % or more on Letter or A4: 10-pt text at 8 pt
+or larger (:data:`PRINT_BUDGET_PX`).
 """
 
 from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from routeplan.export.tables import Column
-from routeplan.export.sheet_rows import BATCH_COLUMNS, batch_charge_rows
+from routeplan.export.sheet_rows import batch_charge_rows
+from routeplan.export.workbook_charge_table import (COL, FILL_IN_COLUMNS, LAST_COLUMN, PRINT_LAST_COLUMN,
+                                                    PRINTED_COLUMNS, REFERENCE_COLUMNS, SHEET_COLUMNS,
+                                                    charge_formulas, role_text, write_charge_row)
 from routeplan.export.workbook_styles import (Styles, escape_header, fit_widths, lines_height, put, sheet_title,
                                               wrapped_lines)
 
@@ -61,39 +44,9 @@ __all__ = [
     "PRINT_BUDGET_PX",
     "write_charge_sheet",
     "charge_formulas",
+    "batch_text",
     "page_texts",
 ]
-
-#: Columns the plant fills in, after the planned columns.
-FILL_IN_COLUMNS = (
-    Column("lot", "lot number"),
-    Column("lot_assay", "lot assay", "-"),
-    Column("actual_mass_kg", "actual mass charged", "kg"),
-    Column("checked_by", "checked by"),
-)
-
-_BY_KEY = {c.key: c for c in BATCH_COLUMNS}
-
-#: Planned columns that are printed, from column A: what the plant charges and how much.
-PRINTED_COLUMNS = tuple(_BY_KEY[k] for k in (
-    "order", "name", "role", "basis", "basis_value", "equiv", "mol", "assay", "mass_kg", "volume_L",
-    "hazards"))
-
-#: Columns right of the fill-in columns, outside the print area: the material data
-#: the formulas read, for checking on screen.
-REFERENCE_COLUMNS = tuple(_BY_KEY[k] for k in ("material", "molar_mass", "molarity", "density"))
-
-#: Every column of the charge table, in sheet order from column A.
-SHEET_COLUMNS = PRINTED_COLUMNS + FILL_IN_COLUMNS + REFERENCE_COLUMNS
-
-#: Column index (0-based) of each column key.
-COL = {c.key: i for i, c in enumerate(SHEET_COLUMNS)}
-
-#: Last column index of the table.
-LAST_COLUMN = len(SHEET_COLUMNS) - 1
-
-#: Last column index of the print area (the last fill-in column).
-PRINT_LAST_COLUMN = COL[FILL_IN_COLUMNS[-1].key]
 
 #: Row index (0-based) of the charge table's headings; charges start on the next row.
 TABLE_HEADING_ROW = 11
@@ -126,75 +79,37 @@ _RIGHT = (8, 10, 11, PRINT_LAST_COLUMN)
 _WIDE = (0, 2, 3, PRINT_LAST_COLUMN)
 
 
-def _cell(row: int, key: str) -> str:
-    from xlsxwriter.utility import xl_rowcol_to_cell
+def batch_text(k: int | None, n: int) -> str:
+    """Which batch a charge sheet is for: ``"2 of 3"``, or for one sheet standing for
+    every batch of a step (``k`` None) ``"each of 596 batches (identical)"``.
 
-    return xl_rowcol_to_cell(row, COL[key])
-
-
-def charge_formulas(row: dict[str, Any], r: int, lim_row: int | None, lim_mass: float) -> tuple[str | None, str | None]:
-    """The mass and volume formulas of a charge written on sheet row ``r``.
-
-    Parameters
-    ----------
-    row : dict
-        A row of :func:`routeplan.export.sheet_rows.batch_charge_rows`.
-    r : int
-        Its 0-based sheet row.
-    lim_row : int or None
-        0-based row of the limiting reagent's charge on the same sheet.
-    lim_mass : float
-        Mass of limiting reagent in the batch [kg], used only when ``lim_row`` is None.
-
-    Returns
-    -------
-    tuple of (str or None, str or None)
-        Mass formula (None when the mass is written as a plain number) and volume
-        formula (None where no volume is known).
+    Examples
+    --------
+    >>> batch_text(2, 3)
+    '2 of 3'
+    >>> batch_text(None, 596)
+    'each of 596 batches (identical)'
     """
-    mol, mm, assay = _cell(r, "mol"), _cell(r, "molar_mass"), _cell(r, "assay")
-    lot, conc, dens = _cell(r, "lot_assay"), _cell(r, "molarity"), _cell(r, "density")
-    ratio, mass, vol = _cell(r, "basis_value"), _cell(r, "mass_kg"), _cell(r, "volume_L")
-    basis_mass = _cell(lim_row, "mass_kg") if lim_row is not None else repr(float(lim_mass))
-    has_density = row["density"] is not None
-    rule = row["rule"]
-    if rule == "molar":
-        if row["mol"] is None or row["molar_mass"] is None or row["assay"] is None:
-            return None, (f"={mass}/{dens}" if has_density and row["volume_L"] is not None else None)
-        m = f"={mol}*{mm}/1000/IF(ISNUMBER({lot}),{lot},{assay})"
-        v = f"={mass}/{dens}" if has_density and row["volume_L"] is not None else None
-        return m, v
-    if rule == "molarity":
-        return f"={vol}*{dens}", f"={mol}/{conc}"
-    if rule == "volumes":
-        return f"={vol}*{dens}", f"={ratio}*{basis_mass}"
-    # mass_ratio
-    return f"={ratio}*{basis_mass}", (f"={mass}/{dens}" if has_density and row["volume_L"] is not None else None)
+    return f"each of {n} batches (identical)" if k is None else f"{k} of {n}"
 
 
-def _role_text(row: dict[str, Any]) -> str:
-    parts = [row["role"]]
-    if row["limiting"]:
-        parts.append("limiting reagent")
-    if row["made_in"]:
-        parts.append(f"in solution from {row['made_in']}" if row["in_solution"] else f"made in {row['made_in']}")
-    return ", ".join(parts)
-
-
-def _vessel_text(plan: "Plan", sp: "StepPlan") -> str:
+def _vessel_text(plan: "Plan", sp: "StepPlan", k: int | None) -> str:
     if sp.vessel is None:
         return "(none given)"
     vessel = plan.route.equipment.get(sp.vessel)
     if vessel is None:
         return sp.vessel
-    text = f"{sp.vessel}: {vessel.volume.m_as('L'):g} L nominal, fill at most {vessel.max_fill:.0%}"
+    text = f"{sp.vessel}: {vessel.volume.m_as('L'):g} L nominal, fill at most {vessel.max_fill:.1%}"
     if sp.batch is not None and sp.batch.fill_fraction is not None:
-        text += f"; this batch fills {sp.batch.fill_fraction:.0%}"
+        which = "each batch" if k is None else "this batch"
+        text += f"; {which} fills {sp.batch.fill_fraction:.1%}"
     return text
 
 
-def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int, context: dict[str, str]) -> dict[str, Any]:
-    """Write batch ``k`` of step ``sp`` on worksheet ``ws``.
+def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int | None,
+                       context: dict[str, str]) -> dict[str, Any]:
+    """Write batch ``k`` of step ``sp`` on worksheet ``ws``, or, with ``k`` None, one
+    sheet for each of its batches (they are identical: every quantity is per batch).
 
     Parameters
     ----------
@@ -203,8 +118,10 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int, con
     plan : Plan
     sp : StepPlan
         The step.
-    k : int
-        Batch number, from 1.
+    k : int or None
+        Batch number, from 1; None for a sheet that stands for every batch of the
+        step (headed "each of n batches (identical)", printed once per batch, with a
+        line for the batch number in its sign-off block).
     context : dict
         ``written`` (date text), ``route_line`` (route name, file and SHA-256),
         ``header`` and ``footer`` (print texts).
@@ -220,17 +137,18 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int, con
     n = sp.batches
     rows = batch_charge_rows(plan, sp)
     widths = _set_widths(ws, rows)
-    ws.write_string(0, 0, f"Charge sheet · step {sp.id} · batch {k} of {n}", st.title)
+    which = f"batch {k} of {n}" if k is not None else batch_text(None, n)
+    ws.write_string(0, 0, f"Charge sheet · step {sp.id} · {which}", st.title)
     ws.merge_range(1, 0, 1, PRINT_LAST_COLUMN, "", st.caution)
     ws.write_string(1, 0, "CAUTION: " + CAUTION, st.caution)
     ws.set_row(1, 28)
     pair = _Pairs(ws, st, widths)
     pair(2, _LEFT, "step", sp.id)
-    pair(2, _RIGHT, "batch", f"{k} of {n}")
+    pair(2, _RIGHT, "batch", batch_text(k, n) + ("; print one copy per batch" if k is None else ""))
     pair(3, _LEFT, "name", sp.name)
     pair(3, _RIGHT, "written", context["written"])
     pair(4, _WIDE, "equation", sp.equation)
-    pair(5, _WIDE, "vessel", _vessel_text(plan, sp))
+    pair(5, _WIDE, "vessel", _vessel_text(plan, sp, k))
     pair(6, _LEFT, "yield (expected) [%]", sp.yield_, st.value_percent)
     batch_volume = None if sp.batch is None else float(sp.batch.batch_volume.m_as("L"))
     pair(6, _RIGHT, "volume per batch [L]", batch_volume, st.quantity(batch_volume, plain=True))
@@ -261,27 +179,29 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int, con
     lim_mass = float(sp.limiting_mass.m_as("kg")) / n
     for i, row in enumerate(rows):
         r = first + i
-        _write_charge_row(ws, st, row, r, lim_row, lim_mass)
+        write_charge_row(ws, st, row, r, lim_row, lim_mass)
         lines = max(wrapped_lines(_text_of(row, key), widths[COL[key]]) for key in _TEXT_KEYS)
         ws.set_row(r, lines_height(lines, _CHARGE_ROW_HEIGHT))
     last = first + len(rows) - 1
 
     s = last + 2
     put(ws, s, 0, "Sign-off (fill in at the vessel)", st.subtitle)
-    for j, label in enumerate(("batch started (date, time)", "charged by", "checked by",
-                               "product obtained [kg]", "remarks")):
+    labels = ("batch started (date, time)", "charged by", "checked by", "product obtained [kg]", "remarks")
+    if k is None:
+        labels = (f"batch number (1 to {n})",) + labels
+    for j, label in enumerate(labels):
         r = s + 1 + j
         ws.merge_range(r, 0, r, 2, "", st.label)
         put(ws, r, 0, label, st.label)
         ws.merge_range(r, 3, r, COL["hazards"], "", st.fill_sign)
         ws.set_row(r, 22)
     ws.freeze_panes(h + 1, 0)
-    _page_setup(ws, h, s + 5, context)
+    _page_setup(ws, h, s + len(labels), context)
     return {"first_row": first, "last_row": last, "rows": rows}
 
 
 def _text_of(row: dict[str, Any], key: str) -> Any:
-    return _role_text(row) if key == "role" else row.get(key)
+    return role_text(row) if key == "role" else row.get(key)
 
 
 def _set_widths(ws, rows: list[dict[str, Any]]) -> list[float]:
@@ -318,61 +238,6 @@ class _Pairs:
         for r, lines in self.lines.items():
             if lines > 1:
                 self.ws.set_row(r, lines_height(lines))
-
-
-def _write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int | None, lim_mass: float) -> None:
-    put(ws, r, COL["order"], row["order"], st.integer)
-    put(ws, r, COL["material"], row["material"], st.cell_text)
-    put(ws, r, COL["name"], row["name"], st.cell_text)
-    put(ws, r, COL["role"], _role_text(row), st.cell_text)
-    put(ws, r, COL["basis"], row["basis"], st.cell_text)
-    put(ws, r, COL["basis_value"], row["basis_value"], st.ratio)
-    put(ws, r, COL["equiv"], row["equiv"], st.ratio)
-    put(ws, r, COL["mol"], row["mol"], st.quantity(row["mol"]))
-    put(ws, r, COL["molar_mass"], row["molar_mass"], st.molar_mass)
-    put(ws, r, COL["assay"], row["assay"], st.percent)
-    put(ws, r, COL["molarity"], row["molarity"], st.density)
-    put(ws, r, COL["density"], row["density"], st.density)
-    put(ws, r, COL["hazards"], row["hazards"], st.cell_text)
-
-    mass_f, vol_f = charge_formulas(row, r, lim_row, lim_mass)
-    mass_fmt = st.quantity(row["mass_kg"], bold=True)
-    if mass_f is None:
-        put(ws, r, COL["mass_kg"], row["mass_kg"], mass_fmt)
-    else:
-        ws.write_formula(r, COL["mass_kg"], mass_f, mass_fmt, row["mass_kg"])
-    vol_fmt = st.quantity(row["volume_L"], bold=True)
-    if vol_f is None or row["volume_L"] is None:
-        put(ws, r, COL["volume_L"], None, vol_fmt)
-    else:
-        ws.write_formula(r, COL["volume_L"], vol_f, vol_fmt, row["volume_L"])
-
-    put(ws, r, COL["lot"], None, st.fill_text)
-    lot_col = COL["lot_assay"]
-    if row["rule"] == "molar" and mass_f is not None:
-        put(ws, r, lot_col, None, st.fill_percent)
-        ws.data_validation(r, lot_col, r, lot_col, {
-            "validate": "decimal", "criteria": "between", "minimum": 0.0001, "maximum": 1,
-            "input_title": "Lot assay",
-            "input_message": "Type the lot's assay as a percent, e.g. 97.5 %. The mass and "
-                             "volume to charge recalculate; leave empty to use the planned assay.",
-            "error_title": "Lot assay",
-            "error_message": "An assay is a percent above 0 % and at most 100 %.",
-        })
-    else:
-        put(ws, r, lot_col, None, st.not_used)
-        ws.data_validation(r, lot_col, r, lot_col, {
-            "validate": "any",
-            "input_title": "Recorded only",
-            "input_message": "This charge does not depend on the lot assay (charged by volume, "
-                             "by mass ratio or as a solution by molarity).",
-        })
-    put(ws, r, COL["actual_mass_kg"], None, st.fill_mass)
-    ws.data_validation(r, COL["actual_mass_kg"], r, COL["actual_mass_kg"], {
-        "validate": "decimal", "criteria": ">=", "value": 0,
-        "error_title": "Actual mass", "error_message": "Type the mass charged in kg.",
-    })
-    put(ws, r, COL["checked_by"], None, st.fill_text)
 
 
 def _page_setup(ws, heading_row: int, last_row: int, context: dict[str, str]) -> None:

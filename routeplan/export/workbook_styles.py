@@ -19,6 +19,7 @@ __all__ = [
     "set_widths",
     "escape_header",
     "PERCENT_KEYS",
+    "PERCENT_FORMAT",
     "sheet_title",
     "LINE_HEIGHT",
     "px_width",
@@ -47,6 +48,10 @@ _BORDER_COLOUR = "#9AA7B1"
 #: Columns holding fractions (0 to 1) that sheets show as percent.
 PERCENT_KEYS = frozenset({"assay", "lot_assay", "fill_fraction", "yield", "solution_mass_fraction",
                           "atom_economy", "rme"})
+
+#: The one number format of every percentage the workbook shows (a fraction stored as
+#: 0.97525 shows as 97.5%): fill, yield, assay, lot assay, atom economy, overage.
+PERCENT_FORMAT = "0.0%"
 
 #: Height of one line of 10-pt text in a row [pt] (a spreadsheet's default row for a
 #: 10-11 pt font is about 13-15 pt; common practice, no source).
@@ -110,17 +115,17 @@ class Styles:
         self.ratio = add(num_format="0.0##", border=1, border_color=_BORDER_COLOUR)
         self.molar_mass = add(num_format="0.00", border=1, border_color=_BORDER_COLOUR)
         self.density = add(num_format="0.000", border=1, border_color=_BORDER_COLOUR)
-        self.percent = add(num_format="0.0##%", border=1, border_color=_BORDER_COLOUR)
+        self.percent = add(num_format=PERCENT_FORMAT, border=1, border_color=_BORDER_COLOUR)
         self.money = add(num_format="#,##0.00", border=1, border_color=_BORDER_COLOUR)
         self.money_bold = add(num_format="#,##0.00", bold=True, border=1, border_color=_BORDER_COLOUR)
         self.fill_text = add(bg_color=_FILL_IN, border=1, border_color=_BORDER_COLOUR, locked=False)
-        self.fill_percent = add(num_format="0.0##%", bg_color=_FILL_IN, border=1,
+        self.fill_percent = add(num_format=PERCENT_FORMAT, bg_color=_FILL_IN, border=1,
                                 border_color=_BORDER_COLOUR, locked=False)
         self.fill_mass = add(num_format="#,##0.000", bg_color=_FILL_IN, border=1,
                              border_color=_BORDER_COLOUR, locked=False)
-        self.not_used = add(num_format="0.0##%", bg_color=_NOT_USED, border=1,
+        self.not_used = add(num_format=PERCENT_FORMAT, bg_color=_NOT_USED, border=1,
                             border_color=_BORDER_COLOUR, locked=False)
-        self.value_percent = add(num_format="0.0##%", align="left")
+        self.value_percent = add(num_format=PERCENT_FORMAT, align="left")
         self.value_text = add(text_wrap=True)
         self.value_money = add(num_format="#,##0.00", align="left")
         self.value_int = add(num_format="0", align="left")
@@ -135,15 +140,21 @@ class Styles:
         merged.update(props)
         return self._wb.add_format(merged)
 
-    def quantity(self, value: float | None, *, bold: bool = False, plain: bool = False):
+    def quantity(self, value: float | None, *, bold: bool = False, plain: bool = False, content: bool = False):
         """Format of a mass [kg], volume [L] or amount [mol] cell showing at least four
-        significant figures of ``value``, with thousands separators."""
+        significant figures of ``value``, with thousands separators.
+
+        ``bold`` marks a quantity to charge; ``plain`` drops the border and aligns left
+        (header values); ``content`` shows it in italics, for a mass that is not
+        weighed (a compound's content in a mixture carried in)."""
         d = decimals_for(value)
-        key = ("q", d, bold, plain)
+        key = ("q", d, bold, plain, content)
         if key not in self._cache:
             props = {"num_format": "#,##0." + "0" * d}
             if bold:
                 props["bold"] = True
+            if content:
+                props["italic"] = True
             if not plain:
                 props.update(border=1, border_color=_BORDER_COLOUR)
             else:

@@ -151,13 +151,21 @@ class _Sheet:
 
 
 def _steps(plan: "Plan", sheet_names) -> list[dict[str, Any]]:
+    """The step rows with the names of their charge sheets (``sheets``): one name, the
+    first and last of several, or for a step whose batches share one sheet, its name
+    and "one sheet for each of n identical batches"."""
     sheets_of: dict[str, list[str]] = {}
-    for sp, _k, name in sheet_names:
+    shared: set[str] = set()
+    for sp, k, name in sheet_names:
         sheets_of.setdefault(sp.id, []).append(name)
+        if k is None:
+            shared.add(sp.id)
     rows = step_rows(plan)
     for row, metrics in zip(rows, step_metric_rows(plan)):
         names = sheets_of.get(row["step"], [])
         row["sheets"] = names[0] if len(names) == 1 else f"{names[0]} … {names[-1]}" if names else ""
+        if row["step"] in shared:
+            row["sheets"] += f" (one sheet for each of {row['batches']} identical batches)"
         row.update({k: v for k, v in metrics.items() if k != "step"})
     return rows
 

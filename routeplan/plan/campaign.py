@@ -16,7 +16,8 @@ Batches
     of batches.  A batch filling less than 20 % of the nominal volume is too little to
     stir (common practice, no source); a batch of more than 10 times the largest batch
     run so far (``demonstrated_batch``) is a large scale-up jump (common practice, no
-    source).  Both are warnings.
+    source), and more than 12 batches of one step is worth a look at the vessel (common
+    practice, no source).  All three are warnings.
 """
 
 from __future__ import annotations
@@ -32,7 +33,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import StepPlan
     from routeplan.route.model import Route
 
-__all__ = ["MIN_FILL", "MAX_SCALE_UP", "step_volumes", "size_batches"]
+__all__ = ["MIN_FILL", "MAX_SCALE_UP", "MANY_BATCHES", "step_volumes", "size_batches"]
 
 #: Smallest batch volume over nominal vessel volume that can still be stirred [-]
 #: (common practice, no source).
@@ -42,6 +43,10 @@ MIN_FILL = 0.20
 #: (common practice, no source).
 MAX_SCALE_UP = 10.0
 
+#: More batches of one step than this in one campaign is unusual enough to check the
+#: vessel (often a unit slip such as 630 mL for 630 L) [-] (common practice, no source).
+MANY_BATCHES = 12
+
 
 def step_volumes(route: "Route", steps: "tuple[StepPlan, ...]"):
     """Volume in the vessel of each step over the whole campaign [L], and notes.
@@ -49,7 +54,9 @@ def step_volumes(route: "Route", steps: "tuple[StepPlan, ...]"):
     Returns
     -------
     dict
-        Step id -> (volume [L] as a pint Quantity, tuple of notes).
+        Step id -> (volume [L] as a pint Quantity, tuple of notes, mapping of charge
+        order -> (id of the telescoped step, volume carried in [L]) for the charges that
+        come in solution).
     """
     from routeplan.units import Q
 
@@ -59,20 +66,22 @@ def step_volumes(route: "Route", steps: "tuple[StepPlan, ...]"):
     for sp in steps:  # execution order: a telescoped step is sized before its user
         total = Q(0.0, "L")
         notes: list[str] = []
+        carried_in: dict[int, tuple] = {}
         for c in sp.charges:
             src = maker.get(c.material) if c.intermediate else None
             if src is not None and not by_id[src].isolated:
-                carried, _ = out[src]
+                carried = out[src][0]
                 made = by_id[src].product_mol.m_as(unit("mol"))
                 share = (c.mol.m_as(unit("mol")) / made) if made > 0 and c.mol is not None else 1.0
                 total = total + carried * share
+                carried_in[c.order] = (src, (carried * share).to(unit("L")))
                 notes.append(f"{c.material} comes in solution from {src}: "
-                             f"{carried.m_as(unit('L')) * share:.4g} L carried in")
+                             f"{carried.m_as(unit('L')) * share:.4g} L of its mixture carried in")
             elif c.volume is not None:
                 total = total + c.volume
             else:
                 notes.append(f"{c.material} has no density, so its volume is left out")
-        out[sp.id] = (total.to(unit("L")), tuple(notes))
+        out[sp.id] = (total.to(unit("L")), tuple(notes), carried_in)
     return out
 
 
@@ -90,7 +99,7 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
     warnings: list[Problem] = []
     out = []
     for sp in steps:
-        volume, notes = volumes[sp.id]
+        volume, notes, carried_in = volumes[sp.id]
         step = route.step(sp.id)
         vessel = route.equipment.get(sp.vessel) if sp.vessel else None
         if vessel is None:
@@ -99,6 +108,13 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
             usable = (vessel.volume * vessel.max_fill).to(unit("L"))
             batches = max(1, math.ceil(volume.m_as(unit("L")) / usable.m_as(unit("L")) - 1e-9))
             fill = volume.m_as(unit("L")) / batches / vessel.volume.m_as(unit("L"))
+            if batches > MANY_BATCHES:
+                warnings.append(Problem(
+                    "warning",
+                    f"step {sp.id} needs {batches} batches in vessel {vessel.key} "
+                    f"({vessel.volume.m_as(unit('L')):g} L): check the vessel's volume and its unit",
+                    location=vessel.location or step.location, step=sp.id,
+                    hint="use a larger vessel or split the campaign"))
             if 0 < fill < MIN_FILL:
                 warnings.append(Problem(
                     "warning",
@@ -118,5 +134,7 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
         bp = BatchPlan(batches=batches, step_volume=volume, batch_volume=volume / batches,
                        fill_fraction=fill, vessel=sp.vessel, notes=notes)
-        out.append(replace(sp, batch=bp))
+        charges = tuple(replace(c, carried_from=carried_in[c.order][0], volume=carried_in[c.order][1])
+                        if c.order in carried_in else c for c in sp.charges)
+        out.append(replace(sp, batch=bp, charges=charges))
     return tuple(out), warnings

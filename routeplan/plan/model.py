@@ -63,6 +63,10 @@ class ChargePlan:
         True when the material is made by an earlier step (not bought).
     implicit : bool
         True when the line was added by the loader (reactant with no charge line).
+    carried_from : str or None
+        Id of the telescoped step whose reaction mixture brings this intermediate in
+        solution; ``volume`` is then the volume of mixture carried in [L] and ``mass`` the
+        mass of the compound in it [kg] (the mixture is not weighed).
     """
 
     order: int
@@ -77,6 +81,7 @@ class ChargePlan:
     volume: "pint.Quantity | None"
     intermediate: bool = False
     implicit: bool = False
+    carried_from: str | None = None
 
 
 @dataclass(frozen=True)
