@@ -9,6 +9,8 @@ a hint to rerun with ``--debug``.
 
 from __future__ import annotations
 
+import os
+import signal
 import sys
 
 import click
@@ -18,6 +20,7 @@ from routeplan.errors import RouteplanError
 
 EXIT_BAD_INPUT = 2
 EXIT_INTERNAL = 1
+EXIT_BROKEN_PIPE = 141  # 128 + SIGPIPE, what a shell reports for a writer whose reader left
 
 
 def _err(text: str) -> None:
@@ -29,12 +32,19 @@ class _Funnel(click.Group):
 
     def invoke(self, ctx: click.Context):  # noqa: D401
         try:
-            return super().invoke(ctx)
+            result = super().invoke(ctx)
+            sys.stdout.flush()  # a closed pipe shows here, inside the funnel
+            return result
         except RouteplanError as exc:
             _err(f"error: {exc.render()}")
             ctx.exit(EXIT_BAD_INPUT)
         except (click.exceptions.Exit, click.exceptions.Abort, click.ClickException):
             raise
+        except BrokenPipeError:
+            # the reader went away (`routeplan plan ... | head`): stop quietly, as shells expect
+            devnull = os.open(os.devnull, os.O_WRONLY)
+            os.dup2(devnull, sys.stdout.fileno())
+            ctx.exit(EXIT_BROKEN_PIPE)
         except KeyboardInterrupt:  # pragma: no cover - interactive
             _err("interrupted")
             ctx.exit(130)
@@ -59,8 +69,8 @@ def cli(ctx: click.Context, debug: bool) -> None:
 
     \b
     Examples:
-      routeplan check demo_routes/linear.yaml
-      routeplan plan demo_routes/linear.yaml --target "40 kg"
+      routeplan check demo_routes/hx17-linear.yaml
+      routeplan plan demo_routes/hx17-linear.yaml --target "40 kg"
 
     Planning estimates only: verify every quantity, assess thermal and chemical
     hazards before scale-up, and follow site procedures, local codes and licensed
@@ -70,8 +80,14 @@ def cli(ctx: click.Context, debug: bool) -> None:
     ctx.obj["debug"] = debug
 
 
+def _terminate(signum, frame):  # pragma: no cover - exercised by a subprocess test
+    # turn SIGTERM into SystemExit so that open atomic writes remove their temporary files
+    raise SystemExit(128 + signum)
+
+
 def main() -> None:
     """Entry point of the ``routeplan`` console script."""
+    signal.signal(signal.SIGTERM, _terminate)
     cli(prog_name="routeplan")
 
 

@@ -43,3 +43,16 @@ def test_help_is_fast():
             "print(time.perf_counter()-t)")
     best = min(float(_run("-c", code).stdout) for _ in range(3))
     assert best < 0.10, f"routeplan --help took {best:.3f} s in-process"
+
+
+def test_a_closed_pipe_ends_quietly():
+    # `routeplan plan ... | head -1`: the reader leaves early; no traceback, a shell's 141
+    demo = os.path.join(os.path.dirname(__file__), os.pardir, "demo_routes", "hx17-linear.yaml")
+    p = subprocess.Popen([sys.executable, "-m", "routeplan", "plan", demo], stdout=subprocess.PIPE,
+                         stderr=subprocess.PIPE)
+    first = p.stdout.readline()
+    p.stdout.close()
+    err = p.stderr.read().decode()
+    assert p.wait(timeout=60) == 141
+    assert first.startswith(b"HX-17")
+    assert "Traceback" not in err and "internal error" not in err
