@@ -75,7 +75,17 @@ BAD_EQUATIONS = [
     ("A + B -> A", "'A' is used on both sides"),
     ("0 A -> B", "coefficient '0' of 'A'"),
     ("-2 A -> B", "coefficient '-2' of 'A'"),
-    ("1e999 A -> B", "coefficient '1e999' of 'A'"),
+    ("0.0 A -> B", "coefficient '0.0' of 'A' is not positive"),
+    ("0e5 A -> B", "coefficient '0e5' of 'A' is not positive"),
+    # outside [1e-6, 1e6]; 1e999 overflows a float to infinity, 1e-400 underflows it to 0,
+    # 1e-320 is a subnormal float: each is named as out of range, never read as inf or 0
+    ("1e999 A -> B", "coefficient '1e999' of 'A' is out of range"),
+    ("1e308 A -> 1e-308 P", "coefficient '1e308' of 'A' is out of range"),
+    ("A -> 1e-320 P", "coefficient '1e-320' of 'P' is out of range"),
+    ("1e-400 A -> B", "coefficient '1e-400' of 'A' is out of range"),
+    ("1000001 A -> B", "coefficient '1000001' of 'A' is out of range: a coefficient lies between 1e-6 and 1e6"),
+    ("A -> 9.99e-7 B", "coefficient '9.99e-7' of 'B' is out of range"),
+    ("A + 2e6 B -> C", "coefficient '2e6' of 'B' is out of range"),
     ("A B -> C", "'A B' is not a term"),
     ("2 A B -> C", "'2 A B' is not a term"),
     ("A*B -> C", "invalid material key 'A*B'"),
@@ -101,6 +111,17 @@ def test_bad_equations_are_errors_that_name_the_offending_text(text, named):
     assert named in str(info.value)
     if text.strip():
         assert f"equation '{text}'" in str(info.value)
+
+
+def test_coefficients_at_the_bounds_are_accepted():
+    eq = parse_equation("1e-6 A + 1000000 B -> 0.000001 C + 1e6 D")
+    assert [t.coefficient for t in eq.reactants + eq.products] == [1e-6, 1e6, 1e-6, 1e6]
+
+
+def test_out_of_range_coefficient_suggests_a_fix():
+    with pytest.raises(EquationError) as info:
+        parse_equation("1e20 A -> B")
+    assert "misplaced exponent or decimal point" in info.value.hint
 
 
 def test_equals_sign_suggests_the_arrow():
@@ -145,4 +166,17 @@ def test_parsing_raises_only_equation_errors(text):
         return
     assert eq.reactants and eq.products
     assert len(set(eq.species)) == len(eq.species)
-    assert all(t.coefficient > 0 for t in eq.reactants + eq.products)
+    assert all(1e-6 <= t.coefficient <= 1e6 for t in eq.reactants + eq.products)
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.floats(min_value=1e-300, max_value=1e300))
+def test_every_coefficient_read_is_in_range(x):
+    written = repr(x).replace("e+", "e")  # '+' separates terms, so '1e+16' is written '1e16'
+    try:
+        eq = parse_equation(f"{written} A -> B")
+    except EquationError as exc:
+        assert not 1e-6 <= x <= 1e6
+        assert "out of range" in str(exc)
+    else:
+        assert 1e-6 <= x <= 1e6 and eq.coefficient("A") == x

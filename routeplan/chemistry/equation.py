@@ -7,22 +7,28 @@
     0.5 X -> Y
 
 A material key is letters, digits, ``-``, ``_`` and ``.``, starting with a letter or a
-digit.  A coefficient is a positive number followed by whitespace before its key; without
-one the coefficient is 1 (so ``2ArOH`` is the key ``2ArOH``, not two ``ArOH``).  The arrow is
-``->``; the Unicode arrow ``→`` (U+2192) is accepted as the same.  ``=``, ``=>``, ``-->``
-and equilibrium arrows are errors that suggest ``->``.  A key may appear once only.
+digit.  A coefficient is a positive number from 1e-6 to 1e6 (:data:`COEFFICIENT_RANGE`)
+followed by whitespace before its key; without one the coefficient is 1 (so ``2ArOH`` is
+the key ``2ArOH``, not two ``ArOH``).  The arrow is ``->``; the Unicode arrow ``→``
+(U+2192) is accepted as the same.  ``=``, ``=>``, ``-->`` and equilibrium arrows are
+errors that suggest ``->``.  A key may appear once only.
 """
 
 from __future__ import annotations
 
 import functools
-import math
 import re
 from dataclasses import dataclass, field
 
 from routeplan.errors import EquationError
 
-__all__ = ["Term", "Equation", "parse_equation"]
+__all__ = ["Term", "Equation", "parse_equation", "COEFFICIENT_RANGE"]
+
+#: Coefficients an equation may have [-], inclusive.  Real equations use small numbers
+#: (1, 2, 0.5, 1/3 written as 0.333); outside this range a number is a typo, and at the
+#: extremes of floating point it makes the planner divide by zero or overflow
+#: (common practice, no source).
+COEFFICIENT_RANGE = (1e-6, 1e6)
 
 _KEY = re.compile(r"[A-Za-z0-9][A-Za-z0-9_.\-]*")
 _NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?")
@@ -129,6 +135,31 @@ def _split_arrow(text: str) -> tuple[str, str]:
     return left, right
 
 
+def _exp(x: float) -> str:
+    """``1e-06`` -> ``1e-6``, ``1e+06`` -> ``1e6``: a range bound as one writes it."""
+    return re.sub(r"e([+-])0*(\d)", lambda m: "e" + ("-" if m.group(1) == "-" else "") + m.group(2), f"{x:g}")
+
+
+def _coefficient(text: str, written: str, key: str) -> float:
+    """The coefficient ``written`` before ``key``, checked against :data:`COEFFICIENT_RANGE`.
+
+    A number too large for a float (``1e999``, read as infinity) or too small (``1e-400``,
+    read as 0 although its digits are not all zero) is out of range like any other.
+    """
+    mantissa = re.split(r"[eE]", written)[0]
+    if written.startswith("-") or not re.search(r"[1-9]", mantissa):
+        raise _fail(text, f"coefficient '{written}' of '{key}' is not positive",
+                    "a coefficient is a positive number; move a species to the other side "
+                    "instead of giving it a negative coefficient")
+    coef = float(written)
+    low, high = COEFFICIENT_RANGE
+    if not low <= coef <= high:  # also catches inf (overflow) and 0.0 (underflow)
+        raise _fail(text, f"coefficient '{written}' of '{key}' is out of range: a coefficient lies between "
+                    f"{_exp(low)} and {_exp(high)}", "check for a misplaced exponent or decimal point; coefficients "
+                    "are small numbers such as 1, 2 or 0.5")
+    return coef
+
+
 def _parse_side(text: str, side_text: str, side: str) -> list[Term]:
     if not side_text.strip():
         raise _fail(text, f"the {side} side is empty", "write e.g. 'A + B -> C'")
@@ -148,16 +179,10 @@ def _parse_side(text: str, side_text: str, side: str) -> list[Term]:
                 raise _fail(text, f"'{piece.strip()}' is not a term: '{words[0]}' is no number "
                             f"and a key has no spaces", "write a coefficient such as '2 X', or join "
                             "the key with '-' or '_'")
-            coef, key = float(words[0]), words[1]
+            coef, key = _coefficient(text, words[0], words[1]), words[1]
         else:
             raise _fail(text, f"'{piece.strip()}' is not a term (a coefficient, a space and a key)",
                         "a key has no spaces; join it with '-' or '_'")
-        if not math.isfinite(coef):
-            raise _fail(text, f"coefficient '{words[0]}' of '{key}' is not a finite number")
-        if coef <= 0:
-            raise _fail(text, f"coefficient '{words[0]}' of '{key}' is not positive",
-                        "a coefficient is a positive number; move a species to the other side "
-                        "instead of giving it a negative coefficient")
         if _NUMBER.fullmatch(key):
             raise _fail(text, f"'{key}' is a number without a key after it",
                         "write a coefficient, a space and a key, e.g. '2 X'")
@@ -201,7 +226,9 @@ def parse_equation(text: str) -> Equation:
     ------
     EquationError
         Naming the offending text: no arrow or two arrows, ``=`` instead of ``->``, an
-        empty side or term, a zero or negative coefficient, an invalid key, a key used twice.
+        empty side or term, a zero or negative coefficient or one outside
+        :data:`COEFFICIENT_RANGE` (``1e308``, ``1e-320``, ``1e999``), an invalid key, a key
+        used twice.
 
     Examples
     --------

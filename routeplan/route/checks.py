@@ -2,8 +2,10 @@
 
 The schema (:mod:`routeplan.route.schema`) checks each value on its own; the checks here
 look across the file: that every key referenced exists, that the equation and the
-charge lines agree, that the steps make a route to the target.  Each finding is a
-:class:`~routeplan.errors.Problem` located in the file.
+charge lines agree, that the steps make a route to the target; values that cannot be
+real (an impossible solution, a density of no substance, an equation that does not
+balance by mass) are judged in :mod:`routeplan.route.checks_plausibility`.  Each finding
+is a :class:`~routeplan.errors.Problem` located in the file.
 
 The checks also work on a file whose schema validation failed in places
 (:class:`Parts` keeps ``None`` for every piece that did not validate), so that a file
@@ -23,6 +25,7 @@ from types import SimpleNamespace
 from typing import Any
 
 from routeplan.errors import EquationError, FormulaError, Problem
+from routeplan.route import checks_plausibility as plausible
 from routeplan.route.schema import CHARGE_BASES, MaterialModel, StepModel, TargetModel, VesselModel
 from routeplan.route.yamlpos import Positions
 
@@ -158,14 +161,24 @@ class _Checker:
                     computed, source = smiles_mass, "SMILES"
                 elif smiles_mass is not None and computed is not None:
                     self.compare(here + ("smiles",), smiles_mass, "from the SMILES", computed, "formula")
-            if computed is not None and m.molar_mass is not None:
+            too_light = m.molar_mass is not None and self.found(
+                plausible.molar_mass_findings(here + ("molar_mass",), m.molar_mass))
+            if computed is not None and m.molar_mass is not None and not too_light:
                 self.compare(here + ("molar_mass",), m.molar_mass.to("g/mol"), "given", computed, source)
             if computed is not None:
                 self.facts.molar_masses[key] = computed
             elif m.molar_mass is not None:
                 self.facts.molar_masses[key] = m.molar_mass.to("g/mol")
+            if m.density is not None:
+                self.found(plausible.density_findings(here + ("density",), m.density))
             if m.solution is not None:
                 self.solution(key, m)
+
+    def found(self, findings) -> bool:
+        """Add plausibility findings (:mod:`routeplan.route.checks_plausibility`); True if any."""
+        for f in findings:
+            self.add(f.severity, f.path, f.message, f.hint)
+        return bool(findings)
 
     def compare(self, path: tuple, value, what: str, reference, source: str) -> None:
         """Report ``value`` [g/mol] when it differs from ``reference`` by more than the tolerance."""
@@ -230,6 +243,9 @@ class _Checker:
                 self.add("error", here + ("density",),
                          f"density {a:g} g/mL differs from solution.density {b:g} g/mL",
                          "a solution's density goes in solution.density only; remove this one")
+        if s.density is not None:
+            self.found(plausible.density_findings(here + ("solution", "density"), s.density))
+        self.found(plausible.solution_findings(key, s, self.facts.molar_masses.get(key)))
 
     # -- steps
     def steps(self) -> None:
@@ -496,6 +512,11 @@ class _Checker:
 
         for i, eq in self.facts.equations.items():
             if not all(k in self.facts.formulas for k in eq.species):
+                if all(k in self.facts.molar_masses for k in eq.species):
+                    s = self.parts.steps[i]
+                    f = plausible.mass_balance_finding(("steps", i, "equation"), s.id, eq, self.facts.molar_masses)
+                    if f is not None:
+                        self.add(f.severity, f.path, f.message, f.hint, step=s.id)
                 continue
             try:
                 diff = imbalance(eq, self.facts.formulas)

@@ -1,0 +1,260 @@
+"""Plausibility checks of a route file: values that are valid one by one but cannot be real.
+
+The schema accepts any positive density, molarity and molar mass, and an equation over
+materials with molar masses but no formulas cannot be checked atom by atom.  The checks
+here catch what such values betray, usually a unit or a decimal point gone wrong:
+
+- a density outside :data:`DENSITY_RANGE` (no liquid or solid of a route lies outside it);
+- a molar mass below that of a hydrogen atom;
+- a solution whose solute would weigh as much as the solution or more (by ``molarity``
+  times the molar mass, or a ``mass_fraction`` of 100 %);
+- an equation whose products do not weigh what its reactants weigh (Σν·M), where the atom
+  balance cannot run because a species has no formula.
+
+Each function returns :class:`Finding` objects; :mod:`routeplan.route.checks` places them
+in the file.  Nothing here reads the file or prints.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass
+from typing import Any, Mapping
+
+__all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "density_findings", "molar_mass_findings",
+           "solution_findings", "mass_balance_finding"]
+
+#: Densities a material or solution of a route may have [g/mL], inclusive.
+#: Upper bound: osmium, the densest element, is 22.59 g/cm³ (CRC Handbook of Chemistry and
+#: Physics, density of the elements; from memory, page not at hand); 25 g/mL leaves a margin.
+#: Lower bound: common practice, no source; the lightest liquid, liquid hydrogen, is about
+#: 0.07 g/mL (from memory), and no solvent, reagent or solid of a route comes near it.
+DENSITY_RANGE = (0.05, 25.0)
+
+#: Largest relative difference between the products' and the reactants' Σν·M, relative to
+#: the reactants, below which an equation counts as balanced by mass [-] (0.5 %).  Molar
+#: masses typed with four or five significant figures stay far inside it.
+MASS_BALANCE_TOLERANCE = 5e-3
+
+#: A solute's mass per litre this close below the solution's still counts as equal [-]
+#: (absorbs the rounding of unit conversions).
+_EQUAL = 1e-9
+
+
+@dataclass(frozen=True)
+class Finding:
+    """One plausibility problem, to be located by the caller.
+
+    Parameters
+    ----------
+    severity : str
+        ``"error"`` or ``"warning"``.
+    path : tuple
+        Key path in the route file, e.g. ``("materials", "HCl6M", "solution", "molarity")``.
+    message, hint : str
+        What is wrong, and what would be right.
+    """
+
+    severity: str
+    path: tuple
+    message: str
+    hint: str | None = None
+
+
+def _g(x: float) -> str:
+    """A number for a message, to 4 significant figures (``1882``, ``1.1``, ``0.00108``)."""
+    return f"{x:.4g}"
+
+
+def _written(q) -> str:
+    """A quantity as its unit was written, in the usual symbols: ``1080 g/mL``, ``9 lb/gal``."""
+    unit = f"{q.units:~P}"
+    unit = re.sub(r"(?<![A-Za-z])([mµu]?)l(?![A-Za-z])", lambda m: m.group(1) + "L", unit)
+    return f"{q.magnitude:g} {unit}"
+
+
+def density_findings(path: tuple, density) -> list[Finding]:
+    """An error when ``density`` is outside :data:`DENSITY_RANGE`.
+
+    Parameters
+    ----------
+    path : tuple
+        Key path of the density.
+    density : pint.Quantity
+        The density as written [mass/volume].
+
+    Returns
+    -------
+    list of Finding
+        Empty, or one error naming the value, its unit and, where dividing or multiplying
+        by 1000 gives a density in range, that value (g/L and kg/m³ are 1000 times smaller
+        than g/mL and kg/L).
+
+    Examples
+    --------
+    >>> from routeplan.units import Q
+    >>> density_findings(("density",), Q(1.08, "g/mL"))
+    []
+    """
+    low, high = DENSITY_RANGE
+    rho = float(density.m_as("g/mL"))
+    if low <= rho <= high:
+        return []
+    shown = _written(density)
+    if not shown.endswith(" g/mL"):
+        shown += f" ({_g(rho)} g/mL)"
+    if rho > high:
+        message = (f"density {shown} is more than any liquid or solid: osmium, the densest element, is "
+                   f"22.59 g/mL")
+        fixed, unit_words = rho / 1000, "g/L and kg/m³ are 1000 times smaller than g/mL"
+    else:
+        message = f"density {shown} is less than any liquid or solid in a route"
+        fixed, unit_words = rho * 1000, "g/mL and kg/L are 1000 times larger than g/L"
+    hint = f"a density lies between {low:g} and {high:g} g/mL"
+    if low <= fixed <= high:
+        hint = f"was {_g(fixed)} g/mL meant? {unit_words}"
+    elif rho < low:
+        hint += "; a gas charged by mass needs no density"
+    return [Finding("error", path, message, hint)]
+
+
+def molar_mass_findings(path: tuple, molar_mass) -> list[Finding]:
+    """An error when a given molar mass is below that of a hydrogen atom.
+
+    Parameters
+    ----------
+    path : tuple
+        Key path of the ``molar_mass``.
+    molar_mass : pint.Quantity
+        The molar mass as written [mass/amount].
+
+    Returns
+    -------
+    list of Finding
+        Empty, or one error.  The floor is the standard atomic weight of hydrogen from
+        routeplan's IUPAC/CIAAW table (1.008 g/mol), the lightest of all species, less the
+        0.1 % allowed between a given molar mass and a formula's.
+
+    Examples
+    --------
+    >>> from routeplan.units import Q
+    >>> molar_mass_findings(("molar_mass",), Q(18.015, "g/mol"))
+    []
+    """
+    from routeplan.chemistry.elements import atomic_weight
+    from routeplan.route.checks import MOLAR_MASS_TOLERANCE
+
+    h = atomic_weight("H")
+    m = float(molar_mass.m_as("g/mol"))
+    if m >= h * (1 - MOLAR_MASS_TOLERANCE):
+        return []
+    shown = _written(molar_mass)
+    if not shown.endswith(" g/mol"):
+        shown += f" ({_g(m)} g/mol)"
+    hint = "check the unit and the decimal point"
+    if m * 1000 >= h:
+        hint = f"was {_g(m * 1000)} g/mol meant? " + hint
+    return [Finding("error", path, f"molar mass {shown} is less than that of a hydrogen atom, "
+                                   f"{h:.4g} g/mol, the lightest of all", hint)]
+
+
+def solution_findings(key: str, solution, molar_mass) -> list[Finding]:
+    """Errors for a solution whose solute would weigh as much as the solution or more.
+
+    A litre of solution weighs ``density`` × 1 L; the solute in it weighs
+    ``molarity`` × ``M`` × 1 L (by molarity) or ``mass_fraction`` × ``density`` × 1 L.
+    The solvent's share, the difference, must be positive.
+
+    Parameters
+    ----------
+    key : str
+        The material's key.
+    solution : SolutionModel or a stand-in with ``molarity``, ``mass_fraction``, ``density``
+        The solution as read (any of them may be None).
+    molar_mass : pint.Quantity or None
+        The solute's molar mass [g/mol]; without it the molarity is not checked.
+
+    Returns
+    -------
+    list of Finding
+        Errors at ``solution.molarity`` or ``solution.mass_fraction``.  A solution whose
+        density is itself out of range is not checked here (that error says enough).
+    """
+    here = ("materials", key, "solution")
+    density = solution.density
+    if density is None or density_findings((), density):
+        return []
+    rho = float(density.m_as("g/mL"))              # = kg of solution per litre
+    out = []
+    if solution.mass_fraction is not None and solution.mass_fraction >= 1 - _EQUAL:
+        out.append(Finding("error", here + ("mass_fraction",),
+                           "a mass fraction of 100 % leaves no solvent: this is the neat compound, not a solution",
+                           f"describe the neat material with 'density: {_g(rho)} g/mL' and no solution, "
+                           f"or give the real mass fraction"))
+    if solution.molarity is not None and molar_mass is not None:
+        c = float(solution.molarity.m_as("mol/L"))
+        m = float(molar_mass.m_as("g/mol"))
+        solute = c * m / 1000                       # kg of solute per litre
+        if solute >= rho * (1 - _EQUAL):
+            limit = rho * 1000 / m                  # mol/L at which the solute would be all the mass
+            out.append(Finding("error", here + ("molarity",),
+                               f"{_g(c)} mol/L × {_g(m)} g/mol is {_g(solute)} kg of solute per litre, but a litre "
+                               f"of this solution, at {_g(rho)} g/mL, weighs only {_g(rho)} kg",
+                               _molarity_hint(c, limit, rho)))
+    return out
+
+
+def _molarity_hint(c: float, limit: float, rho: float) -> str:
+    """What to check when ``c`` [mol/L] reaches ``limit`` [mol/L], the ceiling at ``rho`` [g/mL]."""
+    hint = f"at this density the molarity must be below {_g(limit)} mol/L"
+    for k in (1, 2, 3):
+        smaller = c / 10 ** k
+        if smaller < limit:
+            hint += f": was {_g(smaller)} mol/L meant, with the decimal point misplaced?"
+            break
+    return hint + " Else check that the formula is the solute's and the density the whole solution's"
+
+
+def mass_balance_finding(path: tuple, step_id: str | None, equation,
+                         molar_masses: Mapping[str, Any]) -> Finding | None:
+    """A warning when the products' Σν·M differs from the reactants' by more than 0.5 %.
+
+    Parameters
+    ----------
+    path : tuple
+        Key path of the step's ``equation``.
+    step_id : str or None
+        The step's id, for the message.
+    equation : Equation
+        The parsed equation.
+    molar_masses : Mapping[str, pint.Quantity]
+        Molar mass [g/mol] of every species of the equation.
+
+    Returns
+    -------
+    Finding or None
+        E.g. ``step S1 does not balance by mass: the products weigh 350 g/mol more than the
+        reactants (600 vs 250 g/mol)``; None when within :data:`MASS_BALANCE_TOLERANCE`.
+
+    Examples
+    --------
+    >>> from routeplan.chemistry.equation import parse_equation
+    >>> from routeplan.units import Q
+    >>> mm = {"A": Q(100, "g/mol"), "B": Q(50, "g/mol"), "P": Q(200, "g/mol")}
+    >>> mass_balance_finding(("equation",), "S1", parse_equation("2 A + B -> 3 P"), mm).message
+    'step S1 does not balance by mass: the products weigh 350 g/mol more than the reactants (600 vs 250 g/mol)'
+    """
+    def side(terms) -> float:
+        return math.fsum(t.coefficient * float(molar_masses[t.key].m_as("g/mol")) for t in terms)
+
+    reactants, products = side(equation.reactants), side(equation.products)
+    diff = products - reactants
+    if abs(diff) <= MASS_BALANCE_TOLERANCE * reactants:
+        return None
+    who = f"step {step_id}" if step_id is not None else "the equation"
+    how = "more" if diff > 0 else "less"
+    return Finding("warning", path,
+                   f"{who} does not balance by mass: the products weigh {_g(abs(diff))} g/mol {how} than the "
+                   f"reactants ({_g(products)} vs {_g(reactants)} g/mol)",
+                   "check the coefficients and the molar masses; atom economy would be wrong")
