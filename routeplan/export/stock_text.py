@@ -29,7 +29,10 @@ def stock_lines(plan) -> list[str]:
     if unused:
         lines.append("  in stock but not needed by this route: " + ", ".join(unused))
     if s.to_buy:
-        lines.append(f"To buy for {display_quantity(plan.target_mass.m_as('kg'), 'mass')} of {tgt}:")
+        asked = plan.target_mass.m_as("kg") / (1 + overage)
+        lines.append(f"To buy for {display_quantity(asked, 'mass')} of {tgt}"
+                     + (f" ({display_quantity(plan.target_mass.m_as('kg'), 'mass')} with the overage)"
+                        if overage else "") + ":")
         for key, mass in s.to_buy:
             lines.append(f"  {key}: {display_quantity(mass.m_as('kg'), 'mass')}")
     else:
