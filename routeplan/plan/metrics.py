@@ -407,7 +407,9 @@ class Metrics:
         list of str
             One line per metric, the first a heading.
         """
-        return _summary_lines(self, plan.target_material)
+        from routeplan.export.metrics_text import metrics_lines
+
+        return metrics_lines(self, plan.target_material)
 
 
 def compute_metrics(plan: "Plan") -> Metrics:
@@ -450,63 +452,3 @@ def compute_metrics(plan: "Plan") -> Metrics:
         step_count=len(plan.steps),
         longest_linear_sequence=tuple(plan.overall_yield.longest_linear_sequence),
     )
-
-
-# ---------------------------------------------------------------- terminal text
-
-
-def _num(x: float | None, digits: int = 3) -> str:
-    """``x`` to ``digits`` significant figures, or an en dash for None."""
-    if x is None:
-        return "–"
-    text = f"{x:.{digits}g}"
-    return f"{x:.0f}" if "e" in text and abs(x) >= 1 else text
-
-
-def _pct(x: float | None) -> str:
-    return "–" if x is None else f"{100 * x:.1f} %"
-
-
-def _by_step(values: Mapping[str, float | None], show) -> str:
-    from rich.markup import escape
-
-    return " · ".join(f"{escape(k)} {show(v)}" for k, v in values.items())
-
-
-def _summary_lines(m: Metrics, target: str) -> list[str]:
-    """The lines of :meth:`Metrics.summary_lines`; ``target`` is the target's key."""
-    from rich.markup import escape
-
-    tgt = escape(target)
-    lines = [
-        "",
-        "[bold]Mass efficiency and cost[/bold] (per kg of target as delivered)",
-        f"  process mass intensity (PMI): {_num(m.pmi)} kg of raw materials per kg of {tgt}",
-        f"  E-factor: complete {_num(m.e_factor_complete)} kg/kg (PMI − 1), "
-        f"simple {_num(m.e_factor_simple)} kg/kg (solvents and water left out)",
-        "  step PMI, kg/kg (inputs per kg of the step's own product; these do not add up): "
-        + _by_step(m.pmi_by_step, _num),
-        "  cumulative PMI, kg/kg (raw materials up to and including the step): "
-        + _by_step(m.pmi_cumulative_by_step, _num),
-        "  atom economy: " + _by_step(m.atom_economy_by_step, _pct),
-        "  reaction mass efficiency: " + _by_step(m.reaction_mass_efficiency_by_step, _pct),
-    ]
-    if m.currency is None:
-        lines.append("  raw-material cost: not computed (the route gives no currency)")
-    elif m.cost_per_kg is None:
-        lines.append("  raw-material cost: not computed (no raw material has a price)")
-    elif m.unpriced:
-        lines.append(f"  raw-material cost: at least {_num(m.cost_per_kg, 4)} {escape(m.currency)} "
-                     f"per kg of {tgt}, [bold]priced materials only[/bold]; no price for: "
-                     + ", ".join(escape(k) for k in m.unpriced))
-    else:
-        lines.append(f"  raw-material cost: {_num(m.cost_per_kg, 4)} {escape(m.currency)} per kg of {tgt}")
-    top = sorted(m.mass_per_kg_target.items(), key=lambda kv: -kv[1])[:5]
-    if top:
-        lines.append(f"  largest raw materials, kg per kg of {tgt}: "
-                     + " · ".join(f"{escape(k)} {_num(v)}" for k, v in top))
-    lls = " → ".join(escape(s) for s in m.longest_linear_sequence)
-    plural = "s" if m.step_count != 1 else ""
-    lines.append(f"  {m.step_count} step{plural}; longest linear sequence "
-                 f"{len(m.longest_linear_sequence)} ({lls})")
-    return lines
