@@ -15,6 +15,8 @@ The schema checks shape and spelling; units, cross-references and chemistry are 
 
 from __future__ import annotations
 
+from routeplan import CAUTION
+
 import copy
 import json
 from typing import Any
@@ -76,7 +78,8 @@ def route_json_schema() -> dict:
     out = {"$schema": "https://json-schema.org/draft/2020-12/schema", "$id": SCHEMA_ID,
            "title": "routeplan route file, format 1",
            "description": "One synthesis route to one target: materials, vessels and steps. "
-                          "Checks shape and spelling; run 'routeplan check' for units, references and chemistry."}
+                          "Checks shape and spelling; run 'routeplan check' for units, references and chemistry. "
+                          + CAUTION}
     out.update({k: v for k, v in schema.items() if k not in ("title", "description")})
     return out
 
