@@ -4,28 +4,17 @@ import pytest
 
 from conftest import run_cli, write_route
 
-BASE = """route: ranges
-target: {material: B, amount: 1 kg}
-materials:
-  A: {formula: C6H6O, density: 1.07 g/mL}
-  B: {formula: C7H8O}
-  MeOH: {formula: CH4O, density: 0.792 g/mL}
-  W: {formula: H2O}
-steps:
-  - id: S1
-    equation: A + MeOH -> B + W
-    yield: 90 %
-    charges:
-      - {material: A}
-      - {material: MeOH, LINE}
-"""
+from test_key_aliases import BASE as _ALIASES
+
+# the same small route, with the methanol line to fill in
+BASE = _ALIASES.replace("KEY: 1.5", "LINE")
 
 
 @pytest.mark.parametrize("line", ["equiv: 1e300", "volumes: 2e6", "mol_percent: 1e9", "mass_ratio: 1e7"])
 def test_far_out_of_range_counts(tmp_path, line):
     result = run_cli("check", write_route(tmp_path, BASE.replace("LINE", line)))
     assert result.exit_code == 2
-    assert "route.yaml:14:" in result.stderr and "far out of range" in result.stderr
+    assert "route.yaml:15:" in result.stderr and "far out of range" in result.stderr  # the methanol line
     assert "Traceback" not in result.output
 
 
