@@ -255,3 +255,13 @@ def test_help_says_how_the_target_is_chosen():
     assert res.exit_code == 0
     text = " ".join(res.output.split())
     assert "first route's target.amount" in text
+
+
+def test_compare_at_low_yields(demo):
+    plans, _ = demo
+    low, notes = plan_for_comparison([p.route for p in plans], yields="low")
+    assert any("low yields" in n for n in notes)
+    for expected, at_low in zip(plans, low):
+        # route A's S1 and route B's B1 give a range (92 %, low 88 %); the others none
+        assert at_low.overall_yield.yield_ == pytest.approx(expected.overall_yield.yield_ * 0.88 / 0.92)
+        assert at_low.yield_basis == "low"

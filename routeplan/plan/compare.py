@@ -259,8 +259,12 @@ def comparison_amount(routes: Sequence["Route"], target: "pint.Quantity | str | 
     return amount, notes
 
 
-def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str | None" = None):
+def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str | None" = None, *,
+                        yields: str = "expected"):
     """Check the routes share a target, then plan each for the same target mass.
+
+    ``yields`` (``"expected"``, ``"low"`` or ``"high"``) is the step-yield basis every
+    route is planned at (see :func:`routeplan.plan.walk.plan_route`).
 
     Returns
     -------
@@ -273,7 +277,10 @@ def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str 
 
     check_same_target(routes)
     amount, notes = comparison_amount(routes, target)
-    return tuple(plan_route(r, amount) for r in routes), notes
+    plans = tuple(plan_route(r, amount, yields=yields) for r in routes)
+    if yields != "expected":
+        notes = [*notes, f"every route is planned at its steps' {yields} yields"]
+    return plans, notes
 
 
 # --------------------------------------------------------------------- ranking
