@@ -6,9 +6,12 @@ Files written into ``DIR`` (made if missing), each atomically:
     item, value, unit: route, route file and SHA-256, date, target, overall yield,
     cost, the caution and every warning.
 ``steps.csv``
-    one line per step in execution order.
+    one line per step in execution order, with the step metrics and, last, the
+    product taken from stock [mol] and [kg] (empty when the stock list does not name
+    it) and why the step does not run (empty when it runs).
 ``charges-NN-<step>.csv``
-    the charges of step number ``NN`` (execution order), whole campaign and per batch.
+    the charges of step number ``NN`` (execution order), whole campaign and per batch;
+    a step that does not run has 0 batches, zero charges and empty per-batch fields.
 ``raw-materials.csv``
     bought materials totalled over the route, with price and cost.
 ``materials.csv``
@@ -42,7 +45,8 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any, Iterable, Sequence
 
 from routeplan.export.tables import CHARGE_COLUMNS, Column, step_charge_rows
-from routeplan.export.sheet_rows import (STEP_COLUMNS, STEP_METRIC_COLUMNS, STOCK_COLUMNS, SUMMARY_COLUMNS,
+from routeplan.export.sheet_rows import (STEP_COLUMNS, STEP_METRIC_COLUMNS, STEP_STOCK_COLUMNS, STOCK_COLUMNS,
+                                         SUMMARY_COLUMNS,
                                          material_columns, material_rows, metric_rows, raw_export_columns,
                                          raw_export_rows, step_metric_rows, step_rows, stock_rows,
                                          stock_summary_rows, summary_rows)
@@ -168,7 +172,7 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
     summary = [{k: row[k] for k in ("item", "value", "unit")} for row in facts]
     paths = [
         write_table(out_dir / "summary.csv", SUMMARY_COLUMNS, summary),
-        write_table(out_dir / "steps.csv", STEP_COLUMNS + STEP_METRIC_COLUMNS,
+        write_table(out_dir / "steps.csv", STEP_COLUMNS + STEP_METRIC_COLUMNS + STEP_STOCK_COLUMNS,
                     [{**row, **metrics} for row, metrics in zip(step_rows(plan), step_metric_rows(plan))]),
     ]
     for i, sp in enumerate(plan.steps, start=1):

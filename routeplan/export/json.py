@@ -19,6 +19,11 @@ def _m(q, unit: str) -> float | None:
     return None if q is None else float(q.m_as(unit))
 
 
+def _per(value: float | None, batches: int) -> float | None:
+    """``value`` per batch; None for a step of no batches (it does not run)."""
+    return None if value is None or batches == 0 else value / batches
+
+
 def _charge(c, batches: int) -> dict[str, Any]:
     return {
         "material": c.material,
@@ -32,9 +37,9 @@ def _charge(c, batches: int) -> dict[str, Any]:
         "intermediate": c.intermediate,
         "carried_from": c.carried_from,
         "per_batch": {
-            "mol": None if c.mol is None else _m(c.mol, "mol") / batches,
-            "mass_kg": _m(c.mass, "kg") / batches,
-            "volume_L": None if c.volume is None else _m(c.volume, "L") / batches,
+            "mol": _per(_m(c.mol, "mol"), batches),
+            "mass_kg": _per(_m(c.mass, "kg"), batches),
+            "volume_L": _per(_m(c.volume, "L"), batches),
         },
     }
 
@@ -56,6 +61,10 @@ def _step(sp) -> dict[str, Any]:
         "batch_volume_L": None if b is None else _m(b.batch_volume, "L"),
         "fill_fraction": None if b is None else b.fill_fraction,
         "charges": [_charge(c, batches) for c in sp.charges],
+        "from_stock_mol": _m(sp.from_stock_mol, "mol"),
+        "from_stock_kg": _m(sp.from_stock_mass, "kg"),
+        "runs": sp.runs,
+        "not_run": sp.not_run,
     }
     return out
 
@@ -101,6 +110,12 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
             "to_buy": [{"material": k, "mass_kg": _m(m, "kg")} for k, m in s.to_buy],
             "on_hand": [{"material": k, "mass_kg": _m(m, "kg")} for k, m in s.on_hand.items()],
             "not_in_stock": [r.material for r in plan.raw_materials if r.material not in s.on_hand],
+            "intermediates": [
+                {"material": sp.product, "step": sp.id, "on_hand_kg": _m(s.on_hand[sp.product], "kg"),
+                 "taken_kg": _m(sp.from_stock_mass, "kg"), "taken_mol": _m(sp.from_stock_mol, "mol"),
+                 "runs": sp.runs}
+                for sp in plan.steps if sp.from_stock_mol is not None and sp.product in s.on_hand
+            ],
             "file": s.source,
         }
     return out

@@ -75,6 +75,9 @@ def metrics_lines(m: "Metrics", target: str) -> list[str]:
     if top:
         lines.append(f"  largest raw materials, kg per kg of {tgt}: "
                      + " · ".join(f"{escape(k)} {_num(v)}" for k, v in top))
+    if m.from_stock_per_kg_target:
+        lines.append(f"  intermediates from stock, counted as inputs in the PMI and E-factors, kg per kg of {tgt}: "
+                     + " · ".join(f"{escape(k)} {_num(v)}" for k, v in m.from_stock_per_kg_target.items()))
     lls = " → ".join(escape(s) for s in m.longest_linear_sequence)
     plural = "s" if m.step_count != 1 else ""
     lines.append(f"  {m.step_count} step{plural}; longest linear sequence "

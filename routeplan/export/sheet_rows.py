@@ -19,6 +19,7 @@ __all__ = [
     "BATCH_COLUMNS",
     "MATERIAL_COLUMNS",
     "STEP_COLUMNS",
+    "STEP_STOCK_COLUMNS",
     "SUMMARY_COLUMNS",
     "charge_rule",
     "batch_charge_rows",
@@ -34,6 +35,8 @@ __all__ = [
     "STOCK_COLUMNS",
     "stock_rows",
     "stock_summary_rows",
+    "from_stock_text",
+    "stock_not_needed",
 ]
 
 
@@ -73,6 +76,13 @@ MATERIAL_COLUMNS = (
     Column("made_in", "made in step"),
     Column("hazards", "hazards"),
     Column("notes", "notes"),
+)
+
+#: Columns that say what a step takes from stock and whether it runs (CSV steps table).
+STEP_STOCK_COLUMNS = (
+    Column("from_stock_mol", "product from stock", "mol"),
+    Column("from_stock_kg", "product from stock", "kg"),
+    Column("not_run", "not run because"),
 )
 
 STEP_COLUMNS = (
@@ -139,7 +149,7 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
     ``in_solution`` is True when it is carried in solution.
     """
     route = plan.route
-    n = sp.batches
+    n = sp.batches or 1  # a step that does not run gets no charge sheet; its rows are its zeros
     maker = {s.product: s for s in plan.steps}
     rows = []
     seen_limiting = False
@@ -223,7 +233,9 @@ def step_rows(plan: "Plan") -> list[dict[str, Any]]:
     """One row per step in execution order (see :data:`STEP_COLUMNS`).
 
     Volume per batch [L], vessel fill [-], yield [-], product amount [mol] and mass as
-    isolated (or in solution) [kg].
+    isolated (or in solution) [kg], made by the step; and (:data:`STEP_STOCK_COLUMNS`)
+    the product taken from stock [mol] and [kg] (None when the stock list does not name
+    it) and why the step does not run (None when it runs).
     """
     rows = []
     for sp in plan.steps:
@@ -242,6 +254,9 @@ def step_rows(plan: "Plan") -> list[dict[str, Any]]:
             "product_mol": in_unit(sp.product_mol, "mol"),
             "product_mass_kg": in_unit(sp.product_mass, "kg"),
             "isolated": sp.isolated,
+            "from_stock_mol": in_unit(sp.from_stock_mol, "mol"),
+            "from_stock_kg": in_unit(sp.from_stock_mass, "kg"),
+            "not_run": sp.not_run,
         })
     return rows
 
@@ -447,14 +462,16 @@ def stock_summary_rows(plan: "Plan") -> list[dict[str, Any]]:
     ``note`` rows; empty without a stock comparison.
 
     Keys: ``stock_file`` (when read from a file), ``max_target`` [kg] (text when no raw
-    material is in stock), ``limited_by``, ``not_in_stock`` and ``not_used`` (when any).
+    material is in stock), ``limited_by``, ``not_in_stock``, ``from_stock`` (one per
+    intermediate in the stock list: the mass taken [kg], as isolated), ``not_used`` and
+    ``not_needed`` (raw materials charged only in steps that do not run), when any.
     """
     s = plan.stock
     if s is None:
         return []
     needed = [r.material for r in plan.raw_materials]
     missing = [k for k in needed if k not in s.on_hand]
-    unused = sorted(k for k in s.on_hand if k not in set(needed))
+    unused, idle = stock_not_needed(plan)
     rows = []
     if s.source:
         rows.append(_fact("stock_file", "stock list", _file_name(s.source)))
@@ -470,6 +487,38 @@ def stock_summary_rows(plan: "Plan") -> list[dict[str, Any]]:
                           note=name if name and name != s.limited_by else ""))
     if missing:
         rows.append(_fact("not_in_stock", "not in stock (buy in full)", ", ".join(missing)))
+    for sp in plan.steps:
+        if sp.from_stock_mass is None or sp.product not in s.on_hand:
+            continue
+        rows.append(_fact("from_stock", f"{sp.product} taken from stock", in_unit(sp.from_stock_mass, "kg"),
+                          "kg", "mass", f"of {in_unit(s.on_hand[sp.product], 'kg'):.6g} kg on hand; "
+                          + from_stock_text(sp)))
     if unused:
         rows.append(_fact("not_used", "in stock, not used by this route", ", ".join(unused)))
+    if idle:
+        rows.append(_fact("not_needed", "in stock, not needed for this target", ", ".join(idle),
+                          note="charged only in steps that do not run"))
     return rows
+
+
+def from_stock_text(sp: "StepPlan") -> str:
+    """What the stock of a step's product means for the step, in words.
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace as NS
+    >>> from_stock_text(NS(id="S1", product="acid", not_run=None))
+    'step S1 makes the rest'
+    """
+    if sp.not_run is None:
+        return f"step {sp.id} makes the rest"
+    return f"step {sp.id} does not run: {sp.not_run}"
+
+
+def stock_not_needed(plan: "Plan") -> tuple[list[str], list[str]]:
+    """Raw materials in stock that the plan does not charge, sorted: those no step of
+    the route charges, and those charged only in steps that do not run."""
+    needed = {r.material for r in plan.raw_materials}
+    charged = {c.material for sp in plan.steps for c in sp.charges if not c.intermediate}
+    spare = [k for k in sorted(plan.stock.on_hand) if k not in needed and not plan.route.is_intermediate(k)]
+    return [k for k in spare if k not in charged], [k for k in spare if k in charged]

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from routeplan.export.sheet_rows import stock_not_needed
 from routeplan.export.tables import display_quantity
 
 __all__ = ["stock_lines"]
@@ -20,14 +21,25 @@ def stock_lines(plan) -> list[str]:
     else:
         most = display_quantity(s.max_target.m_as("kg"), "mass")
         lines.append(f"Stock: the materials on hand allow a target of at most {most} of {tgt}"
+                     + (", using the intermediates in stock first" if _shelf(plan) else "")
                      + (f" (plus the {overage * 100:.3g} % overage, so --target \"{most}\")" if overage else "")
                      + f", limited by {s.limited_by}"
                      + (", counting only the materials in stock" if missing else "") + ".")
     if missing:
         lines.append("  not in stock, to buy in full: " + ", ".join(missing))
-    unused = sorted(k for k in in_stock if k not in {r.material for r in plan.raw_materials})
+    for sp in plan.steps:
+        if sp.from_stock_mass is not None and sp.product in in_stock:
+            have = display_quantity(s.on_hand[sp.product].m_as("kg"), "mass")
+            taken = display_quantity(sp.from_stock_mass.m_as("kg"), "mass")
+            then = f"step {sp.id} makes the rest" if sp.runs else f"step {sp.id} does not run"
+            lines.append(f"  {sp.product} (intermediate, made in {sp.id}): {taken} of the {have} on hand "
+                         f"taken from stock; {then}")
+    unused, idle = stock_not_needed(plan)
     if unused:
         lines.append("  in stock but not needed by this route: " + ", ".join(unused))
+    if idle:
+        lines.append("  in stock, not needed for this target (charged only in steps that do not run): "
+                     + ", ".join(idle))
     if s.to_buy:
         asked = plan.target_mass.m_as("kg") / (1 + overage)
         lines.append(f"To buy for {display_quantity(asked, 'mass')} of {tgt}"
@@ -38,3 +50,9 @@ def stock_lines(plan) -> list[str]:
     else:
         lines.append("Nothing to buy: the stock covers the requested target.")
     return lines
+
+
+def _shelf(plan) -> bool:
+    """True when the stock list names an intermediate with some mass on hand."""
+    route = plan.route
+    return any(route.is_intermediate(k) and m.magnitude > 0 for k, m in plan.stock.on_hand.items())

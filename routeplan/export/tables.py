@@ -75,7 +75,11 @@ def in_unit(q, unit: str) -> float | None:
 
 
 def step_charge_rows(sp: "StepPlan") -> list[dict[str, Any]]:
-    """One row per charge of one step, in order of addition."""
+    """One row per charge of one step, in order of addition.
+
+    Per-batch mass [kg] and volume [L] are None for a step of no batches (one that does
+    not run because the stock of its product covers it).
+    """
     n = sp.batches
     rows = []
     for c in sp.charges:
@@ -93,8 +97,8 @@ def step_charge_rows(sp: "StepPlan") -> list[dict[str, Any]]:
             "mass_kg": mass,
             "volume_L": vol,
             "batches": n,
-            "batch_mass_kg": mass / n,
-            "batch_volume_L": None if vol is None else vol / n,
+            "batch_mass_kg": None if n == 0 else mass / n,  # no batch: the step does not run
+            "batch_volume_L": None if vol is None or n == 0 else vol / n,
             "intermediate": c.intermediate,
             "carried_from": c.carried_from,
         })

@@ -104,6 +104,21 @@ def _step_footer(sp) -> str:
     return text
 
 
+def _stock_line(sp) -> str:
+    """What the stock of the step's product does to the step ("" when not in the stock list)."""
+    from routeplan.export.tables import display_quantity
+
+    taken = None if sp.from_stock_mass is None else sp.from_stock_mass.m_as("kg")
+    if not sp.runs:
+        text = f"  not run: {sp.not_run}"
+        if taken:
+            text += f" ({display_quantity(taken, 'mass')} of {sp.product} taken from stock)"
+        return text + "; nothing to charge"
+    if taken:
+        return f"  {display_quantity(taken, 'mass')} of {sp.product} taken from stock; this step makes the rest"
+    return ""
+
+
 def _raw_table(plan) -> Table:
     rows = raw_material_rows(plan)
     mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
@@ -147,8 +162,12 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
         title = f"{sp.id} · {sp.name}" if sp.name and sp.name != sp.id else sp.id
         con.print(f"[bold]{escape(title)}[/bold]   {escape(sp.equation)}   yield {sp.yield_:.0%}"
                   + ("   [italic]telescoped: the product goes on in solution[/italic]" if not sp.isolated else ""))
-        con.print(_step_table(sp, plan.route))
-        con.print(escape(_step_footer(sp)))
+        if sp.runs:
+            con.print(_step_table(sp, plan.route))
+            con.print(escape(_step_footer(sp)))
+        stock_line = _stock_line(sp)
+        if stock_line:
+            con.print(escape(stock_line))
         con.print()
     con.print(_raw_table(plan))
     oy = plan.overall_yield

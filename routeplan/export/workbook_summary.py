@@ -5,7 +5,9 @@ SHA-256, date, target, overall yield, cost), the route metrics read from
 ``plan.metrics`` (process mass intensity, complete and simple E-factor, raw-material
 cost per kg of target and the raw materials without a price), a line per step with the
 names of its charge sheets and the step metrics (step and cumulative PMI, atom economy,
-reaction mass efficiency), the raw-material totals with ``cost = mass * price`` as live
+reaction mass efficiency) and, under a step that takes its product from stock or does
+not run, a line that says so (a step that does not run has no charge sheet), the
+raw-material totals with ``cost = mass * price`` as live
 formulas and their total, the stock comparison when ``plan.stock`` is set (largest
 target the stock allows, the limiting material, and per raw material need, on hand and
 ``to buy = MAX(0, need - on hand)`` as a live formula), and the warnings.
@@ -164,10 +166,27 @@ def _steps(plan: "Plan", sheet_names) -> list[dict[str, Any]]:
     for row, metrics in zip(rows, step_metric_rows(plan)):
         names = sheets_of.get(row["step"], [])
         row["sheets"] = names[0] if len(names) == 1 else f"{names[0]} … {names[-1]}" if names else ""
+        if row["not_run"] is not None:
+            row["sheets"] = "none: the step does not run"
         if row["step"] in shared:
             row["sheets"] += f" (one sheet for each of {row['batches']} identical batches)"
         row.update({k: v for k, v in metrics.items() if k != "step"})
     return rows
+
+
+def _stock_note(plan: "Plan", row: dict[str, Any]) -> str:
+    """The line under a step that takes its product from stock or does not run ("" otherwise)."""
+    from routeplan.export.tables import display_quantity
+
+    step = plan.step(row["step"])
+    if row["from_stock_kg"] is not None and row["from_stock_kg"] > 0:
+        taken = f"{display_quantity(row['from_stock_kg'], 'mass')} of {step.product} taken from stock; "
+        if row["not_run"] is None:
+            return taken + "this step makes the rest"
+        return taken + f"not run: {row['not_run']}; no charge sheet"
+    if row["not_run"] is not None:
+        return f"not run: {row['not_run']}; no charge sheet"
+    return ""
 
 
 def _widths(ws, tables: list[tuple[tuple[Column, ...], list[dict[str, Any]]]]) -> list[float]:
@@ -238,6 +257,12 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
             fmt = step_formats.get(col.key) or (st.quantity(v) if isinstance(v, float) else st.cell_text)
             put(ws, r, i, v, fmt)
         sh.fit_row(r, {0: row["step"], 1: row["name"], 7: row["sheets"]})
+        note = _stock_note(plan, row)
+        if note:
+            r += 1
+            ws.merge_range(r, 1, r, last, "", st.note)
+            ws.write_string(r, 1, note, st.note)
+            sh.fit_row(r, {1: note}, {1: last})
 
     # raw materials
     r += 2

@@ -12,8 +12,8 @@ Volume of a step
 
 Batches
     ``batches = ceil(step volume / (vessel volume * max_fill))`` for a step with a
-    vessel; one batch otherwise.  Each batch charges the totals divided by the number
-    of batches.  A batch filling less than 20 % of the nominal volume is too little to
+    vessel; one batch otherwise; none for a step that does not run (the stock of its
+    product covers it).  Each batch charges the totals divided by the number of batches.  A batch filling less than 20 % of the nominal volume is too little to
     stir (common practice, no source); a batch of more than 10 times the largest batch
     run so far (``demonstrated_batch``) is a large scale-up jump (common practice, no
     source), and more than 12 batches of one step is worth a look at the vessel (common
@@ -91,7 +91,8 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
     Returns
     -------
     tuple
-        (tuple of StepPlan with ``batch`` set, list of Problem).
+        (tuple of StepPlan with ``batch`` set, list of Problem).  A step that does not
+        run (``StepPlan.not_run``) gets 0 batches, a volume of 0 L and no warning.
     """
     from routeplan.plan.model import BatchPlan
 
@@ -100,6 +101,12 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
     out = []
     for sp in steps:
         volume, notes, carried_in = volumes[sp.id]
+        charges = tuple(replace(c, carried_from=carried_in[c.order][0], volume=carried_in[c.order][1])
+                        if c.order in carried_in else c for c in sp.charges)
+        if sp.not_run is not None:  # no batch at all: nothing to size, warn about or divide
+            out.append(replace(sp, charges=charges, batch=BatchPlan(
+                batches=0, step_volume=volume, batch_volume=volume * 0, fill_fraction=None, vessel=sp.vessel)))
+            continue
         step = route.step(sp.id)
         vessel = route.equipment.get(sp.vessel) if sp.vessel else None
         if vessel is None:
@@ -134,7 +141,5 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
         bp = BatchPlan(batches=batches, step_volume=volume, batch_volume=volume / batches,
                        fill_fraction=fill, vessel=sp.vessel, notes=notes)
-        charges = tuple(replace(c, carried_from=carried_in[c.order][0], volume=carried_in[c.order][1])
-                        if c.order in carried_in else c for c in sp.charges)
         out.append(replace(sp, batch=bp, charges=charges))
     return tuple(out), warnings

@@ -9,12 +9,16 @@ Words used throughout
     *raw material*: a charge that is bought, i.e. a :class:`~routeplan.plan.model.ChargePlan`
     with ``intermediate=False`` (reactants, reagents, catalysts, solvents, work-up water);
     *input of a step*: every charge of the step, a charged intermediate included;
+    *intermediate from stock*: what the walk takes of an intermediate on the shelf
+    (``StepPlan.from_stock_mass``, as isolated); it enters the campaign like a raw
+    material and counts as one in the route PMI and the E-factors, so that using stock
+    does not make the route look greener than it is;
     *mass*: mass as charged [kg] (a solution's whole mass, a solid at its assay).
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import TYPE_CHECKING, Any, Mapping
 
@@ -36,6 +40,7 @@ __all__ = [
     "reaction_mass_efficiency",
     "raw_material_cost",
     "is_water",
+    "stock_input_kg",
 ]
 
 #: Charge roles left out of the simple E-factor, besides any charge of water
@@ -55,14 +60,21 @@ def _ratio(num: float, den: float) -> float | None:
 # --------------------------------------------------------------------------- PMI
 
 
+def stock_input_kg(plan: "Plan") -> dict[str, float]:
+    """Mass of each intermediate taken from stock [kg], as isolated; empty without any."""
+    return {sp.product: _kg(sp.from_stock_mass) for sp in plan.steps
+            if sp.from_stock_mass is not None and sp.from_stock_mass.magnitude > 0}
+
+
 def route_pmi(plan: "Plan") -> float:
     """Process mass intensity of the whole route [kg/kg].
 
-    ``PMI = sum of the masses of every raw material charged in every step / mass of
-    target delivered``, with the target mass as isolated including overage
-    (``plan.target_mass``).  Reactants, reagents, catalysts, solvents and work-up
-    water all count; intermediates made in the route do not (their own raw materials
-    are already counted).
+    ``PMI = (sum of the masses of every raw material charged in every step + mass of
+    every intermediate taken from stock) / mass of target delivered``, with the target
+    mass as isolated including overage (``plan.target_mass``).  Reactants, reagents,
+    catalysts, solvents and work-up water all count; intermediates made in the route do
+    not (their own raw materials are already counted), but an intermediate taken from
+    the shelf does: it is material entering the campaign (our own choice).
 
     Source: C. Jimenez-Gonzalez, C. S. Ponder, Q. B. Broxterman and J. B. Manley,
     Org. Process Res. Dev. 2011, 15, 912 (PMI of a multi-step route counts every
@@ -79,6 +91,9 @@ def route_pmi(plan: "Plan") -> float:
         Route PMI [kg/kg].
     """
     raw = sum(_kg(c.mass) for sp in plan.steps for c in sp.charges if not c.intermediate)
+    shelf = stock_input_kg(plan)
+    if shelf:
+        raw += sum(shelf.values())
     return raw / _kg(plan.target_mass)
 
 
@@ -109,7 +124,12 @@ def _share(c: "ChargePlan", maker: "StepPlan") -> float:
 
 
 def _cumulative_raw_mass(plan: "Plan") -> dict[str, float]:
-    """Raw material mass [kg] behind each step's whole product, steps in execution order."""
+    """Raw material mass [kg] behind each step's whole product, steps in execution order.
+
+    Where part of an intermediate comes from stock, a step that charges it takes its
+    share of the maker's raw materials and of the stock's mass together, in proportion
+    to the moles made plus the moles taken from stock.
+    """
     by_product = {sp.product: sp for sp in plan.steps}
     out: dict[str, float] = {}
     for sp in plan.steps:  # execution order: every maker comes before its users
@@ -120,9 +140,22 @@ def _cumulative_raw_mass(plan: "Plan") -> dict[str, float]:
                 if not c.intermediate:
                     total += _kg(c.mass)
                 continue
-            total += _share(c, maker) * out[maker.id]
+            if maker.from_stock_mol is None:
+                total += _share(c, maker) * out[maker.id]
+            else:
+                total += _stock_share(c, maker) * (out[maker.id] + _kg(maker.from_stock_mass))
         out[sp.id] = total
     return out
+
+
+def _stock_share(c: "ChargePlan", maker: "StepPlan") -> float:
+    """Fraction of ``maker``'s product made and taken from stock that charge ``c`` takes [-]."""
+    mol = unit("mol")
+    supply = maker.product_mol.m_as(mol) + maker.from_stock_mol.m_as(mol)
+    if c.mol is not None and supply > 0:
+        return float(c.mol.m_as(mol) / supply)
+    made = _kg(maker.product_mass) + _kg(maker.from_stock_mass)
+    return _kg(c.mass) / made if made > 0 else 0.0
 
 
 def cumulative_pmi(plan: "Plan") -> dict[str, float | None]:
@@ -178,10 +211,11 @@ def is_water(material: "Material") -> bool:
 def simple_e_factor(plan: "Plan") -> float:
     """Simple E-factor of the route [kg/kg].
 
-    ``sEF = (mass of raw materials other than solvents and water - mass of target) /
-    mass of target``.  Left out: every charge with role ``solvent`` or ``workup``
-    (:data:`SOLVENT_ROLES`) and every charge of water (:func:`is_water`) whatever its
-    role.  A reagent bought as a solution counts at its whole mass.
+    ``sEF = (mass of raw materials other than solvents and water + mass of
+    intermediates taken from stock - mass of target) / mass of target``.  Left out:
+    every charge with role ``solvent`` or ``workup`` (:data:`SOLVENT_ROLES`) and every
+    charge of water (:func:`is_water`) whatever its role.  A reagent bought as a
+    solution counts at its whole mass.
 
     Source: F. Roschangar, R. A. Sheldon and C. H. Senanayake, Green Chem. 2015, 17,
     752 (sEF leaves out solvents and water; cEF counts them all, without recycling).
@@ -198,6 +232,9 @@ def simple_e_factor(plan: "Plan") -> float:
             if c.intermediate or c.role in SOLVENT_ROLES or is_water(materials[c.material]):
                 continue
             kept += _kg(c.mass)
+    shelf = stock_input_kg(plan)
+    if shelf:
+        kept += sum(shelf.values())
     target = _kg(plan.target_mass)
     return (kept - target) / target
 
@@ -338,13 +375,18 @@ class Metrics:
         Raw materials left out of ``cost_per_kg`` for want of a price.
     mass_per_kg_target : Mapping[str, float]
         Mass of each raw material as supplied per kg of target [kg/kg], in order of
-        first use; the values add up to ``pmi``.
+        first use; with ``from_stock_per_kg_target`` the values add up to ``pmi``.
     largest_raw_material : tuple of (str, float) or None
         Key and mass [kg] of the raw material with the largest mass over the campaign.
     step_count : int
         Number of steps in the route [-].
     longest_linear_sequence : tuple of str
         Step ids of the longest chain of steps ending at the target.
+    from_stock_per_kg_target : Mapping[str, float]
+        Mass of each intermediate taken from stock, as isolated, per kg of target
+        [kg/kg]; counted in ``pmi`` and the E-factors.  Empty without one.
+
+    A step that does not run (``StepPlan.not_run``) has None for every step metric.
     """
 
     target_mass_kg: float
@@ -362,6 +404,7 @@ class Metrics:
     largest_raw_material: tuple[str, float] | None
     step_count: int
     longest_linear_sequence: tuple[str, ...]
+    from_stock_per_kg_target: Mapping[str, float] = field(default_factory=lambda: MappingProxyType({}))
 
     @property
     def cost_complete(self) -> bool:
@@ -392,6 +435,7 @@ class Metrics:
             "step_count": self.step_count,
             "longest_linear_sequence": {"count": len(self.longest_linear_sequence),
                                         "steps": list(self.longest_linear_sequence)},
+            "from_stock_per_kg_target": dict(self.from_stock_per_kg_target),
         }
 
     def summary_lines(self, plan: "Plan") -> list[str]:
@@ -433,16 +477,22 @@ def compute_metrics(plan: "Plan") -> Metrics:
     if plan.raw_materials:
         big = max(plan.raw_materials, key=lambda r: _kg(r.mass))
         largest = (big.material, _kg(big.mass))
+    runs = {sp.id for sp in plan.steps if sp.not_run is None}
+
+    def ran(values: Mapping) -> Mapping:
+        # a step that does not run has no step metrics
+        return _frozen({k: (v if k in runs else None) for k, v in values.items()})
+
     return Metrics(
         target_mass_kg=target,
         pmi=pmi,
-        pmi_by_step=_frozen({sp.id: step_pmi(sp) for sp in plan.steps}),
-        pmi_cumulative_by_step=_frozen(cumulative_pmi(plan)),
+        pmi_by_step=ran({sp.id: step_pmi(sp) for sp in plan.steps}),
+        pmi_cumulative_by_step=ran(cumulative_pmi(plan)),
         # cEF = PMI - 1 (Roschangar, Sheldon and Senanayake, Green Chem. 2015, 17, 752)
         e_factor_complete=pmi - 1.0,
         e_factor_simple=simple_e_factor(plan),
-        atom_economy_by_step=_frozen({sp.id: atom_economy(route, sp.id) for sp in plan.steps}),
-        reaction_mass_efficiency_by_step=_frozen(
+        atom_economy_by_step=ran({sp.id: atom_economy(route, sp.id) for sp in plan.steps}),
+        reaction_mass_efficiency_by_step=ran(
             {sp.id: reaction_mass_efficiency(route, sp) for sp in plan.steps}),
         cost_per_kg=cost,
         currency=route.currency,
@@ -451,4 +501,5 @@ def compute_metrics(plan: "Plan") -> Metrics:
         largest_raw_material=largest,
         step_count=len(plan.steps),
         longest_linear_sequence=tuple(plan.overall_yield.longest_linear_sequence),
+        from_stock_per_kg_target=_frozen({k: v / target for k, v in stock_input_kg(plan).items()}),
     )

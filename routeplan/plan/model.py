@@ -146,6 +146,15 @@ class StepPlan:
         Batch sizing, once computed.
     notes : str or None
         Free text from the route file.
+    from_stock_mol : pint.Quantity or None
+        Moles of the product taken from the stock on hand [mol] before the step is
+        planned for the rest; None when the stock list does not name the product.
+    from_stock_mass : pint.Quantity or None
+        The same as a mass as isolated, at the product's assay [kg]; None likewise.
+    not_run : str or None
+        Why the step does not run in this campaign (the stock of its product covers
+        the demand, or it feeds only steps that do not run); None when it runs.  A step
+        that does not run has zero charges and zero batches.
     """
 
     id: str
@@ -163,11 +172,24 @@ class StepPlan:
     vessel: str | None = None
     batch: BatchPlan | None = None
     notes: str | None = None
+    from_stock_mol: "pint.Quantity | None" = None
+    from_stock_mass: "pint.Quantity | None" = None
+    not_run: str | None = None
 
     @property
     def batches(self) -> int:
-        """Number of batches [-] (1 until sized)."""
+        """Number of batches [-] (1 until sized; 0 for a step that does not run)."""
         return self.batch.batches if self.batch else 1
+
+    @property
+    def runs(self) -> bool:
+        """False when the step does not run in this campaign (see ``not_run``)."""
+        return self.not_run is None
+
+    @property
+    def covered_by_stock(self) -> bool:
+        """True when the stock of the product covers the whole demand on the step."""
+        return self.not_run is not None and self.from_stock_mol is not None and self.from_stock_mol.magnitude > 0
 
 
 @dataclass(frozen=True)
@@ -231,13 +253,19 @@ class StockPlan:
     Attributes
     ----------
     max_target : pint.Quantity or None
-        Largest target mass the stock allows [kg]; None when nothing is in stock.
+        Largest target amount the raw materials in stock allow, before the route's
+        overage (as ``--target`` takes it), with any intermediate stock used first [kg];
+        None when no raw material of the list is needed.
     limited_by : str or None
         Raw material that limits it.
     to_buy : tuple of (str, pint.Quantity)
         Material key and mass to buy for the requested target [kg].
     on_hand : Mapping[str, pint.Quantity]
-        Stock by material [kg].
+        Stock by material [kg]: raw materials as supplied, intermediates as isolated
+        (at their assay).  What the plan takes of an intermediate is on the step that
+        makes it (``StepPlan.from_stock_mol``, ``from_stock_mass``).
+    source : str or None
+        The stock file, when read from one.
     """
 
     max_target: "pint.Quantity | None"

@@ -1,16 +1,21 @@
 """Stock on hand: read a stock list, and say what it allows and what to buy.
 
-A stock list names raw materials and the amount on the shelf, as a YAML mapping
+A stock list names materials and the amount on the shelf, as a YAML mapping
 (``aminophenol: 30 kg``), or as a CSV or xlsx table with the columns ``material``,
 ``amount`` and ``unit``.  An amount is a mass, or a volume for a material with a
-density (or a solution).
+density (or a solution).  A raw material's amount is as supplied; an intermediate's
+(the main product of an isolated step, left from an earlier campaign) is as isolated,
+at its assay, and the backward walk uses it first (:func:`routeplan.plan.walk.walk_steps`).
 
-Every raw-material requirement of a plan is proportional to the target mass (the
-backward walk is linear), so the largest target the stock allows is
-``T * min(on_hand / need)`` over the raw materials in stock, with ``T`` the requested
+With raw materials only, every raw-material requirement of a plan is proportional to
+the target mass (the backward walk is linear), so the largest target the stock allows
+is ``T * min(on_hand / need)`` over the raw materials in stock, with ``T`` the requested
 target amount before overage [kg] (the number ``--target`` takes; the plan adds the
-route's overage to it).  Raw materials that the list does not name are not in stock: they are
-bought in full and are listed as such, never taken as unlimited in silence.
+route's overage to it).  With an intermediate in stock the needs are no longer
+proportional, and the largest target is found by bisection
+(:mod:`routeplan.plan.stock_limit`).  Raw materials that the list does not name are not
+in stock: they are bought in full and are listed as such, never taken as unlimited in
+silence.
 """
 
 from __future__ import annotations
@@ -30,7 +35,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StockPlan
     from routeplan.route.model import Route
 
-__all__ = ["read_stock", "stock_plan"]
+__all__ = ["read_stock", "load_stock", "intermediate_stock", "stock_plan"]
 
 _COLUMNS = ("material", "amount", "unit")
 
@@ -48,8 +53,7 @@ def _mass(route: "Route", key: str, text: str, where: Location) -> "pint.Quantit
         raise StockError(f"unknown material '{key}'", location=where,
                          hint=_suggest(key, route.materials))
     if route.is_intermediate(key):
-        raise StockError(f"'{key}' is made in the route (step {route.producer[key]}); "
-                         "a stock list holds raw materials only", location=where)
+        _check_intermediate(route, key, where)
     mat = route.materials[key]
     try:
         q = parse_quantity(text, "mass", where=where)
@@ -69,6 +73,25 @@ def _mass(route: "Route", key: str, text: str, where: Location) -> "pint.Quantit
         raise StockError(f"amount '{text}' of '{key}' is negative", location=where,
                          hint="give the amount on the shelf, 0 or more")
     return q
+
+
+def _check_intermediate(route: "Route", key: str, where: Location | None) -> None:
+    """Refuse stock of an intermediate the plan cannot take from a shelf.
+
+    The target is what the campaign delivers (plan the amount still to make with
+    ``--target`` instead), and the product of a telescoped step is never isolated, so it
+    has no mass as isolated to stand on a shelf.
+    """
+    if key == route.target.material:
+        raise StockError(f"'{key}' is the target of the route; a stock list names raw materials and "
+                         "intermediates", location=where,
+                         hint="plan the amount still to make with --target instead")
+    maker = next(s for s in route.steps if s.product == key)
+    if not maker.isolated:
+        raise StockError(f"'{key}' is made in the route by telescoped step {maker.id} (isolated: false) and "
+                         "goes on in solution; only an isolated intermediate can be taken from stock",
+                         location=where,
+                         hint=f"remove '{key}' from the stock list, or isolate it in step {maker.id}")
 
 
 def _read_yaml(route, path: Path, data: bytes) -> dict[str, Any]:
@@ -144,11 +167,14 @@ def _table(route, path: Path, rows: list[list[Any]], cell) -> dict[str, Any]:
 def read_stock(route: "Route", path: str | Path) -> dict[str, "pint.Quantity"]:
     """Read a stock list for ``route``: material key -> mass on hand [kg].
 
+    Raw materials are as supplied; an isolated intermediate is as isolated, at its assay.
+
     Raises
     ------
     StockError
-        Unreadable file, unknown or made-in-route material, a wrong unit, a negative
-        amount, a missing column, a material listed twice.
+        Unreadable file, unknown material, the target or a telescoped intermediate, a
+        wrong unit, a volume without a density, a negative amount, a missing column, a
+        material listed twice.
     """
     path = Path(path)
     try:
@@ -182,32 +208,72 @@ def read_stock(route: "Route", path: str | Path) -> dict[str, "pint.Quantity"]:
                      hint="use .yaml, .csv or .xlsx")
 
 
-def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]") -> "StockPlan":
+def load_stock(route: "Route", stock: "str | Path | Mapping[str, pint.Quantity]"):
+    """The stock on hand as material key -> mass [kg], and the file it came from.
+
+    Parameters
+    ----------
+    route : Route
+        The route the stock is for.
+    stock : str, Path or Mapping[str, pint.Quantity]
+        A stock file (:func:`read_stock`), or material key -> mass on hand [kg].
+
+    Returns
+    -------
+    tuple
+        (dict of key -> pint.Quantity [kg], file name or None).
+
+    Raises
+    ------
+    StockError
+        As :func:`read_stock`; for a mapping, an intermediate that cannot come from
+        stock (the target, a telescoped product) or a negative amount of one.
+    """
+    if isinstance(stock, (str, Path)):
+        return read_stock(route, stock), str(stock)
+    on_hand = {k: v.to(unit("kg")) for k, v in stock.items()}
+    for key, mass in on_hand.items():
+        if route.is_intermediate(key):
+            where = Location(key=key)
+            _check_intermediate(route, key, where)
+            if mass.magnitude < 0:
+                raise StockError(f"amount {mass:~P} of '{key}' is negative", location=where,
+                                 hint="give the amount on the shelf, 0 or more")
+    return on_hand, None
+
+
+def intermediate_stock(route: "Route", on_hand: "Mapping[str, pint.Quantity]") -> dict[str, "pint.Quantity"]:
+    """The intermediates of ``on_hand``: key -> mass as isolated, at its assay [kg]."""
+    return {k: v for k, v in on_hand.items() if route.is_intermediate(k)}
+
+
+def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]", *,
+               source: str | None = None) -> "StockPlan":
     """Compare a plan's raw materials with the stock on hand.
 
     Parameters
     ----------
     plan : Plan
-        A plan for the requested target.
+        A plan for the requested target, planned with the same stock's intermediates
+        (``plan_route(..., stock=...)`` does both).
     stock : str, Path or Mapping[str, pint.Quantity]
         A stock file, or material key -> mass on hand [kg].
+    source : str, optional
+        The file ``stock`` was read from, when it is a mapping read already.
 
     Returns
     -------
     StockPlan
         ``max_target`` [kg] (the largest target amount, before the route's overage, as
-        ``--target`` takes it; over the raw materials in stock; None if none of them is
-        needed), ``limited_by``, ``to_buy`` (key, mass [kg]) for the requested target
-        (materials not in stock in full), and ``on_hand``.
+        ``--target`` takes it; over the raw materials in stock, any intermediate in
+        stock used first; None if none of them is needed), ``limited_by``, ``to_buy``
+        (key, mass [kg]) for the requested target (materials not in stock in full),
+        and ``on_hand``.
     """
     from routeplan.plan.model import StockPlan
 
-    source = None
-    if isinstance(stock, (str, Path)):
-        source = str(stock)
-        on_hand = read_stock(plan.route, stock)
-    else:
-        on_hand = {k: v.to(unit("kg")) for k, v in stock.items()}
+    on_hand, read_from = load_stock(plan.route, stock)
+    source = read_from or source
     # on the --target basis: the amount before overage, which the plan scales by (1 + overage)
     target = plan.target_mass / (1 + plan.route.target.overage)
     best_ratio, limited_by = None, None
@@ -226,5 +292,13 @@ def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]") 
         if short.magnitude > 0:
             to_buy.append((r.material, short.to(unit("kg"))))
     max_target = None if best_ratio is None else (target * best_ratio).to(unit("kg"))
+    shelf = intermediate_stock(plan.route, on_hand)
+    if any(m.magnitude > 0 for m in shelf.values()):
+        # the needs are no longer proportional to the target: bisection on the target
+        from routeplan.plan.stock_limit import largest_target
+
+        raw_on_hand = {k: v for k, v in on_hand.items() if k not in shelf}
+        max_target, limited_by = largest_target(plan.route, target, raw_on_hand, shelf,
+                                                yields=plan.yield_basis)
     return StockPlan(max_target=max_target, limited_by=limited_by, to_buy=tuple(to_buy),
                      on_hand=on_hand, source=source)

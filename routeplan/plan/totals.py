@@ -12,19 +12,22 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import OverallYield, RawMaterialTotal, StepPlan
     from routeplan.route.model import Route
 
-__all__ = ["raw_material_totals", "overall_yield", "stoichiometric_factor"]
+__all__ = ["raw_material_totals", "overall_yield", "stoichiometric_factor", "made_fraction"]
 
 
 def raw_material_totals(route: "Route", steps: "tuple[StepPlan, ...]") -> "tuple[RawMaterialTotal, ...]":
     """Every bought material summed over the whole route, in order of first use.
 
     Mass [kg] and volume [L] are as supplied; cost is ``mass * price`` in the route's
-    currency where both a price and a currency are given.
+    currency where both a price and a currency are given.  A step that does not run
+    (its product's stock covers it) charges nothing and is left out.
     """
     from routeplan.plan.model import RawMaterialTotal
 
     acc: dict[str, dict] = {}
     for sp in steps:
+        if sp.not_run is not None:
+            continue
         for c in sp.charges:
             if c.intermediate:
                 continue
@@ -88,7 +91,11 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: "pint
     ``n_target * sum(1 / f_i) / sum(n_i)`` [-], with ``n_i`` the moles of ``R`` charged
     in each step that uses it and ``f_i`` the theoretical moles of target per mole of
     ``R`` there (:func:`stoichiometric_factor`); for one use, ``(n_target / n_R) / f_R``.
-    An excess of ``R`` lowers it.
+    An excess of ``R`` lowers it.  Where an intermediate is taken from stock, only the
+    share of the target that the campaign makes from ``R`` counts: each ``1 / f_i`` is
+    weighted by the fraction of the target made from step ``i``'s own product
+    (:func:`made_fraction`), so that stock on the shelf does not show as a yield above
+    theory.
     """
     from routeplan.plan.model import OverallYield
     from routeplan.route.graph import longest_linear_sequence
@@ -101,6 +108,7 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: "pint
         step_yield = route.step(sid).yield_
         low *= step_yield.low if step_yield.low is not None else step_yield.expected
         high *= step_yield.high if step_yield.high is not None else step_yield.expected
+    made = made_fraction(steps) if any(sp.from_stock_mol is not None for sp in steps) else None
     memo: dict = {}
     sum_n: dict[str, float] = {}
     sum_inv_f: dict[str, float] = {}
@@ -114,7 +122,45 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: "pint
             f = stoichiometric_factor(route, sp.id, c.material, memo)
             if f > 0:
                 sum_n[c.material] = sum_n.get(c.material, 0.0) + c.mol.m_as(unit("mol"))
-                sum_inv_f[c.material] = sum_inv_f.get(c.material, 0.0) + 1.0 / f
+                weight = 1.0 if made is None else made[sp.id]
+                sum_inv_f[c.material] = sum_inv_f.get(c.material, 0.0) + weight / f
     # used in several steps, the theoretical need is n_t * sum(1/f_i) mol
     per_raw = {k: n_t * sum_inv_f[k] / n for k, n in sum_n.items() if n > 0}
     return OverallYield(longest_linear_sequence=lls, yield_=y, by_raw_material=per_raw, low=low, high=high)
+
+
+def made_fraction(steps: "tuple[StepPlan, ...]") -> dict[str, float]:
+    """Fraction of the target that the campaign makes from each step's own product [-].
+
+    ``phi(s) = alpha(s) * sum_c(n_c * phi(c)) / sum_c(n_c)`` over the steps ``c`` that
+    charge the product of ``s`` (``n_c`` the moles each charges), with
+    ``alpha(s) = made / (made + taken from stock)`` the share of that product the step
+    makes; ``phi`` of the step that makes the target is its own ``alpha``.  Without
+    stock every ``phi`` is 1; a step that does not run has ``phi = 0``.
+
+    Parameters
+    ----------
+    steps : tuple of StepPlan
+        In execution order.
+
+    Returns
+    -------
+    dict[str, float]
+        Step id -> fraction [-].
+    """
+    mol = unit("mol")
+    users: dict[str, list[tuple[str, float]]] = {}
+    for sp in steps:
+        for c in sp.charges:
+            if c.intermediate and c.mol is not None:
+                users.setdefault(c.material, []).append((sp.id, float(c.mol.m_as(mol))))
+    out: dict[str, float] = {}
+    for sp in reversed(steps):
+        made = float(sp.product_mol.m_as(mol))
+        taken = 0.0 if sp.from_stock_mol is None else float(sp.from_stock_mol.m_as(mol))
+        alpha = made / (made + taken) if made + taken > 0 else 0.0
+        used = [(u, n) for u, n in users.get(sp.product, ()) if u in out]
+        total = sum(n for _u, n in used)
+        downstream = sum(n * out[u] for u, n in used) / total if total > 0 else (0.0 if used else 1.0)
+        out[sp.id] = alpha * downstream
+    return out

@@ -7,7 +7,9 @@ The method is the one of the route format ("How the plan is computed"):
    ``n_lim = n_p / (yield * nu_product / nu_limiting)`` mol of limiting reagent, and
    demands on an intermediate from several steps add up;
 3. each charge follows from its basis (:mod:`routeplan.plan.charges`);
-4. a charged intermediate is not bought: its moles become the demand on its maker.
+4. a charged intermediate is not bought: its moles become the demand on its maker;
+5. an intermediate on the shelf is used first: the demand on its maker is reduced by the
+   moles on hand (``mass * assay / M``), never below zero.
 
 Quantities are pint quantities in mol, kg and L throughout.
 """
@@ -20,12 +22,14 @@ from routeplan.units import unit
 from routeplan.errors import PlanError, Problem
 
 if TYPE_CHECKING:  # pragma: no cover
+    from typing import Mapping
+
     import pint
 
-    from routeplan.plan.model import Plan
+    from routeplan.plan.model import Plan, StepPlan
     from routeplan.route.model import Route
 
-__all__ = ["plan_route", "target_moles", "YIELD_BASES"]
+__all__ = ["plan_route", "walk_steps", "target_moles", "YIELD_BASES"]
 
 
 def target_moles(route: "Route", amount: "pint.Quantity") -> "pint.Quantity":
@@ -57,8 +61,11 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         Mass to deliver as isolated [kg] (any mass unit, or a string such as
         ``"40 kg"``); default the route's ``target.amount``.
     stock : Mapping[str, pint.Quantity] or str or Path, optional
-        Raw materials on hand [kg], or a stock file (YAML, CSV or xlsx); when given, the
-        plan says the largest target the stock allows and what to buy.
+        Materials on hand [kg], or a stock file (YAML, CSV or xlsx); when given, the
+        plan says the largest target the stock allows and what to buy.  Raw materials
+        are as supplied; an intermediate (the product of an isolated step) is as
+        isolated, at its assay, and is used first: the step that makes it is planned
+        for the rest of the demand only (see :func:`walk_steps`).
     yields : {"expected", "low", "high"}
         Which yield of each step the walk uses; a step without a ``low`` or ``high``
         uses its expected yield.  Planning at the low yields sizes charges and purchases
@@ -74,11 +81,9 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     PlanError
         When the route cannot be planned (e.g. a non-positive target).
     """
-    from routeplan.plan.charges import compute_step
-    from routeplan.plan.model import Plan, StepPlan
+    from routeplan.plan.model import Plan
     from routeplan.plan.totals import overall_yield, raw_material_totals
-    from routeplan.route.graph import execution_order
-    from routeplan.units import Q, parse_quantity
+    from routeplan.units import parse_quantity
 
     if yields not in YIELD_BASES:
         raise PlanError(f"unknown yield basis '{yields}'", hint="use expected, low or high")
@@ -93,24 +98,16 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         raise PlanError(f"the target mass must be positive, got {amount:~P}",
                         hint="give a mass such as '25 kg'")
 
+    on_hand, source, from_stock = None, None, None
+    if stock is not None:
+        from routeplan.plan.stock import intermediate_stock, load_stock
+
+        on_hand, source = load_stock(route, stock)
+        from_stock = intermediate_stock(route, on_hand) or None
+
     warnings: list[Problem] = list(route.warnings)
     n_target = target_moles(route, amount)
-    demand: dict[str, "pint.Quantity"] = {route.target.material: n_target}
-    order = execution_order(route)
-    planned: dict[str, StepPlan] = {}
-    zero = Q(0.0, "mol")
-    for sid in reversed(order):
-        step = route.step(sid)
-        n_p = demand.get(step.product)
-        if n_p is None:
-            # a step that does not lead to the target: the loader has warned already
-            n_p = zero
-        sp = compute_step(route, step, n_p, yields=yields)
-        planned[sid] = sp
-        for c in sp.charges:
-            if c.intermediate and c.mol is not None:
-                demand[c.material] = demand.get(c.material, zero) + c.mol
-    steps = tuple(planned[sid] for sid in order)
+    steps = walk_steps(route, n_target, yields=yields, from_stock=from_stock)
 
     from routeplan.plan import campaign
 
@@ -136,5 +133,83 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     if stock is not None:
         from routeplan.plan.stock import stock_plan
 
-        plan = replace(plan, stock=stock_plan(plan, stock))
+        plan = replace(plan, stock=stock_plan(plan, on_hand, source=source))
     return plan
+
+
+def walk_steps(route: "Route", n_target: "pint.Quantity", *, yields: str = "expected",
+               from_stock: "Mapping[str, pint.Quantity] | None" = None) -> "tuple[StepPlan, ...]":
+    """The backward walk: every step planned for the demand on its product, before batches.
+
+    Parameters
+    ----------
+    route : Route
+        A checked route.
+    n_target : pint.Quantity
+        Moles of pure target the final step must make [mol] (:func:`target_moles`).
+    yields : {"expected", "low", "high"}
+        Which yield of each step to use.
+    from_stock : Mapping[str, pint.Quantity], optional
+        Intermediates on the shelf: key -> mass as isolated, at its assay [kg].  When
+        the walk reaches the step that makes one, it takes
+        ``min(on hand * assay / M, demand)`` mol from the stock and plans the step for
+        the rest.  A step whose demand the stock covers does not run (``not_run``), and
+        so does a step that feeds only steps that do not run.
+
+    Returns
+    -------
+    tuple of StepPlan
+        In execution order, ``batch`` not yet set.  Without ``from_stock`` (or with no
+        intermediate in it) the walk is exactly the route format's.
+    """
+    from dataclasses import replace
+
+    from routeplan.plan.charges import compute_step, supplied_form
+    from routeplan.route.graph import execution_order
+    from routeplan.units import Q
+
+    mol = unit("mol")
+    demand: dict[str, "pint.Quantity"] = {route.target.material: n_target}
+    planned: dict[str, "StepPlan"] = {}
+    zero = Q(0.0, mol)
+    order = execution_order(route)
+    for sid in reversed(order):
+        step = route.step(sid)
+        n_p = demand.get(step.product)
+        if n_p is None:
+            # a step that does not lead to the target: the loader has warned already
+            n_p = zero
+        have = None if from_stock is None else from_stock.get(step.product)
+        if have is None:
+            sp = compute_step(route, step, n_p, yields=yields)
+        else:
+            kg_per_mol = supplied_form(route.materials[step.product]).kg_per_mol
+            on_shelf = (have / kg_per_mol).to(mol)  # [kg] / [kg/mol]: mass * assay / M
+            if on_shelf.m_as(mol) >= n_p.m_as(mol):
+                taken, rest = n_p, zero
+            else:
+                taken, rest = on_shelf, n_p - on_shelf
+            sp = compute_step(route, step, rest, yields=yields)
+            sp = replace(sp, from_stock_mol=taken.to(mol), from_stock_mass=(taken * kg_per_mol).to(unit("kg")))
+            if n_p.m_as(mol) > 0 and rest.m_as(mol) == 0:
+                sp = replace(sp, not_run=f"the stock of {step.product} covers it")
+        if sp.not_run is None and from_stock is not None:
+            idle = _idle_users(route, step.product, n_p, planned)
+            if idle:
+                sp = replace(sp, not_run=f"it feeds only {', '.join(idle)}, which "
+                                         f"{'does' if len(idle) == 1 else 'do'} not run")
+        planned[sid] = sp
+        for c in sp.charges:
+            if c.intermediate and c.mol is not None:
+                demand[c.material] = demand.get(c.material, zero) + c.mol
+    return tuple(planned[sid] for sid in order)
+
+
+def _idle_users(route: "Route", product: str, n_p: "pint.Quantity", planned) -> list[str]:
+    """The steps that use ``product`` when all of them do not run and nothing is demanded."""
+    if n_p.magnitude != 0:
+        return []
+    users = [u for u in route.consumers.get(product, ()) if u in planned]
+    if users and all(planned[u].not_run is not None for u in users):
+        return users
+    return []
