@@ -118,7 +118,6 @@ def test_internal_errors_are_not_hidden_as_bad_input(monkeypatch):
     assert "--debug" in result.stderr and "Traceback" not in result.output
 
 
-@pytest.mark.skipif(not DEMO.is_dir(), reason="no demo_routes folder in this checkout")
 @pytest.mark.parametrize("name", [p.name for p in demo_routes()] or ["(none)"])
 def test_demo_routes_pass_check(name):
     assert name != "(none)", "demo_routes/ holds no route file"

@@ -26,6 +26,7 @@ two column headings of 80 % or more (so 10-pt text prints at 8 pt or larger).
 
 from __future__ import annotations
 
+import os
 import re
 import shutil
 import subprocess
@@ -84,11 +85,18 @@ def _row_of(ws, material):
     raise AssertionError(material)
 
 
+def _missing(reason: str) -> None:
+    """Skip on a developer's machine without the tool; in CI (CI set) a missing tool fails."""
+    if os.environ.get("CI"):
+        pytest.fail(reason)
+    pytest.skip(reason)
+
+
 @pytest.fixture(scope="module")
 def recalc(tmp_path_factory):
     if SOFFICE is None:
-        pytest.skip("LibreOffice (soffice) is not installed: the recalculation check needs it "
-                    "(.ci/run installs libreoffice-calc-nogui)")
+        _missing("LibreOffice (soffice) is not installed: the recalculation check needs it "
+                 "(.ci/run installs libreoffice-calc-nogui)")
     import xlsxwriter
 
     base = tmp_path_factory.mktemp("recalc")
@@ -267,7 +275,8 @@ def printed(tmp_path_factory):
     """The workbook of :func:`make_plan` printed to PDF by LibreOffice, as words with
     their positions per page [pt]."""
     if SOFFICE is None or shutil.which("pdftotext") is None:
-        pytest.skip("LibreOffice (soffice) and pdftotext (poppler-utils) are needed to print")
+        _missing("LibreOffice (soffice) and pdftotext are needed to print "
+                 "(.ci/run installs libreoffice-calc-nogui and poppler-utils)")
     base = tmp_path_factory.mktemp("print")
     out = base / "out"
     plan = make_plan()
