@@ -22,7 +22,7 @@ from routeplan.errors import Location, QuantityError
 if TYPE_CHECKING:  # pragma: no cover
     import pint
 
-__all__ = ["registry", "Q", "unit", "DIMENSIONS", "parse_quantity", "parse_fraction", "dimension_name"]
+__all__ = ["registry", "Q", "unit", "magnitude", "DIMENSIONS", "parse_quantity", "parse_fraction", "dimension_name"]
 
 #: Named dimensions a route file may ask for: name -> (pint dimensionality, example).
 DIMENSIONS: dict[str, tuple[str, str]] = {
@@ -79,6 +79,20 @@ def unit(name: str) -> "pint.Unit":
     which is most of the cost of a conversion in the planner's loops.
     """
     return registry().Unit(name)
+
+
+def magnitude(quantity: "pint.Quantity | None", name: str) -> float | None:
+    """The magnitude of ``quantity`` in unit ``name`` as a float, or None for None.
+
+    Where a plan's numbers are written out (JSON, tables, metrics), this is the one
+    conversion, through the cached unit objects.
+
+    Examples
+    --------
+    >>> magnitude(Q(1.5, "kg"), "g")
+    1500.0
+    """
+    return None if quantity is None else float(quantity.m_as(unit(name)))
 
 
 def dimension_name(quantity: "pint.Quantity") -> str:

@@ -9,14 +9,12 @@ from __future__ import annotations
 import json
 from typing import TYPE_CHECKING, Any
 
+from routeplan.units import magnitude
+
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
 
 __all__ = ["plan_to_dict", "plan_to_json"]
-
-
-def _m(q, unit: str) -> float | None:
-    return None if q is None else float(q.m_as(unit))
 
 
 def _per(value: float | None, batches: int) -> float | None:
@@ -29,17 +27,17 @@ def _charge(c, batches: int) -> dict[str, Any]:
         "material": c.material,
         "role": c.role,
         "equiv": c.equiv,
-        "mol": _m(c.mol, "mol"),
-        "mass_kg": _m(c.mass, "kg"),
-        "volume_L": _m(c.volume, "L"),
+        "mol": magnitude(c.mol, "mol"),
+        "mass_kg": magnitude(c.mass, "kg"),
+        "volume_L": magnitude(c.volume, "L"),
         "basis": c.basis,
         "basis_value": c.basis_value,
         "intermediate": c.intermediate,
         "carried_from": c.carried_from,
         "per_batch": {
-            "mol": _per(_m(c.mol, "mol"), batches),
-            "mass_kg": _per(_m(c.mass, "kg"), batches),
-            "volume_L": _per(_m(c.volume, "L"), batches),
+            "mol": _per(magnitude(c.mol, "mol"), batches),
+            "mass_kg": _per(magnitude(c.mass, "kg"), batches),
+            "volume_L": _per(magnitude(c.volume, "L"), batches),
         },
     }
 
@@ -52,17 +50,17 @@ def _step(sp) -> dict[str, Any]:
         "name": sp.name,
         "equation": sp.equation,
         "limiting": sp.limiting,
-        "product": {"material": sp.product, "mol": _m(sp.product_mol, "mol"),
-                    "mass_kg": _m(sp.product_mass, "kg")},
+        "product": {"material": sp.product, "mol": magnitude(sp.product_mol, "mol"),
+                    "mass_kg": magnitude(sp.product_mass, "kg")},
         "yield": sp.yield_,
         "isolated": sp.isolated,
         "vessel": sp.vessel,
         "batches": batches,
-        "batch_volume_L": None if b is None else _m(b.batch_volume, "L"),
+        "batch_volume_L": None if b is None else magnitude(b.batch_volume, "L"),
         "fill_fraction": None if b is None else b.fill_fraction,
         "charges": [_charge(c, batches) for c in sp.charges],
-        "from_stock_mol": _m(sp.from_stock_mol, "mol"),
-        "from_stock_kg": _m(sp.from_stock_mass, "kg"),
+        "from_stock_mol": magnitude(sp.from_stock_mol, "mol"),
+        "from_stock_kg": magnitude(sp.from_stock_mass, "kg"),
         "runs": sp.runs,
         "not_run": sp.not_run,
     }
@@ -77,12 +75,12 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
     out: dict[str, Any] = {
         "format": "routeplan-plan/1",
         "route": route.name,
-        "target": {"material": plan.target_material, "mass_kg": _m(plan.target_mass, "kg"),
-                   "mol": _m(plan.target_mol, "mol")},
+        "target": {"material": plan.target_material, "mass_kg": magnitude(plan.target_mass, "kg"),
+                   "mol": magnitude(plan.target_mol, "mol")},
         "steps": [_step(sp) for sp in plan.steps],
         "raw_materials": [
-            {"material": r.material, "mass_kg": _m(r.mass, "kg"), "volume_L": _m(r.volume, "L"),
-             "mol": _m(r.mol, "mol"), "cost": r.cost, "steps": list(r.steps)}
+            {"material": r.material, "mass_kg": magnitude(r.mass, "kg"), "volume_L": magnitude(r.volume, "L"),
+             "mol": magnitude(r.mol, "mol"), "cost": r.cost, "steps": list(r.steps)}
             for r in plan.raw_materials
         ],
         "overall_yield": {
@@ -105,14 +103,14 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
     if plan.stock is not None:
         s = plan.stock
         out["stock"] = {
-            "max_target_kg": _m(s.max_target, "kg"),
+            "max_target_kg": magnitude(s.max_target, "kg"),
             "limited_by": s.limited_by,
-            "to_buy": [{"material": k, "mass_kg": _m(m, "kg")} for k, m in s.to_buy],
-            "on_hand": [{"material": k, "mass_kg": _m(m, "kg")} for k, m in s.on_hand.items()],
+            "to_buy": [{"material": k, "mass_kg": magnitude(m, "kg")} for k, m in s.to_buy],
+            "on_hand": [{"material": k, "mass_kg": magnitude(m, "kg")} for k, m in s.on_hand.items()],
             "not_in_stock": [r.material for r in plan.raw_materials if r.material not in s.on_hand],
             "intermediates": [
-                {"material": sp.product, "step": sp.id, "on_hand_kg": _m(s.on_hand[sp.product], "kg"),
-                 "taken_kg": _m(sp.from_stock_mass, "kg"), "taken_mol": _m(sp.from_stock_mol, "mol"),
+                {"material": sp.product, "step": sp.id, "on_hand_kg": magnitude(s.on_hand[sp.product], "kg"),
+                 "taken_kg": magnitude(sp.from_stock_mass, "kg"), "taken_mol": magnitude(sp.from_stock_mol, "mol"),
                  "runs": sp.runs}
                 for sp in plan.steps if sp.from_stock_mol is not None and sp.product in s.on_hand
             ],

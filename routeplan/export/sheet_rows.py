@@ -10,7 +10,8 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from routeplan.export.tables import Column, in_unit, raw_material_rows
+from routeplan.export.tables import Column, raw_material_rows
+from routeplan.units import magnitude
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
@@ -150,7 +151,6 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
     """
     route = plan.route
     n = sp.batches or 1  # a step that does not run gets no charge sheet; its rows are its zeros
-    maker = {s.product: s for s in plan.steps}
     rows = []
     seen_limiting = False
     for c in sp.charges:
@@ -163,7 +163,7 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
         else:
             assay = mat.assay
             density = mat.density
-        made = maker.get(c.material) if c.intermediate else None
+        made = plan.step_making(c.material) if c.intermediate else None
         is_limiting = (not seen_limiting and c.material == sp.limiting and c.equiv is not None)
         seen_limiting = seen_limiting or is_limiting
         rows.append({
@@ -175,10 +175,10 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
             "basis_value": c.basis_value,
             "equiv": c.equiv,
             "mol": None if c.mol is None else float(c.mol.m_as("mol")) / n,
-            "molar_mass": in_unit(mat.molar_mass, "g/mol"),
+            "molar_mass": magnitude(mat.molar_mass, "g/mol"),
             "assay": assay,
-            "molarity": in_unit(sol.molarity, "mol/L") if sol is not None and sol.molarity is not None else None,
-            "density": in_unit(density, "g/mL"),
+            "molarity": magnitude(sol.molarity, "mol/L") if sol is not None and sol.molarity is not None else None,
+            "density": magnitude(density, "g/mL"),
             "mass_kg": float(c.mass.m_as("kg")) / n,
             "volume_L": None if c.volume is None else float(c.volume.m_as("L")) / n,
             "hazards": "; ".join(mat.hazards),
@@ -207,7 +207,7 @@ def material_rows(plan: "Plan") -> list[dict[str, Any]]:
     fraction [-], price [currency/kg]; hazards joined with ``"; "``.
     """
     route = plan.route
-    made_in = {sp.product: sp.id for sp in plan.steps}
+    made_in = route.maker
     rows = []
     for mat in route.materials.values():
         sol = mat.solution
@@ -215,12 +215,12 @@ def material_rows(plan: "Plan") -> list[dict[str, Any]]:
             "material": mat.key,
             "name": mat.name,
             "formula": mat.formula,
-            "molar_mass": in_unit(mat.molar_mass, "g/mol"),
+            "molar_mass": magnitude(mat.molar_mass, "g/mol"),
             "assay": None if sol is not None else mat.assay,
-            "density": in_unit(mat.density, "g/mL"),
-            "solution_molarity": in_unit(sol.molarity, "mol/L") if sol is not None else None,
+            "density": magnitude(mat.density, "g/mL"),
+            "solution_molarity": magnitude(sol.molarity, "mol/L") if sol is not None else None,
             "solution_mass_fraction": sol.mass_fraction if sol is not None else None,
-            "solution_density": in_unit(sol.density, "g/mL") if sol is not None else None,
+            "solution_density": magnitude(sol.density, "g/mL") if sol is not None else None,
             "price": mat.price,
             "made_in": made_in.get(mat.key),
             "hazards": "; ".join(mat.hazards),
@@ -246,16 +246,16 @@ def step_rows(plan: "Plan") -> list[dict[str, Any]]:
             "equation": sp.equation,
             "vessel": sp.vessel,
             "batches": sp.batches,
-            "batch_volume_L": None if b is None else in_unit(b.batch_volume, "L"),
+            "batch_volume_L": None if b is None else magnitude(b.batch_volume, "L"),
             "fill_fraction": None if b is None else b.fill_fraction,
             "yield": sp.yield_,
             "limiting": sp.limiting,
             "product": sp.product,
-            "product_mol": in_unit(sp.product_mol, "mol"),
-            "product_mass_kg": in_unit(sp.product_mass, "kg"),
+            "product_mol": magnitude(sp.product_mol, "mol"),
+            "product_mass_kg": magnitude(sp.product_mass, "kg"),
             "isolated": sp.isolated,
-            "from_stock_mol": in_unit(sp.from_stock_mol, "mol"),
-            "from_stock_kg": in_unit(sp.from_stock_mass, "kg"),
+            "from_stock_mol": magnitude(sp.from_stock_mol, "mol"),
+            "from_stock_kg": magnitude(sp.from_stock_mass, "kg"),
             "not_run": sp.not_run,
         })
     return rows
@@ -324,9 +324,9 @@ def summary_rows(plan: "Plan", written: str) -> list[dict[str, Any]]:
         row("version", "routeplan version", __version__),
         row("target", "target", plan.target_material),
         row("target_name", "target name", tgt.name),
-        row("target_mass", "target mass, with overage", in_unit(plan.target_mass, "kg"), "kg", "mass"),
+        row("target_mass", "target mass, with overage", magnitude(plan.target_mass, "kg"), "kg", "mass"),
         row("overage", "overage", route.target.overage, "fraction", "fraction"),
-        row("target_mol", "target amount", in_unit(plan.target_mol, "mol"), "mol", "amount"),
+        row("target_mol", "target amount", magnitude(plan.target_mol, "mol"), "mol", "amount"),
         row("yield_basis", "step yields planned at", f"{plan.yield_basis} yields"),
         row("overall_yield", "overall yield (longest linear sequence)", oy.yield_, "fraction", "fraction"),
         row("lls", "longest linear sequence", " → ".join(oy.longest_linear_sequence)),
@@ -441,7 +441,7 @@ def stock_rows(plan: "Plan") -> list[dict[str, Any]]:
     s = plan.stock
     if s is None:
         return []
-    buy = {key: in_unit(mass, "kg") for key, mass in s.to_buy}
+    buy = {key: magnitude(mass, "kg") for key, mass in s.to_buy}
     rows = []
     for r in plan.raw_materials:
         have = s.on_hand.get(r.material)
@@ -452,8 +452,8 @@ def stock_rows(plan: "Plan") -> list[dict[str, Any]]:
             status = "in stock, short" if to_buy > 0 else "in stock, enough"
         if r.material == s.limited_by:
             status += "; limits the target"
-        rows.append({"material": r.material, "name": r.name, "need_kg": in_unit(r.mass, "kg"),
-                     "on_hand_kg": in_unit(have, "kg"), "to_buy_kg": to_buy, "status": status})
+        rows.append({"material": r.material, "name": r.name, "need_kg": magnitude(r.mass, "kg"),
+                     "on_hand_kg": magnitude(have, "kg"), "to_buy_kg": to_buy, "status": status})
     return rows
 
 
@@ -480,7 +480,7 @@ def stock_summary_rows(plan: "Plan") -> list[dict[str, Any]]:
                           "none: no raw material of the route is in stock"))
     else:
         note = "counting only the materials in stock" if missing else "every raw material in stock"
-        rows.append(_fact("max_target", "largest target the stock allows", in_unit(s.max_target, "kg"), "kg",
+        rows.append(_fact("max_target", "largest target the stock allows", magnitude(s.max_target, "kg"), "kg",
                           "mass", note))
         name = plan.route.materials[s.limited_by].name if s.limited_by in plan.route.materials else ""
         rows.append(_fact("limited_by", "limited by", s.limited_by,
@@ -490,8 +490,8 @@ def stock_summary_rows(plan: "Plan") -> list[dict[str, Any]]:
     for sp in plan.steps:
         if sp.from_stock_mass is None or sp.product not in s.on_hand:
             continue
-        rows.append(_fact("from_stock", f"{sp.product} taken from stock", in_unit(sp.from_stock_mass, "kg"),
-                          "kg", "mass", f"of {in_unit(s.on_hand[sp.product], 'kg'):.6g} kg on hand; "
+        rows.append(_fact("from_stock", f"{sp.product} taken from stock", magnitude(sp.from_stock_mass, "kg"),
+                          "kg", "mass", f"of {magnitude(s.on_hand[sp.product], 'kg'):.6g} kg on hand; "
                           + from_stock_text(sp)))
     if unused:
         rows.append(_fact("not_used", "in stock, not used by this route", ", ".join(unused)))

@@ -9,6 +9,8 @@ from __future__ import annotations
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
+from routeplan.units import magnitude
+
 if TYPE_CHECKING:  # pragma: no cover
     import pandas as pd
 
@@ -69,11 +71,6 @@ RAW_COLUMNS = (
 )
 
 
-def in_unit(q, unit: str) -> float | None:
-    """Magnitude of ``q`` in ``unit`` as a float, or None for None."""
-    return None if q is None else float(q.m_as(unit))
-
-
 def step_charge_rows(sp: "StepPlan") -> list[dict[str, Any]]:
     """One row per charge of one step, in order of addition.
 
@@ -83,8 +80,8 @@ def step_charge_rows(sp: "StepPlan") -> list[dict[str, Any]]:
     n = sp.batches
     rows = []
     for c in sp.charges:
-        mass = in_unit(c.mass, "kg")
-        vol = in_unit(c.volume, "L")
+        mass = magnitude(c.mass, "kg")
+        vol = magnitude(c.volume, "L")
         rows.append({
             "step": sp.id,
             "order": c.order,
@@ -93,7 +90,7 @@ def step_charge_rows(sp: "StepPlan") -> list[dict[str, Any]]:
             "role": c.role,
             "basis": c.basis,
             "equiv": c.equiv,
-            "mol": in_unit(c.mol, "mol"),
+            "mol": magnitude(c.mol, "mol"),
             "mass_kg": mass,
             "volume_L": vol,
             "batches": n,
@@ -116,9 +113,9 @@ def raw_material_rows(plan: "Plan") -> list[dict[str, Any]]:
         {
             "material": r.material,
             "name": r.name,
-            "mass_kg": in_unit(r.mass, "kg"),
-            "volume_L": in_unit(r.volume, "L"),
-            "mol": in_unit(r.mol, "mol"),
+            "mass_kg": magnitude(r.mass, "kg"),
+            "volume_L": magnitude(r.volume, "L"),
+            "mol": magnitude(r.mol, "mol"),
             "cost": r.cost,
             "steps": ", ".join(r.steps),
         }
@@ -164,15 +161,8 @@ def display_quantity(value: float | None, kind: str, *, digits: int = 4) -> str:
     """
     if value is None:
         return ""
-    scales = _DISPLAY[kind]
-    if value == 0:
-        return f"0 {scales[1][0]}"
-    # tonnes and m³ only from 10 of them: plants speak of 2500 kg, not 2.5 t
-    for unit, factor in scales:
-        limit = 10.0 if factor > 1 else 1.0
-        if abs(value) / factor >= limit or factor == scales[-1][1]:
-            return f"{value / factor:.{digits}g} {unit}"
-    return f"{value:.{digits}g}"  # pragma: no cover
+    name, factor = column_unit([value], kind)
+    return f"{value / factor:.{digits}g} {name}"
 
 
 def column_unit(values, kind: str) -> tuple[str, float]:

@@ -54,7 +54,7 @@ def fmt(value: float | None, digits: int = 4) -> str:
 
 def _step_table(sp, route) -> Table:
     rows = step_charge_rows(sp)
-    made_in = {s.product: s.id for s in route.steps}
+    made_in = route.maker
     mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
     vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
     nu, nf = column_unit([r["mol"] for r in rows], "amount")

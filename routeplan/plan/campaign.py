@@ -61,7 +61,7 @@ def step_volumes(route: "Route", steps: "tuple[StepPlan, ...]"):
     from routeplan.units import Q
 
     by_id = {sp.id: sp for sp in steps}
-    maker = {sp.product: sp.id for sp in steps}
+    maker = route.maker
     out: dict[str, tuple] = {}
     for sp in steps:  # execution order: a telescoped step is sized before its user
         total = Q(0.0, "L")

@@ -22,7 +22,7 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import TYPE_CHECKING, Any, Mapping
 
-from routeplan.units import unit
+from routeplan.units import magnitude, unit
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import ChargePlan, Plan, StepPlan
@@ -50,7 +50,7 @@ SOLVENT_ROLES = ("solvent", "workup")
 
 
 def _kg(q) -> float:
-    return float(q.m_as(unit("kg")))
+    return magnitude(q, "kg")
 
 
 def _ratio(num: float, den: float) -> float | None:
@@ -130,12 +130,11 @@ def _cumulative_raw_mass(plan: "Plan") -> dict[str, float]:
     share of the maker's raw materials and of the stock's mass together, in proportion
     to the moles made plus the moles taken from stock.
     """
-    by_product = {sp.product: sp for sp in plan.steps}
     out: dict[str, float] = {}
     for sp in plan.steps:  # execution order: every maker comes before its users
         total = 0.0
         for c in sp.charges:
-            maker = by_product.get(c.material) if c.intermediate else None
+            maker = plan.step_making(c.material) if c.intermediate else None
             if maker is None:
                 if not c.intermediate:
                     total += _kg(c.mass)

@@ -6,6 +6,7 @@ not apply are None (no molar mass, no density, no vessel).
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass, field
 from typing import TYPE_CHECKING, Any, Mapping
 
@@ -320,12 +321,18 @@ class Plan:
     def __hash__(self) -> int:
         return id(self)
 
+    @functools.cached_property
+    def _steps_by_id(self) -> Mapping[str, StepPlan]:
+        return {s.id: s for s in self.steps}
+
     def step(self, step_id: str) -> StepPlan:
         """The plan of step ``step_id``."""
-        for s in self.steps:
-            if s.id == step_id:
-                return s
-        raise KeyError(step_id)
+        return self._steps_by_id[step_id]
+
+    def step_making(self, material: str) -> StepPlan | None:
+        """The plan of the step whose main product is ``material``, or None."""
+        sid = self.route.maker.get(material)
+        return None if sid is None else self._steps_by_id.get(sid)
 
     def to_dict(self) -> dict[str, Any]:
         """The plan as the JSON contract (``routeplan-plan/1``), plain Python values."""

@@ -333,9 +333,14 @@ class Route:
         return MappingProxyType(out)
 
     @functools.cached_property
+    def maker(self) -> Mapping[str, str]:
+        """Intermediate key -> id of the step that makes it as its main product."""
+        return MappingProxyType({s.product: s.id for s in self.steps})
+
+    @functools.cached_property
     def intermediates(self) -> frozenset[str]:
         """Keys of materials that are the main product of some step."""
-        return frozenset(s.product for s in self.steps)
+        return frozenset(self.maker)
 
     def is_intermediate(self, key: str) -> bool:
         """True when some step makes ``key`` as its main product."""
