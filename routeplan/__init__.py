@@ -40,7 +40,7 @@ _LAZY = {
     "molar_mass": ("routeplan.chemistry.formula", "molar_mass"),
     "element_counts": ("routeplan.chemistry.formula", "element_counts"),
     "load_route": ("routeplan.route.load", "load_route"),
-    "plan_route": ("routeplan.plan.walk", "plan_route"),
+    "plan_route": ("routeplan.plan.planner", "plan_route"),
 }
 
 

@@ -5,7 +5,7 @@ import math
 import pytest
 
 from conftest import run_cli, write_route
-from routeplan.plan.walk import plan_route
+from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 
 ROUTE = """

@@ -244,7 +244,7 @@ def test_unpriced_cost_is_not_ranked(tmp_path):
 
 def test_plans_for_different_masses_are_refused():
     routes = [load_route(LINEAR), load_route(CONVERGENT)]
-    from routeplan.plan.walk import plan_route
+    from routeplan.plan.planner import plan_route
 
     with pytest.raises(CompareError, match="different target masses"):
         compare_plans([plan_route(routes[0]), plan_route(routes[1], "30 kg")])

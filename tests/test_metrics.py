@@ -25,7 +25,7 @@ from routeplan.plan.metrics import (
     route_pmi,
     step_pmi,
 )
-from routeplan.plan.walk import plan_route
+from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route, load_route_text
 from routeplan.route.model import Material, Solution
 from routeplan.units import Q

@@ -10,7 +10,7 @@ from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 from ruamel.yaml import YAML
 
-from routeplan.plan.walk import plan_route
+from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route, load_route_text
 from routeplan.units import Q
 

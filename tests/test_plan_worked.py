@@ -9,7 +9,7 @@ import math
 
 import pytest
 
-from routeplan.plan.walk import plan_route
+from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 
 TWO_STEP = """

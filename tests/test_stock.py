@@ -7,7 +7,7 @@ import pytest
 
 from conftest import run_cli, write_route
 from routeplan.errors import StockError
-from routeplan.plan.walk import plan_route
+from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 from test_campaign import ROUTE
 

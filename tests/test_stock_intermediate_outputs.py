@@ -14,7 +14,7 @@ from conftest import run_cli, write_route
 from routeplan import CAUTION
 from routeplan.export.csv import write_csv
 from routeplan.export.workbook import write_workbook
-from routeplan.plan.walk import plan_route
+from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 from routeplan.units import Q
 from test_stock_intermediates import SHELF

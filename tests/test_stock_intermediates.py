@@ -18,7 +18,7 @@ import math
 import pytest
 
 from routeplan.errors import StockError
-from routeplan.plan.walk import plan_route
+from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 from routeplan.units import Q
 

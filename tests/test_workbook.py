@@ -25,7 +25,7 @@ from hypothesis import strategies as st
 from routeplan import CAUTION
 from routeplan.errors import OutputError
 from routeplan.export.workbook import MAX_SHEET_NAME, charge_sheet_names, write_workbook
-from routeplan.plan.walk import plan_route
+from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 
 #: A small route of our own (invented numbers; real reagents, balanced equations) with

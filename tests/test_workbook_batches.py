@@ -18,7 +18,7 @@ import pytest
 
 from routeplan import CAUTION
 from routeplan.export.workbook import MAX_BATCH_SHEETS, charge_sheet_names, write_workbook
-from routeplan.plan.walk import plan_route
+from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 from test_workbook import ROUTE_NAME, ROUTE_TEXT, WRITTEN, charge_table, close, header_value, make_plan
 from test_workbook_summary import table

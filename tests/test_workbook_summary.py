@@ -21,7 +21,7 @@ from routeplan.export.workbook import charge_sheet_names, write_workbook
 from routeplan.export.workbook_charges import (FILL_IN_COLUMNS, PRINT_BUDGET_PX, PRINTED_COLUMNS,
                                                REFERENCE_COLUMNS, WIDTH_BOUNDS)
 from routeplan.export.workbook_styles import px_width, sheet_title
-from routeplan.plan.walk import plan_route
+from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 from routeplan.units import Q
 from test_workbook import ROUTE_NAME, ROUTE_TEXT, WRITTEN, charge_table, close, make_plan

@@ -34,7 +34,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     charge over the whole campaign, and the overall yield.
     """
     from routeplan.errors import Location
-    from routeplan.plan.walk import plan_route
+    from routeplan.plan.planner import plan_route
     from routeplan.route.load import load_route
     from routeplan.units import parse_quantity
 

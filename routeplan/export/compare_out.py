@@ -10,7 +10,7 @@ from __future__ import annotations
 import json
 from typing import TYPE_CHECKING, Any
 
-from routeplan.export.tables import display_quantity
+from routeplan.views.tables import display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
     from rich.console import Console

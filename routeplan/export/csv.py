@@ -44,8 +44,8 @@ from datetime import datetime
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, Iterable, Sequence
 
-from routeplan.export.tables import CHARGE_COLUMNS, Column, step_charge_rows
-from routeplan.export.sheet_rows import (STEP_COLUMNS, STEP_METRIC_COLUMNS, STEP_STOCK_COLUMNS, STOCK_COLUMNS,
+from routeplan.views.tables import CHARGE_COLUMNS, Column, step_charge_rows
+from routeplan.views.sheet_rows import (STEP_COLUMNS, STEP_METRIC_COLUMNS, STEP_STOCK_COLUMNS, STOCK_COLUMNS,
                                          SUMMARY_COLUMNS,
                                          material_columns, material_rows, metric_rows, raw_export_columns,
                                          raw_export_rows, step_metric_rows, step_rows, stock_rows,

@@ -1,6 +1,6 @@
 """The plan on the terminal: one table per step, raw-material totals, yield, caution.
 
-Reads only the Plan (through :mod:`routeplan.export.tables`); rich is imported here,
+Reads only the Plan (through :mod:`routeplan.views.tables`); rich is imported here,
 and this module is imported only when printing.
 """
 
@@ -13,7 +13,7 @@ from rich.console import Console
 from rich.markup import escape
 from rich.table import Table
 
-from routeplan.export.tables import column_unit, raw_material_rows, step_charge_rows
+from routeplan.views.tables import column_unit, raw_material_rows, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -106,7 +106,7 @@ def _step_footer(sp) -> str:
 
 def _stock_line(sp) -> str:
     """What the stock of the step's product does to the step ("" when not in the stock list)."""
-    from routeplan.export.tables import display_quantity
+    from routeplan.views.tables import display_quantity
 
     taken = None if sp.from_stock_mass is None else sp.from_stock_mass.m_as("kg")
     if not sp.runs:
@@ -181,7 +181,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
         for line in plan.metrics.summary_lines(plan):
             con.print(line)
     if plan.stock is not None:
-        from routeplan.export.stock_text import stock_lines
+        from routeplan.views.stock_text import stock_lines
 
         for line in stock_lines(plan):
             con.print(escape(line))

@@ -20,7 +20,7 @@ one charge sheet per step and batch
     Every material of the route: formula, molar mass, assay, density, solution data,
     price, hazards.
 
-The workbook reads only the Plan (through :mod:`routeplan.export.tables`); it is
+The workbook reads only the Plan (through :mod:`routeplan.views.tables`); it is
 written with xlsxwriter into a temporary file beside the target, then renamed over it.
 """
 

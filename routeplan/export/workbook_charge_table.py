@@ -37,8 +37,8 @@ from __future__ import annotations
 
 from typing import Any
 
-from routeplan.export.sheet_rows import BATCH_COLUMNS
-from routeplan.export.tables import Column
+from routeplan.views.sheet_rows import BATCH_COLUMNS
+from routeplan.views.tables import Column
 from routeplan.export.workbook_styles import Styles, put
 
 __all__ = [
@@ -102,7 +102,7 @@ def charge_formulas(row: dict[str, Any], r: int, lim_row: int | None, lim_mass: 
     Parameters
     ----------
     row : dict
-        A row of :func:`routeplan.export.sheet_rows.batch_charge_rows`.
+        A row of :func:`routeplan.views.sheet_rows.batch_charge_rows`.
     r : int
         Its 0-based sheet row.
     lim_row : int or None
@@ -168,7 +168,7 @@ def write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int |
     ws : xlsxwriter worksheet
     st : Styles
     row : dict
-        A row of :func:`routeplan.export.sheet_rows.batch_charge_rows`: amounts [mol],
+        A row of :func:`routeplan.views.sheet_rows.batch_charge_rows`: amounts [mol],
         masses [kg], volumes [L] per batch.
     r : int
         0-based sheet row.

@@ -21,7 +21,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from routeplan.export.sheet_rows import batch_charge_rows
+from routeplan.views.sheet_rows import batch_charge_rows
 from routeplan.export.workbook_charge_table import (COL, FILL_IN_COLUMNS, LAST_COLUMN, PRINT_LAST_COLUMN,
                                                     PRINTED_COLUMNS, REFERENCE_COLUMNS, SHEET_COLUMNS,
                                                     charge_formulas, role_text, write_charge_row)
@@ -130,7 +130,7 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int | No
     -------
     dict
         ``first_row`` and ``last_row`` (0-based) of the charges, and ``rows`` (the
-        rows of :func:`routeplan.export.sheet_rows.batch_charge_rows`).
+        rows of :func:`routeplan.views.sheet_rows.batch_charge_rows`).
     """
     from routeplan import CAUTION
 

@@ -12,15 +12,15 @@ formulas and their total, the stock comparison when ``plan.stock`` is set (large
 target the stock allows, the limiting material, and per raw material need, on hand and
 ``to buy = MAX(0, need - on hand)`` as a live formula), and the warnings.
 
-Materials: one row per material of the route (:data:`~routeplan.export.tables.MATERIAL_COLUMNS`).
+Materials: one row per material of the route (:data:`~routeplan.views.tables.MATERIAL_COLUMNS`).
 """
 
 from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from routeplan.export.tables import Column
-from routeplan.export.sheet_rows import STEP_METRIC_COLUMNS, STOCK_COLUMNS, material_columns, material_rows, metric_rows, raw_export_columns, raw_export_rows, step_metric_rows, step_rows, stock_rows, stock_summary_rows, summary_rows
+from routeplan.views.tables import Column
+from routeplan.views.sheet_rows import STEP_METRIC_COLUMNS, STOCK_COLUMNS, material_columns, material_rows, metric_rows, raw_export_columns, raw_export_rows, step_metric_rows, step_rows, stock_rows, stock_summary_rows, summary_rows
 from routeplan.export.workbook_styles import Styles, fit_widths, lines_height, put, sheet_title, wrapped_lines
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -176,7 +176,7 @@ def _steps(plan: "Plan", sheet_names) -> list[dict[str, Any]]:
 
 def _stock_note(plan: "Plan", row: dict[str, Any]) -> str:
     """The line under a step that takes its product from stock or does not run ("" otherwise)."""
-    from routeplan.export.tables import display_quantity
+    from routeplan.views.tables import display_quantity
 
     step = plan.step(row["step"])
     if row["from_stock_kg"] is not None and row["from_stock_kg"] > 0:

@@ -33,7 +33,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import StepPlan
     from routeplan.route.model import Route
 
-__all__ = ["MIN_FILL", "MAX_SCALE_UP", "MANY_BATCHES", "step_volumes", "size_batches"]
+__all__ = ["MIN_FILL", "MAX_SCALE_UP", "MANY_BATCHES", "step_volumes", "reaction_masses", "size_batches"]
 
 #: Smallest batch volume over nominal vessel volume that can still be stirred [-]
 #: (common practice, no source).
@@ -85,6 +85,45 @@ def step_volumes(route: "Route", steps: "tuple[StepPlan, ...]"):
     return out
 
 
+def reaction_masses(route: "Route", steps: "tuple[StepPlan, ...]") -> dict[str, float]:
+    """Mass that takes part in the reaction of each step over the campaign [kg].
+
+    Every charge except ``role: workup`` counts at its mass as charged (a catalyst and
+    a gas taken up included); the product of a telescoped step comes in as its whole
+    mixture: the reaction mass of the step that made it plus its work-up charges (all
+    that was charged there), in proportion to the share of that step's product taken.
+    Divided by the batches, this is the ``m`` of the adiabatic temperature rise.
+    """
+    kg, mol = unit("kg"), unit("mol")
+    by_id = {sp.id: sp for sp in steps}
+    maker = route.maker
+    charged: dict[str, float] = {}  # everything charged to a step [kg]
+    out: dict[str, float] = {}
+    for sp in steps:  # execution order: a telescoped step comes before its user
+        m_rxn = m_all = 0.0
+        for c in sp.charges:
+            src = maker.get(c.material) if c.intermediate else None
+            if src is not None and not by_id[src].isolated:
+                made = by_id[src].product_mol.m_as(mol)
+                share = c.mol.m_as(mol) / made if made > 0 and c.mol is not None else 1.0
+                m = charged[src] * share
+            else:
+                m = c.mass.m_as(kg)
+            m_all += m
+            if c.role != "workup":
+                m_rxn += m
+        charged[sp.id], out[sp.id] = m_all, m_rxn
+    return out
+
+
+def _per_batch_charge(c, batches: int):
+    if batches == 0:
+        return replace(c, mol_per_batch=None, mass_per_batch=None, volume_per_batch=None)
+    return replace(c, mol_per_batch=None if c.mol is None else c.mol / batches,
+                   mass_per_batch=c.mass / batches,
+                   volume_per_batch=None if c.volume is None else c.volume / batches)
+
+
 def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
     """Give every step its batches; return the new steps and the warnings.
 
@@ -96,7 +135,10 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
     """
     from routeplan.plan.model import BatchPlan
 
+    from routeplan.units import Q
+
     volumes = step_volumes(route, steps)
+    masses = reaction_masses(route, steps)
     warnings: list[Problem] = []
     out = []
     for sp in steps:
@@ -104,7 +146,7 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
         charges = tuple(replace(c, carried_from=carried_in[c.order][0], volume=carried_in[c.order][1])
                         if c.order in carried_in else c for c in sp.charges)
         if sp.not_run is not None:  # no batch at all: nothing to size, warn about or divide
-            out.append(replace(sp, charges=charges, batch=BatchPlan(
+            out.append(replace(sp, charges=tuple(_per_batch_charge(c, 0) for c in charges), batch=BatchPlan(
                 batches=0, step_volume=volume, batch_volume=volume * 0, fill_fraction=None, vessel=sp.vessel)))
             continue
         step = route.step(sp.id)
@@ -140,6 +182,9 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
                     location=step.location, step=sp.id,
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
         bp = BatchPlan(batches=batches, step_volume=volume, batch_volume=volume / batches,
-                       fill_fraction=fill, vessel=sp.vessel, notes=notes)
-        out.append(replace(sp, batch=bp, charges=charges))
+                       fill_fraction=fill, vessel=sp.vessel, notes=notes,
+                       limiting_mol=sp.limiting_mol / batches, limiting_mass=sp.limiting_mass / batches,
+                       product_mol=sp.product_mol / batches, product_mass=sp.product_mass / batches,
+                       reaction_mass=Q(masses[sp.id] / batches, unit("kg")))
+        out.append(replace(sp, batch=bp, charges=tuple(_per_batch_charge(c, batches) for c in charges)))
     return tuple(out), warnings

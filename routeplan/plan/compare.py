@@ -264,7 +264,7 @@ def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str 
     """Check the routes share a target, then plan each for the same target mass.
 
     ``yields`` (``"expected"``, ``"low"`` or ``"high"``) is the step-yield basis every
-    route is planned at (see :func:`routeplan.plan.walk.plan_route`).
+    route is planned at (see :func:`routeplan.plan.planner.plan_route`).
 
     Returns
     -------
@@ -273,7 +273,7 @@ def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str 
     notes : list of str
         From :func:`comparison_amount`.
     """
-    from routeplan.plan.walk import plan_route
+    from routeplan.plan.planner import plan_route
 
     check_same_target(routes)
     amount, notes = comparison_amount(routes, target)

@@ -450,7 +450,7 @@ class Metrics:
         list of str
             One line per metric, the first a heading.
         """
-        from routeplan.export.metrics_text import metrics_lines
+        from routeplan.views.metrics_text import metrics_lines
 
         return metrics_lines(self, plan.target_material)
 
@@ -466,7 +466,7 @@ def compute_metrics(plan: "Plan") -> Metrics:
     Returns
     -------
     Metrics
-        Frozen metrics; ``plan.metrics`` once :func:`~routeplan.plan.walk.plan_route` is done.
+        Frozen metrics; ``plan.metrics`` once :func:`~routeplan.plan.planner.plan_route` is done.
     """
     route = plan.route
     target = _kg(plan.target_mass)

@@ -68,6 +68,10 @@ class ChargePlan:
         Id of the telescoped step whose reaction mixture brings this intermediate in
         solution; ``volume`` is then the volume of mixture carried in [L] and ``mass`` the
         mass of the compound in it [kg] (the mixture is not weighed).
+    mol_per_batch, mass_per_batch, volume_per_batch : pint.Quantity or None
+        ``mol``, ``mass`` and ``volume`` divided by the step's batches [mol], [kg], [L],
+        set once when batches are sized; None where the total is None or the step does
+        not run (no batches).
     """
 
     order: int
@@ -83,11 +87,14 @@ class ChargePlan:
     intermediate: bool = False
     implicit: bool = False
     carried_from: str | None = None
+    mol_per_batch: "pint.Quantity | None" = None
+    mass_per_batch: "pint.Quantity | None" = None
+    volume_per_batch: "pint.Quantity | None" = None
 
 
 @dataclass(frozen=True)
 class BatchPlan:
-    """How a step is split into batches in its vessel.
+    """How a step is split into batches in its vessel, and what one batch holds.
 
     Attributes
     ----------
@@ -103,6 +110,14 @@ class BatchPlan:
         Vessel key.
     notes : tuple of str
         What was left out of the volume (solids without density) and why.
+    limiting_mol, limiting_mass : pint.Quantity or None
+        Limiting reagent per batch [mol], as charged [kg]; None without batches.
+    product_mol, product_mass : pint.Quantity or None
+        Product per batch [mol], as isolated [kg]; None without batches.
+    reaction_mass : pint.Quantity or None
+        Mass in the vessel per batch that takes part in the reaction [kg]: every charge
+        except ``role: workup``, a telescoped mixture at the mass carried in
+        (:func:`routeplan.plan.campaign.reaction_masses`); None without batches.
     """
 
     batches: int
@@ -111,6 +126,11 @@ class BatchPlan:
     fill_fraction: float | None = None
     vessel: str | None = None
     notes: tuple[str, ...] = ()
+    limiting_mol: "pint.Quantity | None" = None
+    limiting_mass: "pint.Quantity | None" = None
+    product_mol: "pint.Quantity | None" = None
+    product_mass: "pint.Quantity | None" = None
+    reaction_mass: "pint.Quantity | None" = None
 
 
 @dataclass(frozen=True)
@@ -342,6 +362,6 @@ class Plan:
 
     def to_frame(self) -> "pd.DataFrame":
         """Every charge of every step as a pandas DataFrame, one row per charge."""
-        from routeplan.export.tables import charges_frame
+        from routeplan.views.tables import charges_frame
 
         return charges_frame(self)

@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from routeplan.export.sheet_rows import stock_not_needed
-from routeplan.export.tables import display_quantity
+from routeplan.views.sheet_rows import stock_not_needed
+from routeplan.views.tables import display_quantity
 
 __all__ = ["stock_lines"]
 

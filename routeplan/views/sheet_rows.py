@@ -1,7 +1,7 @@
 """Rows for the charge sheets, the materials and steps tables, the summary, the route
 metrics and the stock comparison: what the workbook and the CSV files write.
 
-Like :mod:`routeplan.export.tables` (the terminal's and pandas' rows), these read the
+Like :mod:`routeplan.views.tables` (the terminal's and pandas' rows), these read the
 Plan only; numbers are in fixed units (mol, kg, L, g/mol, g/mL) and every column is
 declared once with its heading and unit.
 """
@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from routeplan.export.tables import Column, raw_material_rows
+from routeplan.views.tables import Column, raw_material_rows
 from routeplan.units import magnitude
 
 if TYPE_CHECKING:  # pragma: no cover
