@@ -324,6 +324,14 @@ class Plan:
         Stock comparison, when a stock list was given.
     yield_basis : str
         Which step yields the walk used: ``"expected"``, ``"low"`` or ``"high"``.
+    schedule : Schedule or None
+        Every batch on its vessel in time (:mod:`routeplan.plan.schedule`); None unless
+        every step has a ``cycle_time``.
+    waste : Waste or None
+        By-products and waste streams (:mod:`routeplan.plan.waste`), once computed.
+    cost_of_goods : CostOfGoods or None
+        Raw materials, plant time and waste disposal (:mod:`routeplan.plan.cost_of_goods`),
+        once computed.
     """
 
     route: "Route"
@@ -337,6 +345,9 @@ class Plan:
     metrics: Any = None
     stock: StockPlan | None = None
     yield_basis: str = "expected"
+    schedule: Any = None
+    waste: Any = None
+    cost_of_goods: Any = None
 
     def __hash__(self) -> int:
         return id(self)

@@ -106,6 +106,9 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     from routeplan.plan.metrics import compute_metrics
 
     plan = replace(plan, metrics=compute_metrics(plan))
+    from routeplan.plan.cost_of_goods import with_schedule_waste_cost
+
+    plan = with_schedule_waste_cost(plan)  # schedule, waste, cost of goods (and waste warnings)
     if stock is not None:
         from routeplan.plan.stock import stock_plan
 
