@@ -138,6 +138,20 @@ def _raw_table(plan) -> Table:
     return t
 
 
+def _print_time_waste_cost(con: Console, plan: "Plan") -> None:
+    """The schedule's timeline, the waste streams and the cost of goods (headings in bold)."""
+    from routeplan.views.schedule_text import schedule_lines
+    from routeplan.views.waste_cost_text import cost_lines, waste_lines
+
+    for block in (schedule_lines(plan), waste_lines(plan), cost_lines(plan)):
+        if not block:
+            continue
+        con.print()
+        con.print(f"[bold]{escape(block[0])}[/bold]")
+        for line in block[1:]:
+            con.print(escape(line), soft_wrap=True)  # timeline lanes must not be folded
+
+
 def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = True) -> None:
     """Print the plan to the terminal (standard output by default).
 
@@ -180,6 +194,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
     if plan.metrics is not None:
         for line in plan.metrics.summary_lines(plan):
             con.print(line)
+    _print_time_waste_cost(con, plan)
     if plan.stock is not None:
         from routeplan.views.stock_text import stock_lines
 
