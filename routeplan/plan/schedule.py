@@ -167,7 +167,7 @@ class VesselUse:
     @property
     def idle_h(self) -> float:
         """Total idle hours between its first and last batch [h]."""
-        return sum(b - a for a, b in self.idle)
+        return sum((b - a for a, b in self.idle), 0.0)
 
 
 @dataclass(frozen=True)

@@ -34,7 +34,7 @@ from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Problem
 from routeplan.route.model import STREAMS
-from routeplan.units import magnitude
+from routeplan.units import magnitude, unit
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
@@ -179,6 +179,8 @@ class StepWaste:
         Stream -> keys of the materials sent to it, in order of addition.
     gas_kg : float
         By-products that leave as gas to the scrubber [kg] (part of the residue).
+    raw_kg : float
+        The raw materials among the inputs (every charge but an intermediate) [kg].
     """
 
     step: str
@@ -190,6 +192,7 @@ class StepWaste:
     by_products: tuple[ByProduct, ...] = ()
     stream_materials: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
     gas_kg: float = 0.0
+    raw_kg: float = 0.0
 
     @property
     def waste_kg(self) -> float:
@@ -278,22 +281,22 @@ def by_products(route: "Route", step_id: str, product_mol: float) -> tuple[ByPro
             continue
         mat = route.materials[t.key]
         n = t.coefficient / nu_p * product_mol
-        mass = None if mat.molar_mass is None else n * float(mat.molar_mass.m_as("kg/mol"))
+        mass = None if mat.molar_mass is None else n * _in(mat.molar_mass, unit("g/mol")) / 1000.0  # g -> kg
         out.append(ByProduct(t.key, n, mass, _is_gas(mat)))
     return tuple(out)
 
 
 def gas_evolved_kg(items: tuple[ByProduct, ...]) -> float:
     """Mass of the by-products that leave as gas to the scrubber [kg]."""
-    return sum(b.mass_kg for b in items if b.gas and b.mass_kg is not None)
+    return sum((b.mass_kg for b in items if b.gas and b.mass_kg is not None), 0.0)
 
 
-def _streams(route: "Route", charges, mass_of) -> tuple[StreamMasses, dict[str, list[str]]]:
-    """Stream masses of ``charges`` with the mass given by ``mass_of(charge)`` [kg]."""
+def _streams(route: "Route", charges, masses) -> tuple[StreamMasses, dict[str, list[str]]]:
+    """Stream masses of ``charges``, the mass of each given in ``masses`` [kg]."""
     mats = route.materials
     kg = {s: 0.0 for s in STREAMS}
     names: dict[str, list[str]] = {s: [] for s in STREAMS}
-    for c in charges:
+    for c, m in zip(charges, masses):
         if c.intermediate:
             continue
         mat = mats[c.material]
@@ -302,7 +305,7 @@ def _streams(route: "Route", charges, mass_of) -> tuple[StreamMasses, dict[str, 
         s = stream_of(mat)
         if s is None:
             continue
-        kg[s] += mass_of(c)
+        kg[s] += m
         if c.material not in names[s]:
             names[s].append(c.material)
     return StreamMasses(kg["aqueous"], kg["organic"], kg["halogenated"]), names
@@ -311,6 +314,11 @@ def _streams(route: "Route", charges, mass_of) -> tuple[StreamMasses, dict[str, 
 def _with_residue(streams: StreamMasses, waste: float) -> StreamMasses:
     rest = waste - (streams.aqueous_kg + streams.organic_kg + streams.halogenated_kg)
     return StreamMasses(streams.aqueous_kg, streams.organic_kg, streams.halogenated_kg, rest)
+
+
+def _in(q, u) -> float:
+    """Magnitude of ``q`` in unit ``u``, without a conversion where it is in ``u`` already."""
+    return float(q.magnitude) if q.units == u else float(q.m_as(u))
 
 
 def step_waste(route: "Route", sp: "StepPlan") -> StepWaste:
@@ -326,16 +334,20 @@ def step_waste(route: "Route", sp: "StepPlan") -> StepWaste:
     -------
     StepWaste
     """
-    inputs = sum(magnitude(c.mass, "kg") for c in sp.charges)
-    product = magnitude(sp.product_mass, "kg")
-    streams, names = _streams(route, sp.charges, lambda c: magnitude(c.mass, "kg"))
+    kg = unit("kg")
+    masses = [_in(c.mass, kg) for c in sp.charges]
+    inputs = sum(masses)
+    product = _in(sp.product_mass, kg)
+    streams, names = _streams(route, sp.charges, masses)
     per_batch = None
     if sp.runs and sp.batch is not None and sp.batches > 0:
-        b_in = sum(magnitude(c.mass_per_batch, "kg") for c in sp.charges)
-        b_streams, _ = _streams(route, sp.charges, lambda c: magnitude(c.mass_per_batch, "kg"))
-        per_batch = _with_residue(b_streams, b_in - magnitude(sp.batch.product_mass, "kg"))
-    items = by_products(route, sp.id, magnitude(sp.product_mol, "mol"))
+        b_masses = [_in(c.mass_per_batch, kg) for c in sp.charges]
+        b_streams, _ = _streams(route, sp.charges, b_masses)
+        per_batch = _with_residue(b_streams, sum(b_masses) - _in(sp.batch.product_mass, kg))
+    items = by_products(route, sp.id, _in(sp.product_mol, unit("mol")))
+    raw = sum(m for c, m in zip(sp.charges, masses) if not c.intermediate)
     return StepWaste(step=sp.id, batches=sp.batches if sp.runs else 0, inputs_kg=inputs, product_kg=product,
+                     raw_kg=raw,
                      campaign=_with_residue(streams, inputs - product), per_batch=per_batch, by_products=items,
                      stream_materials={k: tuple(v) for k, v in names.items() if v},
                      gas_kg=gas_evolved_kg(items))
@@ -383,7 +395,7 @@ def route_waste(plan: "Plan") -> Waste:
         total = total.plus(sw.campaign)
         if sw.batches:
             warnings += _warnings(route, sw)
-    inputs = sum(magnitude(c.mass, "kg") for sp in plan.steps for c in sp.charges if not c.intermediate)
+    inputs = sum(sw.raw_kg for sw in steps)
     inputs += sum(magnitude(sp.from_stock_mass, "kg") for sp in plan.steps if sp.from_stock_mass is not None)
     return Waste(steps=steps, total=total, inputs_kg=inputs, product_kg=magnitude(plan.target_mass, "kg"),
-                 gas_kg=sum(sw.gas_kg for sw in steps), warnings=tuple(warnings))
+                 gas_kg=sum((sw.gas_kg for sw in steps), 0.0), warnings=tuple(warnings))
