@@ -390,34 +390,37 @@ def yield_uncertainty(plan: "Plan", *, confidence: float, draws: int = DEFAULT_D
     low = np.array([fw.steps[i].low for i in ranged])
     high = np.array([fw.steps[i].high for i in ranged])
     mode = np.array([fw.steps[i].planned_yield for i in ranged])
-    planned = mode.copy()
     alpha, beta = pert_shape(low, mode, high)
-    centre = pert_mean(low, mode, high)
-    stored = [i for i, st in enumerate(fw.steps) if st.inputs and any(i == j for _m, uses in fw.raw_need
-                                                                       for j, _kg in uses)]
+    # g = Y / m = low / m + (high - low) / m * B with B ~ Beta(alpha, beta) [-]
+    g_low, g_width = (low / mode)[:, None], ((high - low) / mode)[:, None]
+    g_centre = (pert_mean(low, mode, high) / mode)[:, None]  # shifts the sums below (less round-off)
+    used = {i for _m, uses in fw.raw_need for i, _kg in uses}
+    stored = [i for i, st in enumerate(fw.steps) if st.inputs and i in used]
     col_of = {i: c for c, i in enumerate(stored)}
 
     rng = np.random.default_rng(seed)
     delivered = np.empty(draws)
-    r_kept = np.empty((draws, len(stored)))
+    r_kept = np.empty((len(stored), draws))  # one row per step whose charges follow arrivals
     k = len(ranged)
     sy, syy, syd = np.zeros(k), np.zeros(k), np.zeros(k)
     sd = sdd = 0.0
     for start in range(0, draws, CHUNK):
         n = min(CHUNK, draws - start)
-        y = low + (high - low) * rng.beta(alpha, beta, size=(n, k))  # [-], one column per ranged step
+        g_drawn = g_low + g_width * rng.beta(alpha[:, None], beta[:, None], size=(k, n))  # one row per step
         g: list[Any] = [1.0] * len(fw.steps)
         for c, i in enumerate(ranged):
-            g[i] = y[:, c] / planned[c]
+            g[i] = g_drawn[c]
         r, d = run_forward(fw, g)
         delivered[start:start + n] = d
         for i, c in col_of.items():
-            r_kept[start:start + n, c] = r[i]
-        yc = y - centre
+            r_kept[c, start:start + n] = r[i]
+        # sums for the correlation of each drawn yield with the delivery (an affine
+        # function of Y, so corr(g, D) = corr(Y, D))
+        gc = g_drawn - g_centre
         dc = delivered[start:start + n] - 1.0
-        sy += yc.sum(axis=0)
-        syy += np.einsum("ij,ij->j", yc, yc)
-        syd += dc @ yc
+        sy += gc.sum(axis=1)
+        syy += np.einsum("ij,ij->i", gc, gc)
+        syd += gc @ dc
         sd += float(dc.sum())
         sdd += float(dc @ dc)
 
@@ -426,7 +429,7 @@ def yield_uncertainty(plan: "Plan", *, confidence: float, draws: int = DEFAULT_D
     reached = np.count_nonzero(delivered >= 1 - REACHED_REL) / draws
     q_low = float(np.percentile(delivered, 100 * (1 - confidence)))
     scale = 1 / q_low  # starting charges per planned starting charge [-]
-    kept_pct = np.percentile(r_kept, 100 * confidence, axis=0) if stored else np.empty(0)
+    kept_pct = [np.percentile(row, 100 * confidence) for row in r_kept]  # row by row: one copy at a time
     raws = []
     for material, uses in fw.raw_need:
         fixed = sum(kg for i, kg in uses if i not in col_of)
@@ -436,9 +439,10 @@ def yield_uncertainty(plan: "Plan", *, confidence: float, draws: int = DEFAULT_D
         elif len(varying) == 1:
             need = fixed + varying[0][1] * float(kept_pct[varying[0][0]])
         else:
-            cols = [c for c, _kg in varying]
-            need = fixed + float(np.percentile(r_kept[:, cols] @ np.array([kg for _c, kg in varying]),
-                                               100 * confidence))
+            total = np.zeros(draws)
+            for c, kg in varying:  # row by row, so no copy of the kept rows is made
+                total += kg * r_kept[c]
+            need = fixed + float(np.percentile(total, 100 * confidence))
         raws.append((material, scale * need))
 
     n = draws
