@@ -36,6 +36,11 @@ def _pct(x: float) -> str:
     return f"{100 * x:.1f} %"
 
 
+def _level(x: float) -> str:
+    """A confidence as people write it: ``90 %``, ``97.5 %``."""
+    return f"{100 * x:g} %"
+
+
 def _count(n: int) -> str:
     """A whole number with thin groups of three: ``100 000``."""
     return f"{n:,}".replace(",", " ")
@@ -96,7 +101,7 @@ def uncertainty_lines(plan: "Plan") -> list[str]:
         return [head,
                 f"  {NO_UNCERTAINTY}: every draw delivers the planned {req}; "
                 "this is not a certainty, only the absence of ranges in the route file",
-                f"  to deliver {req} at {_pct(u.confidence)} confidence: the target as planned, "
+                f"  to deliver {req} at {_level(u.confidence)} confidence: the target as planned, "
                 f"--target {display_quantity(u.target_kg, 'mass')} (before overage)"]
     lines = [
         head,
@@ -107,7 +112,7 @@ def uncertainty_lines(plan: "Plan") -> list[str]:
         f"{display_quantity(u.histogram_edges_kg[-1], 'mass')}   (draws per bin)",
         "  " + " · ".join(f"P{100 * lv:.0f} {display_quantity(v, 'mass')}" for lv, v in u.quantiles_kg),
         f"  probability of delivering {req}: {_pct(u.probability_of_target)}",
-        f"  to be {_pct(u.confidence)} sure of {req}: plan --target "
+        f"  to be {_level(u.confidence)} sure of {req}: plan --target "
         f"{display_quantity(u.target_kg, 'mass')} (before overage) and buy, at that confidence:",
     ]
     for material, kg in u.raw_materials:
@@ -144,10 +149,10 @@ def uncertainty_fact_rows(plan: "Plan") -> list[dict[str, Any]]:
                           "as isolated, plan at expected yields"))
     rows.append(_fact("probability_of_target", "probability of delivering the target", u.probability_of_target,
                       "-", "fraction", f"{u.required_kg:.6g} kg, overage included"))
-    rows.append(_fact("confidence_target", f"target to plan for {_pct(u.confidence)} confidence", u.target_kg,
+    rows.append(_fact("confidence_target", f"target to plan for {_level(u.confidence)} confidence", u.target_kg,
                       "kg", "mass", "before overage, as --target takes it"))
     for material, kg in u.raw_materials:
-        rows.append(_fact(f"buy:{material}", f"{material} at {_pct(u.confidence)} confidence", kg, "kg", "mass"))
+        rows.append(_fact(f"buy:{material}", f"to buy at {_level(u.confidence)} confidence: {material}", kg, "kg", "mass"))
     for sid, share in u.contributions:
         rows.append(_fact(f"share:{sid}", f"share of the spread, {sid}", share, "-", "fraction",
                           "squared correlation of the step's yield with the delivered mass"))
