@@ -259,3 +259,18 @@ def test_later_steps_need_more_when_earlier_ones_do_well():
     assert need["I0"] == pytest.approx(planned["I0"] * scale, rel=1e-12)
     # THF is charged in S1 and S2; at 90 % the S2 share is larger than planned
     assert need["THF"] > planned["THF"] * scale
+
+
+def test_the_forward_run_is_dimensionally_sound_with_pint():
+    # the same expressions on pint Quantities: moles in mol, ratios dimensionless
+    from dataclasses import replace
+
+    p = plan_route(load_route_text(convergent((0.9, 0.8, 0.95), (0.85, 0.8, 0.9), 0.8)))
+    fw = forward_structure(p)
+    with_units = replace(fw, steps=tuple(replace(s, made_mol=Q(s.made_mol, "mol"), stock_mol=Q(s.stock_mol, "mol"))
+                                         for s in fw.steps))
+    g = [0.97, 0.93, 1.02]
+    r_plain, d_plain = run_forward(fw, g)
+    r_units, d_units = run_forward(with_units, [Q(x, "") for x in g])
+    assert d_units.dimensionless and all(getattr(x, "dimensionless", True) for x in r_units)
+    assert float(d_units.m_as("")) == pytest.approx(float(d_plain), rel=1e-15)

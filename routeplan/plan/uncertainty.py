@@ -428,6 +428,9 @@ def yield_uncertainty(plan: "Plan", *, confidence: float, draws: int = DEFAULT_D
     p10, p50, p90 = np.percentile(delivered, [10, 50, 90])
     reached = np.count_nonzero(delivered >= 1 - REACHED_REL) / draws
     q_low = float(np.percentile(delivered, 100 * (1 - confidence)))
+    if not q_low > 0:  # yields are above 0, so only a far-out-of-range route gets here
+        raise PlanError(f"at {confidence:.0%} confidence the draws deliver nothing, so no target can be planned",
+                        location=Location(key="--confidence"), hint="check the steps' low yields")
     scale = 1 / q_low  # starting charges per planned starting charge [-]
     kept_pct = [np.percentile(row, 100 * confidence) for row in r_kept]  # row by row: one copy at a time
     raws = []
