@@ -274,3 +274,20 @@ def test_the_forward_run_is_dimensionally_sound_with_pint():
     r_units, d_units = run_forward(with_units, [Q(x, "") for x in g])
     assert d_units.dimensionless and all(getattr(x, "dimensionless", True) for x in r_units)
     assert float(d_units.m_as("")) == pytest.approx(float(d_plain), rel=1e-15)
+
+
+def test_step_shares_of_the_spread_follow_the_yield_variances_on_a_linear_route():
+    # delivery = required * prod(g_s): to first order each step's share of the variance is
+    # cv_s^2 / sum(cv^2), with cv the coefficient of variation of its yield (scipy.stats.beta
+    # as the reference for the beta-PERT moments); the shares of independent steps add to ~1
+    steps = [(0.9, 0.8, 0.95), (0.85, 0.6, 0.9), (0.95, 0.9, 0.98)]
+    u = plan_of(linear(steps), confidence=0.9, draws=50_000, seed=6).uncertainty
+    cv2 = []
+    for m, a, b in steps:
+        dist = stats.beta(*pert_shape(a, m, b), loc=a, scale=b - a)
+        cv2.append(dist.var() / dist.mean() ** 2)
+    share = dict(u.contributions)
+    assert [sid for sid, _s in u.contributions] == ["S2", "S1", "S3"]
+    for k, c in enumerate(cv2, start=1):
+        assert share[f"S{k}"] == pytest.approx(c / sum(cv2), abs=0.03)
+    assert sum(share.values()) == pytest.approx(1.0, abs=0.02)
