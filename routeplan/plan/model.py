@@ -332,6 +332,9 @@ class Plan:
     cost_of_goods : CostOfGoods or None
         Raw materials, plant time and waste disposal (:mod:`routeplan.plan.cost_of_goods`),
         once computed.
+    uncertainty : Uncertainty or None
+        Yield draws around the plan (:mod:`routeplan.plan.uncertainty`), when a
+        confidence was asked for.
     """
 
     route: "Route"
@@ -348,6 +351,7 @@ class Plan:
     schedule: Any = None
     waste: Any = None
     cost_of_goods: Any = None
+    uncertainty: Any = None
 
     def __hash__(self) -> int:
         return id(self)
