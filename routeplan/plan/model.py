@@ -20,6 +20,7 @@ if TYPE_CHECKING:  # pragma: no cover
     import pint
 
     from routeplan.plan.metrics import Metrics
+    from routeplan.plan.uncertainty import Uncertainty
     from routeplan.route.model import Route
 
 __all__ = [
@@ -481,6 +482,9 @@ class Plan:
         Stock comparison, when a stock list was given.
     yield_basis : str
         Which step yields the walk used: ``"expected"``, ``"low"`` or ``"high"``.
+    uncertainty : Uncertainty or None
+        Yield draws around the plan (:mod:`routeplan.plan.uncertainty`), when a
+        confidence was asked for.
     """
 
     route: "Route"
@@ -494,6 +498,7 @@ class Plan:
     warnings: tuple[Problem, ...] = ()
     stock: StockPlan | None = None
     yield_basis: str = "expected"
+    uncertainty: "Uncertainty | None" = None
 
     @property
     def target_mass(self) -> "pint.Quantity":

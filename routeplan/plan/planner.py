@@ -15,7 +15,7 @@ import functools
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Mapping
 
-from routeplan.errors import PlanError, Problem
+from routeplan.errors import Location, PlanError, Problem
 from routeplan.plan.walk import YIELD_BASES, walk_route
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -75,7 +75,8 @@ def _amount_kg(route: "Route", target) -> float:
 
 
 def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None,
-               yields: str = "expected") -> "Plan":
+               yields: str = "expected", confidence: float | None = None, draws: int | None = None,
+               seed: int | None = None) -> "Plan":
     """Plan a campaign: every charge of every step for a target mass.
 
     Parameters
@@ -93,7 +94,17 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         first: the step that makes it is planned for the rest of the demand only.
     yields : {"expected", "low", "high"}
         Which yield of each step the walk uses; a step without a ``low`` or ``high``
-        uses its expected yield.
+        uses its expected yield.  Planning at the low yields sizes charges and purchases
+        for a campaign in which every step does as badly as its range allows.
+    confidence : float, optional
+        With it, the step yields are drawn and the campaign run forward in every draw
+        (:func:`routeplan.plan.uncertainty.yield_uncertainty`): the plan's
+        ``uncertainty`` holds the spread of the delivery, its probability, and the target
+        and purchases for this confidence [-] (e.g. 0.9).  Needs ``yields="expected"``.
+    draws : int, optional
+        Number of draws (default 100 000).
+    seed : int, optional
+        Seed of the draws (default 1).
 
     Returns
     -------
@@ -112,6 +123,15 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     from routeplan.plan.totals import overall_yield, raw_material_totals
     from routeplan.units import unit
 
+    if confidence is not None:
+        from routeplan.plan.uncertainty import DEFAULT_DRAWS, DEFAULT_SEED, check_options
+
+        draws = DEFAULT_DRAWS if draws is None else draws
+        seed = DEFAULT_SEED if seed is None else seed
+        check_options(confidence, draws, seed)
+        if yields != "expected":
+            raise PlanError(f"yield uncertainty is drawn around the plan at the expected yields, not the {yields} ones",
+                            location=Location(key="--yields"), hint="leave out --yields with --confidence")
     if yields not in YIELD_BASES:
         raise PlanError(f"unknown yield basis '{yields}'", hint="use expected, low or high")
     amount_kg = _amount_kg(route, target)
@@ -137,9 +157,14 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         from routeplan.plan.stock import stock_plan as compare_stock
 
         stock_plan = compare_stock(draft, on_hand, source=source)
+    uncertainty = None
+    if confidence is not None:
+        from routeplan.plan.uncertainty import yield_uncertainty
+
+        uncertainty = yield_uncertainty(draft, confidence=confidence, draws=draws, seed=seed)
     return Plan(
         route=route, target_material=draft.target_material, target_kg=draft.target_kg,
         target_n_mol=draft.target_n_mol, steps=steps, raw_materials=draft.raw_materials,
         overall_yield=draft.overall_yield, metrics=compute_metrics(draft),
-        warnings=tuple(warnings), stock=stock_plan, yield_basis=yields,
+        warnings=tuple(warnings), stock=stock_plan, yield_basis=yields, uncertainty=uncertainty,
     )
