@@ -13,6 +13,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from conftest import run_cli, write_route
+from routeplan.export.json import plan_to_dict
 from routeplan.plan.planner import plan_route
 from routeplan.plan.schedule import StepTiming, place_steps, schedule_order
 from routeplan.route.load import load_route, load_route_text
@@ -120,14 +121,14 @@ def test_no_schedule_unless_every_step_has_a_cycle_time(tmp_path):
     text = (DEMO / "hx17-linear.yaml").read_text(encoding="utf-8").replace("    cycle_time: 10 h\n", "", 1)
     plan = plan_route(load_route_text(text))
     assert plan.schedule is None
-    assert plan.to_dict()["schedule"] is None and plan.to_dict()["schedule_missing_cycle_time"] == ["S3"]
+    assert plan_to_dict(plan)["schedule"] is None and plan_to_dict(plan)["schedule_missing_cycle_time"] == ["S3"]
     result = run_cli("plan", write_route(tmp_path, text))
     assert result.exit_code == 0
     assert "schedule incomplete" in result.stdout and "no cycle_time for S3" in result.stdout
 
 
 def test_json_schedule_follows_the_contract():
-    d = plan_route(load_route(DEMO / "hx17-linear.yaml")).to_dict()
+    d = plan_to_dict(plan_route(load_route(DEMO / "hx17-linear.yaml")))
     s = d["schedule"]
     assert s["campaign_h"] == 74.0  # 12 + 20 + 10 + 8 + 24 h, one batch each, a linear chain
     assert [x["id"] for x in s["steps"]] == ["S1", "S2", "S3", "S4", "S5"]

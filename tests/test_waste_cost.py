@@ -11,6 +11,7 @@ from hypothesis import strategies as st
 
 from conftest import GOOD_ROUTE, run_cli, write_route
 from routeplan.errors import RouteError
+from routeplan.export.json import plan_to_dict
 from routeplan.plan.planner import plan_route
 from routeplan.plan.waste import stream_of
 from routeplan.route.load import load_route, load_route_text
@@ -95,7 +96,7 @@ def test_cost_of_goods_by_hand_on_a_two_step_route():
     target = 10 * M_SALT / 1000
     assert cog.per_kg == pytest.approx((raw + 980 + water * 0.2 + etoh * 0.9 + dcm * 2.5) / target, rel=1e-9)
     assert cog.complete and all(not p.unpriced for p in cog.parts.values())
-    d = plan.to_dict()["cost_of_goods"]
+    d = plan_to_dict(plan)["cost_of_goods"]
     assert set(d) >= {"raw_materials", "plant", "waste", "per_kg", "unpriced"}
     # the by-products by hand: 10 mol AcOH in S1, 10 mol water in S2
     w = plan.waste
@@ -116,7 +117,7 @@ def test_missing_prices_are_listed_never_counted_as_zero():
     assert cog.waste.unpriced == ("organic", "halogenated")
     assert cog.raw_materials.unpriced == ("NaOH",)
     assert not cog.complete
-    d = plan_route(load_route_text(text)).to_dict()["cost_of_goods"]
+    d = plan_to_dict(plan_route(load_route_text(text)))["cost_of_goods"]
     assert d["unpriced"] == {"raw_materials": ["NaOH"], "plant": ["R2"], "waste": ["organic", "halogenated"]}
     # nothing priced in a part: null, not zero
     bare = text.replace("waste_prices: {aqueous: 0.2}\n", "").replace(", rate: 50", "")

@@ -35,7 +35,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.waste import Waste
 
 __all__ = ["CostPart", "CostOfGoods", "raw_material_part", "plant_part", "waste_part", "cost_of_goods",
-           "with_schedule_waste_cost"]
+           "schedule_waste_cost"]
 
 
 @dataclass(frozen=True)
@@ -169,25 +169,23 @@ def cost_of_goods(plan: "Plan", waste: "Waste") -> CostOfGoods:
                        target)
 
 
-def with_schedule_waste_cost(plan: "Plan") -> "Plan":
-    """``plan`` with its schedule, waste and cost of goods set, and the waste warnings added.
+def schedule_waste_cost(draft) -> tuple:
+    """The schedule, waste and cost of goods of a planned campaign, and the waste warnings.
 
     Parameters
     ----------
-    plan : Plan
-        A plan with its batches sized and raw materials totalled.
+    draft : Draft or Plan
+        The planner's draft (route, steps with their batches, raw-material totals,
+        target mass), or a finished plan.
 
     Returns
     -------
-    Plan
-        ``plan.schedule`` (None unless every step has a cycle time), ``plan.waste`` and
-        ``plan.cost_of_goods``.
+    tuple
+        (Schedule or None (None unless every step has a cycle time), Waste, CostOfGoods,
+        tuple of Problem).
     """
-    from dataclasses import replace
-
     from routeplan.plan.schedule import schedule_plan
     from routeplan.plan.waste import route_waste
 
-    waste = route_waste(plan)
-    return replace(plan, schedule=schedule_plan(plan.route, plan.steps), waste=waste,
-                   cost_of_goods=cost_of_goods(plan, waste), warnings=plan.warnings + waste.warnings)
+    waste = route_waste(draft)
+    return schedule_plan(draft.route, draft.steps), waste, cost_of_goods(draft, waste), waste.warnings
