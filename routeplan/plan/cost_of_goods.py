@@ -28,7 +28,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 from routeplan.route.model import STREAMS
-from routeplan.units import magnitude
+from routeplan.units import unit
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -138,7 +138,7 @@ def plant_part(plan: "Plan") -> CostPart:
             if vessel.key not in unpriced:
                 unpriced.append(vessel.key)
         else:
-            amounts.append(sp.batches * float(step.cycle_time.m_as("h")) * vessel.rate)
+            amounts.append(sp.batches * float(step.cycle_time.m_as(unit("h"))) * vessel.rate)
     return _part(amounts, unpriced)
 
 
@@ -161,7 +161,7 @@ def waste_part(plan: "Plan", waste: "Waste") -> CostPart:
 
 def cost_of_goods(plan: "Plan", waste: "Waste") -> CostOfGoods:
     """The cost of goods of ``plan`` with its ``waste`` (see the module text)."""
-    target = magnitude(plan.target_mass, "kg")
+    target = plan.target_kg
     if not plan.route.currency:
         none = CostPart(None, ())
         return CostOfGoods(None, none, none, none, target)

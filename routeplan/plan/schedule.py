@@ -334,10 +334,11 @@ def schedule_plan(route: "Route", steps: "Sequence[StepPlan]") -> Schedule | Non
     if steps_without_cycle_time(route):
         return None
     from routeplan.route.graph import step_graph
+    from routeplan.units import unit
 
     g = step_graph(steps)
     timings = [StepTiming(id=sp.id, vessel=sp.vessel, batches=sp.batches if sp.runs else 0,
-                          cycle_time_h=float(route.step(sp.id).cycle_time.m_as("h")),
+                          cycle_time_h=float(route.step(sp.id).cycle_time.m_as(unit("h"))),
                           feeds_from=tuple(sorted(g.predecessors(sp.id))))
                for sp in steps]
     return place_steps(timings)

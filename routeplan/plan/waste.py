@@ -4,7 +4,8 @@ Definitions (ROUTE-FORMAT.md, "Time, plant and waste" and its readings)
     *Inputs of a step*: every charge of the step at its mass as charged [kg]; the
     product of a telescoped step comes in as the compound (``ChargePlan.mass``), so the
     solvents of the telescoped step are waste of that step, not of the next.
-    *Product taken on*: the step's product as isolated (``StepPlan.product_mass``).
+    Masses are read from the plan's float fields (``ChargePlan.m_kg``, ``m_kg_batch``).
+    *Product taken on*: the step's product as isolated (``StepPlan.product_m_kg``).
     *Waste of a step* = inputs - product taken on.
     *Streams*: charges of role ``solvent`` or ``workup``, and every charge of a material
     that names a ``stream``, go to the stream :func:`stream_of` gives; an intermediate
@@ -34,7 +35,7 @@ from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Problem
 from routeplan.route.model import STREAMS
-from routeplan.units import magnitude, unit
+from routeplan.units import unit
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
@@ -334,17 +335,16 @@ def step_waste(route: "Route", sp: "StepPlan") -> StepWaste:
     -------
     StepWaste
     """
-    kg = unit("kg")
-    masses = [_in(c.mass, kg) for c in sp.charges]
+    masses = [c.m_kg for c in sp.charges]
     inputs = sum(masses)
-    product = _in(sp.product_mass, kg)
+    product = sp.product_m_kg
     streams, names = _streams(route, sp.charges, masses)
     per_batch = None
     if sp.runs and sp.batch is not None and sp.batches > 0:
-        b_masses = [_in(c.mass_per_batch, kg) for c in sp.charges]
+        b_masses = [c.m_kg_batch for c in sp.charges]
         b_streams, _ = _streams(route, sp.charges, b_masses)
-        per_batch = _with_residue(b_streams, sum(b_masses) - _in(sp.batch.product_mass, kg))
-    items = by_products(route, sp.id, _in(sp.product_mol, unit("mol")))
+        per_batch = _with_residue(b_streams, sum(b_masses) - sp.batch.product_m_kg)
+    items = by_products(route, sp.id, sp.product_n_mol)
     raw = sum(m for c, m in zip(sp.charges, masses) if not c.intermediate)
     return StepWaste(step=sp.id, batches=sp.batches if sp.runs else 0, inputs_kg=inputs, product_kg=product,
                      raw_kg=raw,
@@ -396,6 +396,6 @@ def route_waste(plan: "Plan") -> Waste:
         if sw.batches:
             warnings += _warnings(route, sw)
     inputs = sum(sw.raw_kg for sw in steps)
-    inputs += sum(magnitude(sp.from_stock_mass, "kg") for sp in plan.steps if sp.from_stock_mass is not None)
-    return Waste(steps=steps, total=total, inputs_kg=inputs, product_kg=magnitude(plan.target_mass, "kg"),
+    inputs += sum(sp.stock_m_kg for sp in plan.steps if sp.stock_m_kg is not None)
+    return Waste(steps=steps, total=total, inputs_kg=inputs, product_kg=plan.target_kg,
                  gas_kg=sum((sw.gas_kg for sw in steps), 0.0), warnings=tuple(warnings))
