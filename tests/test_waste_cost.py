@@ -167,6 +167,16 @@ def test_doubling_the_target_doubles_every_stream(path, target):
             assert math.isclose(getattr(y, name), 2 * getattr(x, name), rel_tol=1e-9, abs_tol=1e-12), name
 
 
+@pytest.mark.parametrize("path", DEMO, ids=lambda p: p.name)
+def test_a_batchs_waste_times_the_batches_is_the_steps_waste(path):
+    plan = plan_route(load_route(path), "400 kg")  # several batches in every step
+    for sw in plan.waste.steps:
+        assert sw.batches > 1, sw.step
+        for name in ("aqueous_kg", "organic_kg", "halogenated_kg", "residue_kg"):
+            assert math.isclose(sw.batches * getattr(sw.per_batch, name), getattr(sw.campaign, name),
+                                rel_tol=1e-9, abs_tol=1e-12), (sw.step, name)
+
+
 def test_stream_of_follows_the_formula():
     # a chlorinated solvent is halogenated, water and aqueous solutions aqueous (ROUTE-FORMAT readings)
     assert stream_of(Material(key="DCM", name="dichloromethane", formula="CH2Cl2")) == "halogenated"

@@ -343,7 +343,7 @@ def step_waste(route: "Route", sp: "StepPlan") -> StepWaste:
     if sp.runs and sp.batch is not None and sp.batches > 0:
         b_masses = [c.m_kg_batch for c in sp.charges]
         b_streams, _ = _streams(route, sp.charges, b_masses)
-        per_batch = _with_residue(b_streams, sum(b_masses) - sp.batch.product_m_kg)
+        per_batch = _with_residue(b_streams, sum(b_masses) - sp.batch.per_batch(sp.batch.product_m_kg))
     items = by_products(route, sp.id, sp.product_n_mol)
     raw = sum(m for c, m in zip(sp.charges, masses) if not c.intermediate)
     return StepWaste(step=sp.id, batches=sp.batches if sp.runs else 0, inputs_kg=inputs, product_kg=product,
