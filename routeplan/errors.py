@@ -20,6 +20,7 @@ __all__ = [
     "RouteError",
     "PlanError",
     "StockError",
+    "RecordError",
     "OutputError",
     "CompareError",
 ]
@@ -188,6 +189,10 @@ class PlanError(RouteplanError):
 
 class StockError(RouteplanError):
     """A stock file that cannot be read."""
+
+
+class RecordError(RouteplanError):
+    """A campaign record (``--record FILE``) that cannot be read or does not fit the route."""
 
 
 class OutputError(RouteplanError):

@@ -24,10 +24,18 @@ from routeplan.commands.common import (caution_line, check_output_paths, echo_er
               show_default=True,
               help="Which yield of each step to plan with; 'low' sizes charges and purchases for the worst "
                    "case the yield ranges allow (a step without a range uses its expected yield).")
+@click.option("--record", "record_file", metavar="FILE",
+              help="Campaign record (YAML, CSV or xlsx: step, batch, charged, isolated, assay): the lots made so "
+                   "far; plan the rest of the campaign with what is in hand used first, and project the target.")
+@click.option("--record-yields", "record_yields", type=click.Choice(["expected", "actual"]), default="expected",
+              show_default=True,
+              help="With --record: plan the remaining batches of a step that has lots at the route's yield "
+                   "('expected') or at the assay-corrected mean yield its recorded lots gave ('actual').")
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
-             csv_dir: str | None, stock_file: str | None, yields: str, strict: bool, quiet: bool) -> None:
+             csv_dir: str | None, stock_file: str | None, yields: str, record_file: str | None,
+             record_yields: str, strict: bool, quiet: bool) -> None:
     """Plan every charge of every step of ROUTE for the target mass.
 
     Prints one table per step in execution order (mol, kg, L), the raw materials to
@@ -43,7 +51,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
     r = load_route(route)
-    plan = plan_route(r, amount, stock=stock_file, yields=yields)
+    plan = plan_route(r, amount, stock=stock_file, yields=yields, record=record_file, record_yields=record_yields)
     if strict and plan.warnings:
         echo_warnings(plan.warnings, strict=True)
         n = len(plan.warnings)

@@ -143,12 +143,13 @@ def _per_kg(volumes: float) -> "pint.Quantity":
 
 
 def compute_step(route: "Route", step: "Step", n_product: "pint.Quantity", *,
-                 yields: str = "expected") -> "StepPlan":
+                 yields: str = "expected", yield_value: float | None = None) -> "StepPlan":
     """Plan one step for a demand of ``n_product`` mol of its main product.
 
     ``n_lim = n_product / (yield * nu_product / nu_limiting)`` [mol], with the step's
     ``yields`` yield (``"expected"``, ``"low"`` or ``"high"``; the expected yield where
-    the step gives no range).
+    the step gives no range), or ``yield_value`` [-] when given (a campaign record's
+    actual yield of the step, :mod:`routeplan.plan.record`).
     """
     from routeplan.plan.model import StepPlan
 
@@ -157,6 +158,8 @@ def compute_step(route: "Route", step: "Step", n_product: "pint.Quantity", *,
     nu_l = eq.coefficient(step.limiting)
     chosen = getattr(step.yield_, yields)
     y = step.yield_.expected if chosen is None else chosen
+    if yield_value is not None:
+        y = yield_value
     if not y > 0:
         raise PlanError(f"step {step.id} has a yield of {y:g}; it must be above 0", step=step.id)
     n_lim = n_product / (y * nu_p / nu_l)  # [mol]

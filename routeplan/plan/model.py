@@ -324,6 +324,10 @@ class Plan:
         Stock comparison, when a stock list was given.
     yield_basis : str
         Which step yields the walk used: ``"expected"``, ``"low"`` or ``"high"``.
+    record : RecordPlan or None
+        With a campaign record: lots and their actual yields, what is in hand, the
+        projected target and what closes the gap (:class:`routeplan.plan.record.RecordPlan`);
+        the steps are then the rest of the campaign.
     """
 
     route: "Route"
@@ -337,6 +341,7 @@ class Plan:
     metrics: Any = None
     stock: StockPlan | None = None
     yield_basis: str = "expected"
+    record: Any = None
 
     def __hash__(self) -> int:
         return id(self)

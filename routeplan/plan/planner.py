@@ -25,7 +25,7 @@ __all__ = ["plan_route"]
 
 
 def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None,
-               yields: str = "expected") -> "Plan":
+               yields: str = "expected", record=None, record_yields: str = "expected") -> "Plan":
     """Plan a campaign: every charge of every step for a target mass.
 
     Parameters
@@ -45,6 +45,15 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         Which yield of each step the walk uses; a step without a ``low`` or ``high``
         uses its expected yield.  Planning at the low yields sizes charges and purchases
         for a campaign in which every step does as badly as its range allows.
+    record : str or Path or Record, optional
+        A campaign record (YAML, CSV or xlsx; :mod:`routeplan.inputs.record`): the lots
+        made so far.  The plan is then the rest of the campaign, what is in hand used
+        first (like an intermediate in stock, and added to one), and ``Plan.record``
+        holds the lots' actual yields, what is in hand and the projected target
+        (:mod:`routeplan.plan.record`).
+    record_yields : {"expected", "actual"}
+        With a record, the yield at which the remaining batches of a step with lots are
+        planned: the route's, or the assay-corrected mean of its recorded lots.
 
     Returns
     -------
@@ -83,7 +92,10 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
 
     warnings: list[Problem] = list(route.warnings)
     n_target = target_moles(route, amount)
-    steps = walk_steps(route, n_target, yields=yields, from_stock=from_stock)
+    account, from_stock, yield_of = _record_inputs(route, record, from_stock, yields, record_yields)
+    if account is not None:
+        warnings.extend(account.warnings)
+    steps = walk_steps(route, n_target, yields=yields, from_stock=from_stock, yield_of=yield_of)
 
     from routeplan.plan import campaign
 
@@ -110,6 +122,26 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         from routeplan.plan.stock import stock_plan
 
         plan = replace(plan, stock=stock_plan(plan, on_hand, source=source))
+    if account is not None:
+        from routeplan.plan.record import record_plan
+
+        plan = replace(plan, record=record_plan(plan, account))
     return plan
+
+
+def _record_inputs(route, record, from_stock, yields: str, record_yields: str):
+    """A campaign record worked out (or None), the shelf the walk takes first (stock
+    intermediates plus what the record has in hand [kg]) and the yields of its steps."""
+    if record is None:
+        return None, from_stock, None
+    from routeplan.inputs.record import load_record
+    from routeplan.plan.record import account_record
+    from routeplan.units import Q
+
+    account = account_record(route, load_record(route, record), yields=yields, record_yields=record_yields)
+    shelf = dict(from_stock or {})
+    for key, kg in account.shelf_kg(route.target.material).items():
+        shelf[key] = shelf[key] + Q(kg, unit("kg")) if key in shelf else Q(kg, unit("kg"))
+    return account, (shelf or None), account.yields_for_walk()
 
 

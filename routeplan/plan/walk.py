@@ -50,7 +50,8 @@ YIELD_BASES = ("expected", "low", "high")
 
 
 def walk_steps(route: "Route", n_target: "pint.Quantity", *, yields: str = "expected",
-               from_stock: "Mapping[str, pint.Quantity] | None" = None) -> "tuple[StepPlan, ...]":
+               from_stock: "Mapping[str, pint.Quantity] | None" = None,
+               yield_of: "Mapping[str, float] | None" = None) -> "tuple[StepPlan, ...]":
     """The backward walk: every step planned for the demand on its product, before batches.
 
     Parameters
@@ -67,6 +68,9 @@ def walk_steps(route: "Route", n_target: "pint.Quantity", *, yields: str = "expe
         ``min(on hand * assay / M, demand)`` mol from the stock and plans the step for
         the rest.  A step whose demand the stock covers does not run (``not_run``), and
         so does a step that feeds only steps that do not run.
+    yield_of : Mapping[str, float], optional
+        Step id -> yield [-] to plan that step at instead of its ``yields`` yield (the
+        actual yield of a campaign record's lots, :mod:`routeplan.plan.record`).
 
     Returns
     -------
@@ -92,8 +96,9 @@ def walk_steps(route: "Route", n_target: "pint.Quantity", *, yields: str = "expe
             # a step that does not lead to the target: the loader has warned already
             n_p = zero
         have = None if from_stock is None else from_stock.get(step.product)
+        y_of = None if yield_of is None else yield_of.get(sid)
         if have is None:
-            sp = compute_step(route, step, n_p, yields=yields)
+            sp = compute_step(route, step, n_p, yields=yields, yield_value=y_of)
         else:
             kg_per_mol = supplied_form(route.materials[step.product]).kg_per_mol
             on_shelf = (have / kg_per_mol).to(mol)  # [kg] / [kg/mol]: mass * assay / M
@@ -101,7 +106,7 @@ def walk_steps(route: "Route", n_target: "pint.Quantity", *, yields: str = "expe
                 taken, rest = n_p, zero
             else:
                 taken, rest = on_shelf, n_p - on_shelf
-            sp = compute_step(route, step, rest, yields=yields)
+            sp = compute_step(route, step, rest, yields=yields, yield_value=y_of)
             sp = replace(sp, from_stock_mol=taken.to(mol), from_stock_mass=(taken * kg_per_mol).to(unit("kg")))
             if n_p.m_as(mol) > 0 and rest.m_as(mol) == 0:
                 sp = replace(sp, not_run=f"the stock of {step.product} covers it")
