@@ -47,6 +47,8 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     from routeplan.units import parse_quantity
 
     check_output_paths(json_out=json_out, xlsx_out=xlsx_out, csv_dir=csv_dir)
+    if record_yields != "expected" and record_file is None:
+        raise click.UsageError("--record-yields applies to a campaign record; give --record FILE too")
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
