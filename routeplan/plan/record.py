@@ -370,7 +370,9 @@ def account_record(route: "Route", record: "Record", *, yields: str = "expected"
         key = step.product
         if key == target or not step.isolated or (key not in made and key not in consumed):
             continue
-        n = max(made.get(key, 0.0) - consumed.get(key, 0.0), 0.0)
+        n = made.get(key, 0.0) - consumed.get(key, 0.0)
+        if n <= made.get(key, 0.0) * _REL:  # used up, to the rounding of the inputs
+            n = 0.0
         batches = tuple(r.batch for r in results if r.step == sid)
         names = tuple(r.lot for r in results if r.step == sid and r.lot)
         in_hand.append(InHand(material=key, step=sid, made_mol=made.get(key, 0.0),

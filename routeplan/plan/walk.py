@@ -45,6 +45,10 @@ def target_moles(route: "Route", amount: "pint.Quantity") -> "pint.Quantity":
     return n.to(unit("mol"))
 
 
+#: Relative shortfall of an intermediate on the shelf that still counts as covering the
+#: demand [-] (rounding of masses and assays, not chemistry).
+SHELF_REL = 1e-9
+
 #: Which of each step's yields the walk uses.
 YIELD_BASES = ("expected", "low", "high")
 
@@ -102,7 +106,9 @@ def walk_steps(route: "Route", n_target: "pint.Quantity", *, yields: str = "expe
         else:
             kg_per_mol = supplied_form(route.materials[step.product]).kg_per_mol
             on_shelf = (have / kg_per_mol).to(mol)  # [kg] / [kg/mol]: mass * assay / M
-            if on_shelf.m_as(mol) >= n_p.m_as(mol):
+            # a shelf within SHELF_REL of the demand covers it: amounts recorded from a plan
+            # round-trip through masses and assays, and must not leave a batch of crumbs
+            if on_shelf.m_as(mol) >= n_p.m_as(mol) * (1 - SHELF_REL):
                 taken, rest = n_p, zero
             else:
                 taken, rest = on_shelf, n_p - on_shelf
