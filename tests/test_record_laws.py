@@ -126,3 +126,18 @@ def test_stock_and_record_together(camp, tmp_path):
     assert close(plan.step("S2").limiting_mol.m_as("mol"), n_i2 / 0.80)
     # the projection counts the shelf's I2 too: (148.5 + 50) * 0.75 / 2 mol of P
     assert close(plan.record.projected_target_kg, (148.5 + 50.0) * 0.75 * 0.5 * 0.400)
+
+
+@pytest.mark.parametrize("f1,f2", [(1.0, 0.5), (0.3, 1.0), (0.8, 0.8)])
+def test_a_step_taking_two_intermediates_is_limited_by_the_scarcer(f1, f2):
+    # convergent HX-17: B3 takes acetamidophenol (B1) and chloroamide (B2); with f1 and f2 of
+    # their planned product in hand (at expected yields), B3 runs at min(f1, f2) of its plan
+    route = load_route("demo_routes/hx17-convergent.yaml")
+    plan = plan_route(route)
+    lots = []
+    for sid, f in (("B1", f1), ("B2", f2)):
+        sp = plan.step(sid)
+        lots.append(Lot(sid, 1, sp.limiting_mass.m_as("kg") * f, sp.product_mass.m_as("kg") * f))
+    rec = plan_route(route, record=Record(tuple(lots))).record
+    assert close(rec.projected_target_kg, min(f1, f2) * route.target.amount.m_as("kg"))
+    assert rec.done == ("B1", "B2")

@@ -30,7 +30,10 @@ reagent in the same sheet):
   carried in [L], the mass cell the plan's content of the compound in it [kg]; both are
   plain numbers, nothing is weighed and the lot assay is recorded only.
 
-Every formula is stored with the plan's number as its computed value.
+Every formula is stored with the plan's number as its computed value.  With a campaign
+record, an intermediate in hand has its lot cell and lot-assay cell filled in (the row's
+``prefill``, :func:`routeplan.views.record_text.lot_prefill`), and its mass is stored at
+that assay.
 """
 
 from __future__ import annotations
