@@ -328,6 +328,9 @@ class Plan:
         With a campaign record: lots and their actual yields, what is in hand, the
         projected target and what closes the gap (:class:`routeplan.plan.record.RecordPlan`);
         the steps are then the rest of the campaign.
+    uncertainty : Uncertainty or None
+        Yield draws around the plan (:mod:`routeplan.plan.uncertainty`), when a
+        confidence was asked for.
     """
 
     route: "Route"
@@ -342,6 +345,7 @@ class Plan:
     stock: StockPlan | None = None
     yield_basis: str = "expected"
     record: Any = None
+    uncertainty: Any = None
 
     def __hash__(self) -> int:
         return id(self)
