@@ -39,6 +39,7 @@ from dataclasses import dataclass
 from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Problem, RecordError
+from routeplan.vocab import RecordYields
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.inputs.record import Lot, Record
@@ -53,7 +54,7 @@ __all__ = ["FAR_BELOW", "RECORD_YIELDS", "LotResult", "InHand", "Account", "Reco
 FAR_BELOW = 0.05
 
 #: Yields at which the remaining batches of a step with lots are planned.
-RECORD_YIELDS = ("expected", "actual")
+RECORD_YIELDS = tuple(RecordYields)
 
 # relative slack for "above 100 %" and "beyond what was made" (rounding of the inputs)
 _REL = 1e-9
@@ -302,7 +303,7 @@ def account_record(route: "Route", record: "Record", *, yields: str = "expected"
     """
     from routeplan.route.graph import execution_order
 
-    if record_yields not in RECORD_YIELDS:
+    if record_yields not in RECORD_YIELDS:  # StrEnum members equal their words
         raise RecordError(f"unknown record yield basis '{record_yields}'", hint="use expected or actual")
     results: list[LotResult] = []
     warnings: list[Problem] = []
@@ -382,7 +383,7 @@ def account_record(route: "Route", record: "Record", *, yields: str = "expected"
     delivered = made.get(target, 0.0)
     return Account(lots=tuple(results), in_hand=tuple(in_hand), delivered_mol=delivered,
                    delivered_kg=delivered * _kg_per_mol(route, target), actual_yields=actual,
-                   record_yields=record_yields, warnings=tuple(warnings), source=record.source)
+                   record_yields=RecordYields(record_yields), warnings=tuple(warnings), source=record.source)
 
 
 def _upstream(route: "Route", sid: str, seen: set[str]) -> None:
