@@ -13,6 +13,7 @@ import pytest
 
 from record_helpers import CAMP, RECORD_CSV, RECORD_YAML, write_record_xlsx
 from routeplan.inputs.record import Lot, Record
+from routeplan.export.json import plan_to_dict
 from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route, load_route_text
 
@@ -111,7 +112,7 @@ def test_yaml_csv_and_xlsx_records_give_the_same_plan(camp, tmp_path):
     write_record_xlsx(tmp_path / "r.xlsx")
     outs = []
     for name in ("r.yaml", "r.csv", "r.xlsx"):
-        d = plan_route(camp, record=tmp_path / name).to_dict()
+        d = plan_to_dict(plan_route(camp, record=tmp_path / name))
         d["record"].pop("file")
         outs.append({k: d[k] for k in ("steps", "raw_materials", "record")})
     assert outs[0] == outs[1] == outs[2]

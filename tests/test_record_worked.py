@@ -10,6 +10,7 @@ import math
 import pytest
 
 from record_helpers import CAMP, RECORD_YAML
+from routeplan.export.json import plan_to_dict
 from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 
@@ -103,7 +104,7 @@ def test_projected_target_and_gap(route, recorded):
 
 
 def test_json_record_block_has_the_contract_keys(route, recorded):
-    d = plan_route(route, record=recorded).to_dict()["record"]
+    d = plan_to_dict(plan_route(route, record=recorded))["record"]
     assert {"lots", "in_hand", "projected_target_kg"} <= set(d)
     assert {"step", "batch", "mass_kg", "mol", "yield", "expected_yield"} <= set(d["lots"][0])
     assert {"material", "mass_kg", "mol"} <= set(d["in_hand"][0])

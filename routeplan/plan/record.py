@@ -223,19 +223,26 @@ class RecordPlan:
     yield_basis: str = "expected"
 
 
+def _form(route: "Route", key: str):
+    """The material's conversion factors as supplied (:func:`routeplan.plan.core.material_form`)."""
+    from routeplan.plan.core import material_form
+
+    return material_form(route.materials[key])
+
+
 def _kg_per_mol(route: "Route", key: str) -> float:
     """Mass as supplied or isolated per mole of compound, ``M / a`` [kg/mol]."""
-    from routeplan.plan.charges import supplied_form
-
-    form = supplied_form(route.materials[key])
+    form = _form(route, key)
     if form.kg_per_mol is None:  # the loader forbids this for a molar material; kept as a guard
         raise RecordError(f"material '{key}' has no molar mass, so its lots cannot be counted in moles")
-    return float(form.kg_per_mol.m_as("kg/mol"))
+    return float(form.kg_per_mol)
 
 
 def _molar_mass(route: "Route", key: str) -> float:
     """Molar mass [kg/mol]."""
-    return float(route.materials[key].molar_mass.m_as("kg/mol"))
+    from routeplan.plan.core import molar_masses
+
+    return molar_masses(route)[key]
 
 
 def step_yield(step: "Step", yields: str = "expected") -> float:
@@ -266,11 +273,8 @@ def _consumption(route: "Route", step: "Step", n_lim: float, charged_kg: float |
         else:  # mass ratio or volumes of an intermediate: by mass of limiting reagent as charged
             m_lim = n_lim * _kg_per_mol(route, step.limiting) if charged_kg is None else charged_kg
             mass = c.value * m_lim
-            if c.basis == "volumes":
-                from routeplan.plan.charges import supplied_form
-
-                per_kg = supplied_form(route.materials[c.material]).L_per_kg
-                mass = mass / float(per_kg.m_as("L/kg"))
+            if c.basis == "volumes":  # [L/kg] * [kg] = [L], over [L/kg]: [kg]
+                mass = mass / _form(route, c.material).L_per_kg
             n = mass / _kg_per_mol(route, c.material)
         maker = route.step(route.maker[c.material])
         if not maker.isolated:
@@ -405,9 +409,9 @@ def project(route: "Route", account: Account, nominal, *, yields: str = "expecte
     ----------
     route : Route
     account : Account
-    nominal : tuple of StepPlan
-        The plan's walk without any shelf (for the share of an intermediate that several
-        steps take, and each charge's equiv).
+    nominal : Walked
+        The plan's walk without any shelf (:func:`routeplan.plan.walk.walk_route`): the
+        share of an intermediate that several steps take, and each charge's equiv.
     yields : str
         Yields of the steps that run.
     shelf_mol : Mapping[str, float], optional
@@ -427,15 +431,22 @@ def project(route: "Route", account: Account, nominal, *, yields: str = "expecte
     for key, n in (shelf_mol or {}).items():
         if route.maker.get(key) in done:
             arrived[key] = arrived.get(key, 0.0) + n
-    by_id = {sp.id: sp for sp in nominal}
+    # per step: intermediate -> (moles charged in the plan [mol], equiv [-])
+    takes: dict[str, dict[str, list[float]]] = {}
     demand: dict[str, float] = {}
-    for sp in nominal:
-        for c in sp.charges:
-            if c.intermediate and c.mol is not None:
-                demand[c.material] = demand.get(c.material, 0.0) + float(c.mol.m_as("mol"))
     users: dict[str, int] = {}
-    for sp in nominal:
-        for key in {c.material for c in sp.charges if c.intermediate}:
+    for sid, w in nominal.steps.items():
+        mine = takes.setdefault(sid, {})
+        for c, (n, _m, _V) in zip(w.step.charges, w.charges):
+            if not c.intermediate:
+                continue
+            entry = mine.setdefault(c.material, [0.0, 0.0])
+            if n is not None:
+                entry[0] += float(n)
+                demand[c.material] = demand.get(c.material, 0.0) + float(n)
+            if c.basis in ("equiv", "stoichiometric", "mol_percent"):
+                entry[1] += float(c.factor)
+        for key in mine:
             users[key] = users.get(key, 0) + 1
     bounded: set[str] = set(done)  # steps whose product is limited by what is in hand
     target_step = route.maker[route.target.material]
@@ -444,17 +455,13 @@ def project(route: "Route", account: Account, nominal, *, yields: str = "expecte
         if sid in done:
             continue
         step = route.step(sid)
-        sp = by_id[sid]
-        need: dict[str, float] = {}
-        for c in sp.charges:
-            if c.intermediate and c.equiv is not None and route.maker.get(c.material) in bounded:
-                need[c.material] = need.get(c.material, 0.0) + c.equiv
+        need = {key: (n, equiv) for key, (n, equiv) in takes.get(sid, {}).items()
+                if equiv > 0 and route.maker.get(key) in bounded}
         if not need:
             continue  # a branch with no lots: made from raw materials as needed
         bounded.add(sid)
         scale = None
-        for key, equiv in need.items():
-            mine = sum(float(c.mol.m_as("mol")) for c in sp.charges if c.material == key and c.mol is not None)
+        for key, (mine, equiv) in need.items():
             share = mine / demand[key] if demand.get(key, 0.0) > 0 else 1.0 / users[key]
             n = arrived.get(key, 0.0) * share / equiv
             scale = n if scale is None else min(scale, n)
@@ -467,38 +474,45 @@ def project(route: "Route", account: Account, nominal, *, yields: str = "expecte
     return account.delivered_mol + made_target
 
 
-def record_plan(plan: "Plan", account: Account) -> RecordPlan:
+def record_plan(draft, account: Account, *, amount_kg: float, stock=None) -> RecordPlan:
     """The record's block of a plan re-planned with what is in hand first.
 
-    ``plan`` is the re-plan (``plan_route(..., record=...)``): its steps are the rest of
-    the campaign, so the steps it runs are what remains, and those of them that have
-    lots (or lie upstream of lots) are the extra batches that close the gap.
+    Parameters
+    ----------
+    draft : Draft or Plan
+        The re-plan (``plan_route(..., record=...)``): its steps are the rest of the
+        campaign, so the steps it runs are what remains, and those of them that have lots
+        (or lie upstream of lots) are the extra batches that close the gap.
+    account : Account
+    amount_kg : float
+        The required target amount before overage [kg].
+    stock : StockPlan, optional
+        The stock comparison, whose intermediates count in the projection too.
     """
-    from routeplan.plan.walk import walk_steps
+    from routeplan.plan.walk import walk_route
 
-    route = plan.route
+    route = draft.route
     overage = route.target.overage
-    required = float(plan.target_mass.m_as("kg")) / (1 + overage)
-    nominal = walk_steps(route, plan.target_mol, yields=plan.yield_basis)
+    nominal = walk_route(route, amount_kg, yields=draft.yield_basis)
     shelf_mol = {}
-    if plan.stock is not None:
-        for key, mass in plan.stock.on_hand.items():
+    if stock is not None:
+        for key, mass in stock.on_hand.items():
             if route.is_intermediate(key):
                 shelf_mol[key] = float(mass.m_as("kg")) / _kg_per_mol(route, key)
-    n = project(route, account, nominal, yields=plan.yield_basis, shelf_mol=shelf_mol)
+    n = project(route, account, nominal, yields=draft.yield_basis, shelf_mol=shelf_mol)
     done: set[str] = set()
     for r in account.lots:
         _upstream(route, r.step, done)
     projected = None if n is None else n * _kg_per_mol(route, route.target.material) / (1 + overage)
-    gap = None if projected is None else required - projected
-    remaining = tuple((sp.id, sp.batches) for sp in plan.steps if sp.runs and sp.batches > 0)
-    short = gap is not None and gap > _REL * required
-    closes = tuple((sid, b) for sid, b in remaining if sid in done) if short or gap is None else ()
+    gap = None if projected is None else amount_kg - projected
+    remaining = tuple((sp.id, sp.batches) for sp in draft.steps if sp.runs and sp.batches > 0)
+    short = gap is not None and gap > _REL * amount_kg
+    closes = tuple((sid, b) for sid, b in remaining if sid in done) if short else ()
     not_counted = tuple(h.material for h in account.in_hand
                         if h.mol > 0 and all(u in done for u in route.consumers.get(h.material, ())))
     return RecordPlan(lots=account.lots, in_hand=account.in_hand, delivered_kg=account.delivered_kg,
                       actual_yields=account.actual_yields, record_yields=account.record_yields,
-                      source=account.source, required_target_kg=required, projected_target_kg=projected,
+                      source=account.source, required_target_kg=amount_kg, projected_target_kg=projected,
                       gap_kg=gap, closes=closes, remaining=remaining,
-                      done=tuple(sp.id for sp in plan.steps if sp.id in done), not_counted=not_counted,
-                      yield_basis=plan.yield_basis)
+                      done=tuple(sp.id for sp in draft.steps if sp.id in done), not_counted=not_counted,
+                      yield_basis=draft.yield_basis)
