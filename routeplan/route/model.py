@@ -96,6 +96,9 @@ class Material:
         Free text.
     location : Location or None
         Where the material is defined in the route file.
+    starting_material : bool
+        Marked by the route as a starting material (its atoms end up in the target),
+        besides the bought limiting reagents, which are starting materials anyway.
     """
 
     key: str
@@ -110,6 +113,7 @@ class Material:
     hazards: tuple[str, ...] = ()
     notes: str | None = None
     location: Location | None = None
+    starting_material: bool = False
 
 
 @dataclass(frozen=True)
