@@ -138,6 +138,26 @@ def _raw_table(plan) -> Table:
     return t
 
 
+def _print_purchases(con, plan) -> None:
+    """The purchase list (bought materials, need in kg and L, packs to order) and the
+    note on materials not bought."""
+    from routeplan.views.purchase_rows import not_bought_note, purchase_rows
+
+    rows = purchase_rows(plan)
+    t = Table(title="[bold]To order, whole campaign[/bold]", box=box.SIMPLE_HEAD, title_justify="left",
+              pad_edge=False)
+    for head, just in (("material", "left"), ("need [kg]", "right"), ("need [L]", "right"), ("pack", "right"),
+                       ("packs", "right"), ("ordered", "right")):
+        t.add_column(escape(head), justify=just)
+    for r in rows:
+        t.add_row(escape(r["material"]), fmt(r["need_kg"]), fmt(r["need_L"]), escape(r["pack"] or "–"),
+                  "–" if r["packs"] is None else str(r["packs"]), escape(r["ordered"] or "–"))
+    con.print(t)
+    note = not_bought_note(plan)
+    if note:
+        con.print(escape("  " + note))
+
+
 def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = True) -> None:
     """Print the plan to the terminal (standard output by default).
 
@@ -170,6 +190,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
             con.print(escape(stock_line))
         con.print()
     con.print(_raw_table(plan))
+    _print_purchases(con, plan)
     oy = plan.overall_yield
     con.print(escape(f"Overall yield along the longest linear sequence "
               f"({' -> '.join(oy.longest_linear_sequence)}): {oy.yield_:.1%}"

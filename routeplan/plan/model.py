@@ -231,6 +231,17 @@ class RawMaterialTotal:
         ``mass * price`` in the route's currency; None without a price or currency.
     steps : tuple of str
         Ids of the steps that charge it.
+    bought : bool
+        False when the route marks the material as not bought (``bought: false``, e.g.
+        process water): charged, but left out of the purchase list.
+    pack : pint.Quantity or None
+        Size of one pack as sold [kg] or [L]; None when the route gives none.
+    packs : int or None
+        Fewest whole packs covering ``mass`` (a pack by mass) or ``volume`` (a pack by
+        volume) [-] (:func:`routeplan.plan.purchase.packs_to_order`); None without a
+        pack or when not bought.
+    ordered : pint.Quantity or None
+        ``packs * pack`` [kg] or [L]; None likewise.
     """
 
     material: str
@@ -240,6 +251,10 @@ class RawMaterialTotal:
     mol: "pint.Quantity | None"
     cost: float | None
     steps: tuple[str, ...]
+    bought: bool = True
+    pack: "pint.Quantity | None" = None
+    packs: int | None = None
+    ordered: "pint.Quantity | None" = None
 
 
 @dataclass(frozen=True)

@@ -57,6 +57,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         When the route cannot be planned (e.g. a non-positive target).
     """
     from routeplan.plan.model import Plan
+    from routeplan.plan.purchase import with_packs
     from routeplan.plan.totals import overall_yield, raw_material_totals
     from routeplan.units import parse_quantity
 
@@ -90,6 +91,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     steps, batch_warnings = campaign.size_batches(route, steps)
     warnings.extend(batch_warnings)
     raws = raw_material_totals(route, steps)
+    raws = with_packs(route, raws)
     plan = Plan(
         route=route,
         target_material=route.target.material,

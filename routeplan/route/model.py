@@ -28,6 +28,8 @@ __all__ = [
     "Material",
     "Vessel",
     "Charge",
+    "Control",
+    "DEFAULT_CHARGE_TOLERANCE",
     "Yield",
     "Step",
     "Target",
@@ -38,6 +40,10 @@ __all__ = [
 #: Charge bases of the route format, plus the two the loader fills in itself:
 #: ``"stoichiometric"`` (a reactant with no basis: its coefficient ratio).
 BASES = ("equiv", "mol_percent", "volumes", "mass_ratio", "stoichiometric")
+
+#: How far a weighed charge may be from its mass to charge, either way, when the route
+#: gives no ``charge_tolerance`` [-] (common practice, no source).
+DEFAULT_CHARGE_TOLERANCE = 0.01
 
 #: Roles a charge line may have.
 ROLES = ("reactant", "reagent", "catalyst", "solvent", "workup")
@@ -94,6 +100,11 @@ class Material:
         Free text.
     location : Location or None
         Where the material is defined in the route file.
+    pack : pint.Quantity or None
+        Size of one pack as sold: a mass [kg] or a volume [L]; None when not given.
+    bought : bool
+        False for a raw material the route marks as not bought (process water): it is
+        charged, but left out of the purchase list.
     """
 
     key: str
@@ -108,6 +119,8 @@ class Material:
     hazards: tuple[str, ...] = ()
     notes: str | None = None
     location: Location | None = None
+    pack: "pint.Quantity | None" = None
+    bought: bool = True
 
 
 @dataclass(frozen=True)
@@ -149,6 +162,9 @@ class Charge:
         True when the loader added the line (a reactant of the equation with no line).
     location : Location or None
         Where the line is in the route file.
+    tolerance : float or None
+        How far the mass weighed in may be from the mass to charge, either way [-];
+        None: the route's ``charge_tolerance``.
     """
 
     material: str
@@ -157,6 +173,7 @@ class Charge:
     role: str
     implicit: bool = False
     location: Location | None = None
+    tolerance: float | None = None
 
     @property
     def equiv(self) -> float | None:
@@ -166,6 +183,25 @@ class Charge:
         if self.basis == "mol_percent":
             return self.value / 100.0
         return None
+
+
+@dataclass(frozen=True)
+class Control:
+    """A point of a step where the operator records temperature and time.
+
+    Attributes
+    ----------
+    point : str
+        Where in the step (``after dosing``).
+    check : str or None
+        The in-process check taken there (``HPLC conversion``).
+    limit : str or None
+        The result it must reach (``>= 98 %``), as written.
+    """
+
+    point: str
+    check: str | None = None
+    limit: str | None = None
 
 
 @dataclass(frozen=True)
@@ -209,6 +245,8 @@ class Step:
         Free text.
     location : Location or None
         Where the step is defined.
+    controls : tuple of Control
+        Points where the operator records temperature and time, in order.
     """
 
     id: str
@@ -224,6 +262,11 @@ class Step:
     demonstrated_batch: "pint.Quantity | None" = None
     notes: str | None = None
     location: Location | None = None
+    controls: tuple[Control, ...] = ()
+
+    def charge_tolerance(self, charge: Charge, route: "Route") -> float:
+        """The tolerance of ``charge`` [-]: its own, else the route's."""
+        return charge.tolerance if charge.tolerance is not None else route.charge_tolerance
 
     def charge_of(self, material: str) -> Charge | None:
         """The charge line of ``material`` in this step, or None."""
@@ -285,6 +328,9 @@ class Route:
         The file the route came from.
     warnings : tuple of Problem
         Warnings found while loading.
+    charge_tolerance : float
+        How far a weighed charge may be from its mass to charge, either way, unless its
+        line says otherwise [-]; default :data:`DEFAULT_CHARGE_TOLERANCE`.
     """
 
     name: str
@@ -296,6 +342,7 @@ class Route:
     format: int = 1
     source: Source | None = None
     warnings: tuple[Problem, ...] = ()
+    charge_tolerance: float = DEFAULT_CHARGE_TOLERANCE
 
     def __post_init__(self) -> None:
         if not isinstance(self.materials, MappingProxyType):
