@@ -93,6 +93,6 @@ def test_json_and_csv_carry_the_packs(tmp_path):
     assert raws["water"]["bought"] is False and raws["water"]["packs"] is None
     with open(tmp_path / "csv" / "purchases.csv", encoding="utf-8", newline="") as fh:
         rows = list(csv.reader(fh))[:-1]  # the last row is the caution
-    assert rows[0] == ["key", "material", "need [kg]", "need [L]", "pack", "packs to order [-]", "ordered"]
+    assert rows[0] == ["key", "material", "needed [kg]", "needed [L]", "pack", "packs to order [-]", "ordered"]
     assert "water" not in [r[0] for r in rows[1:]]
     assert "not bought" in result.stdout or "not bought" in result.output

@@ -112,7 +112,7 @@ def recalc(tmp_path_factory):
     for index, material, value in LOTS:
         ws = wb[names[index][2]]
         r, col = _row_of(ws, material)
-        ws.cell(r, col["lot assay [%]"]).value = value
+        ws.cell(r, col["lot assay or titre"]).value = value
     wb.save(lots)
 
     stock_plan = make_stock_plan()
