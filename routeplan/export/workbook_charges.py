@@ -5,8 +5,11 @@ Layout (rows from the top): title with "batch k of n" (or "each of n batches
 (identical)" for a step of more than
 :data:`~routeplan.export.workbook.MAX_BATCH_SHEETS` batches, which gets one sheet), the
 caution, a header block (step, name, equation, vessel, yield, limiting reagent, product
-per batch, route, route file and its SHA-256, notes), then the charge table — one row
-per charge in order of addition — and a short sign-off block under it.
+per batch, route, route file and its SHA-256, notes, the limiting reagent charged [mol] as
+a live formula, the weighing tolerance), the plan's warnings about the step, then the
+charge table — one row per charge in order of addition — and under it the records at the
+step's marked points and the sign-off block (:mod:`routeplan.export.workbook_records`).
+Every sheet is protected without a password; the fill-in cells are unlocked.
 
 The charge table's columns and live formulas are those of
 :mod:`routeplan.export.workbook_charge_table`: the planned columns the plant reads
