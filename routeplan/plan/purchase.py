@@ -75,20 +75,19 @@ def with_packs(route: "Route", raws: "tuple[RawMaterialTotal, ...]") -> "tuple[R
     Returns
     -------
     tuple of RawMaterialTotal
-        The same totals with ``bought``, ``pack`` ([kg] or [L]), ``packs`` [-] and
-        ``ordered`` (``packs * pack``, [kg] or [L]) set; ``packs`` and ``ordered`` are None
-        without a pack size or for a material not bought.
+        The same totals with ``bought``, ``pack_size`` and ``pack_unit`` ([kg] or [L])
+        and ``packs`` [-] set; ``packs`` is None without a pack size or for a material
+        not bought.
     """
     out = []
     for r in raws:
         mat = route.materials[r.material]
-        pack, packs, ordered = mat.pack, None, None
-        if pack is not None and mat.bought:
-            is_mass = pack.check("[mass]")
-            need = r.mass.m_as("kg") if is_mass else (None if r.volume is None else r.volume.m_as("L"))
-            if need is not None:
-                size = pack.m_as("kg" if is_mass else "L")
+        size, unit_, packs = None, None, None
+        if mat.pack is not None:
+            unit_ = "kg" if mat.pack.check("[mass]") else "L"
+            size = float(mat.pack.m_as(unit_))
+            need = r.m_kg if unit_ == "kg" else r.V_L
+            if mat.bought and need is not None:
                 packs = packs_to_order(need, size)
-                ordered = pack * packs
-        out.append(replace(r, bought=mat.bought, pack=pack, packs=packs, ordered=ordered))
+        out.append(replace(r, bought=mat.bought, pack_size=size, pack_unit=unit_, packs=packs))
     return tuple(out)
