@@ -37,7 +37,10 @@ reagent in the same sheet, ``N`` the header cell "limiting reagent charged [mol]
   then ``within ±1.0 %`` or ``OUTSIDE ±1.0 %`` (``|actual - mass| <= tolerance * mass``),
   and the actual-mass cell turns red while it is outside.
 
-Every formula is stored with the plan's number as its computed value.
+Every formula is stored with the plan's number as its computed value.  With a campaign
+record, an intermediate in hand has its lot cell and lot-assay cell filled in (the row's
+``prefill``, :func:`routeplan.views.record_text.lot_prefill`), and its mass is stored at
+that assay.
 """
 
 from __future__ import annotations
@@ -281,7 +284,8 @@ def write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int |
         else:
             ws.write_formula(r, COL["volume_L"], vol_f, vol_fmt, row["volume_L"])
 
-    put(ws, r, COL["lot"], None, st.fill_text)
+    prefill = row.get("prefill")
+    put(ws, r, COL["lot"], None if prefill is None else prefill["lot"], st.fill_text)
     _lot_cell(ws, st, row, r, mass_f)
     put(ws, r, COL["balance"], None, st.fill_text)
     put(ws, r, COL["checked_by"], None, st.fill_text)
@@ -314,8 +318,9 @@ def _lot_cell(ws, st: Styles, row: dict[str, Any], r: int, mass_f: str | None) -
     lot_col = COL["lot_assay"]
     carried = row["rule"] == "carried"
     molarity_solution = row["rule"] == "molarity" and row["equiv"] is not None
+    prefill = row.get("prefill")
     if row["rule"] == "molar" and mass_f is not None:
-        put(ws, r, lot_col, None, st.fill_percent)
+        put(ws, r, lot_col, None if prefill is None else prefill["assay"], st.fill_percent)
         ws.data_validation(r, lot_col, r, lot_col, {
             "validate": "decimal", "criteria": "between", "minimum": 0.0001, "maximum": 1,
             "input_title": "Lot assay",
