@@ -25,6 +25,7 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = [
     "BASES",
     "ROLES",
+    "STREAMS",
     "Solution",
     "Material",
     "Vessel",
@@ -35,6 +36,7 @@ __all__ = [
     "Step",
     "Target",
     "Source",
+    "WastePrices",
     "Route",
 ]
 
@@ -49,6 +51,9 @@ DEFAULT_CHARGE_TOLERANCE = 0.01
 
 #: Roles a charge line may have: the members of :class:`routeplan.vocab.Role`.
 ROLES: tuple[Role, ...] = tuple(Role)
+
+#: Waste streams a material may be sent to (``materials.<key>.stream``, ``waste_prices``).
+STREAMS = ("aqueous", "organic", "halogenated")
 
 
 @dataclass(frozen=True)
@@ -107,6 +112,12 @@ class Material:
     bought : bool
         False for a raw material the route marks as not bought (process water): it is
         charged, but left out of the purchase list.
+    starting_material : bool
+        Marked by the route as a starting material (its atoms end up in the target),
+        besides the bought limiting reagents, which are starting materials anyway.
+    stream : str or None
+        Waste stream named in the route file (one of :data:`STREAMS`); None lets its
+        formula decide (:mod:`routeplan.plan.waste`).
     """
 
     key: str
@@ -123,6 +134,8 @@ class Material:
     location: Location | None = None
     pack: "pint.Quantity | None" = None
     bought: bool = True
+    starting_material: bool = False
+    stream: str | None = None
 
 
 @dataclass(frozen=True)
@@ -137,12 +150,15 @@ class Vessel:
         Nominal volume [L].
     max_fill : float
         Largest working fraction of ``volume`` [-], default 0.8.
+    rate : float or None
+        Cost of the vessel's time per hour, in the route's currency [currency/h].
     """
 
     key: str
     volume: "pint.Quantity"
     max_fill: float = 0.8
     location: Location | None = None
+    rate: float | None = None
 
 
 @dataclass(frozen=True)
@@ -255,6 +271,8 @@ class Step:
         Where the step is defined.
     controls : tuple of Control
         Points where the operator records temperature and time, in order.
+    cycle_time : pint.Quantity or None
+        Vessel time for one batch, cleaning included [h].
     """
 
     id: str
@@ -275,6 +293,7 @@ class Step:
     def charge_tolerance(self, charge: Charge, route: "Route") -> float:
         """The tolerance of ``charge`` [-]: its own, else the route's."""
         return charge.tolerance if charge.tolerance is not None else route.charge_tolerance
+    cycle_time: "pint.Quantity | None" = None
 
     def charge_of(self, material: str) -> Charge | None:
         """The charge line of ``material`` in this step, or None."""
@@ -312,6 +331,22 @@ class Source:
     sha256: str
 
 
+@dataclass(frozen=True)
+class WastePrices:
+    """Disposal cost per kg of each waste stream, in the route's currency [currency/kg].
+
+    None for a stream the route file gives no price.
+    """
+
+    aqueous: float | None = None
+    organic: float | None = None
+    halogenated: float | None = None
+
+    def price(self, stream: str) -> float | None:
+        """The price of ``stream`` (one of :data:`STREAMS`) [currency/kg], or None."""
+        return getattr(self, stream)
+
+
 @dataclass(frozen=True, eq=False)
 class Route:
     """A whole, checked route.
@@ -343,6 +378,8 @@ class Route:
     charge_tolerance : float
         How far a weighed charge may be from its mass to charge, either way, unless its
         line says otherwise [-]; default :data:`DEFAULT_CHARGE_TOLERANCE`.
+    waste_prices : WastePrices or None
+        Disposal prices of the waste streams; None when the route file gives none.
     """
 
     name: str
@@ -355,6 +392,7 @@ class Route:
     source: Source | None = None
     warnings: tuple[Problem, ...] = ()
     charge_tolerance: float = DEFAULT_CHARGE_TOLERANCE
+    waste_prices: WastePrices | None = None
 
     def __post_init__(self) -> None:
         if not isinstance(self.materials, MappingProxyType):
