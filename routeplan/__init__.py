@@ -26,6 +26,7 @@ __all__ = [
     "element_counts",
     "load_route",
     "plan_route",
+    "report",
 ]
 
 #: The caution every human-facing output carries.
@@ -41,6 +42,7 @@ _LAZY = {
     "element_counts": ("routeplan.chemistry.formula", "element_counts"),
     "load_route": ("routeplan.route.load", "load_route"),
     "plan_route": ("routeplan.plan.planner", "plan_route"),
+    "report": ("routeplan.export.html", "notebook_report"),
 }
 
 

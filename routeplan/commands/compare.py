@@ -17,10 +17,12 @@ from routeplan.commands.common import (caution_line, check_output_paths, echo_er
               help="Write the comparison as JSON to FILE ('-' for standard output).")
 @click.option("--xlsx", "xlsx_out", metavar="FILE",
               help="Write the comparison as a workbook to FILE.")
+@click.option("--html", "html_out", metavar="FILE",
+              help="Write the comparison as one self-contained HTML page (schemes side by side) to FILE.")
 @click.option("--yields", "yields", type=click.Choice(["expected", "low", "high"]), default="expected",
               show_default=True, help="Which yield of each step every route is planned with.")
 def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | None,
-                xlsx_out: str | None, yields: str) -> None:
+                xlsx_out: str | None, html_out: str | None, yields: str) -> None:
     """Compare two or more ROUTES to the same target, side by side.
 
     Every route is planned for the same mass of target: --target if given, else the
@@ -40,7 +42,7 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
     from routeplan.route.load import load_route
     from routeplan.units import parse_quantity
 
-    check_output_paths(json_out=json_out, xlsx_out=xlsx_out)
+    check_output_paths(json_out=json_out, xlsx_out=xlsx_out, html_out=html_out)
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
@@ -61,6 +63,11 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
 
         write_comparison_xlsx(cmp, xlsx_out)
         echo_err(f"wrote {xlsx_out}")
+    if html_out is not None:
+        from routeplan.export.html import write_compare_html
+
+        write_compare_html(cmp, html_out)
+        echo_err(f"wrote {html_out}")
     if json_out == "-":
         echo_err(caution_line())
     else:

@@ -18,6 +18,8 @@ from routeplan.commands.common import (caution_line, check_output_paths, echo_er
               help="Write charge sheets (a workbook with live formulas) to FILE.")
 @click.option("--csv", "csv_dir", metavar="DIR",
               help="Write the plan's tables as CSV files into folder DIR (made if missing).")
+@click.option("--html", "html_out", metavar="FILE",
+              help="Write the campaign report (one self-contained HTML page: scheme, tables, charts) to FILE.")
 @click.option("--stock", "stock_file", metavar="FILE",
               help="Stock on hand (YAML, CSV or xlsx: material, amount, unit): say what it allows and what to buy.")
 @click.option("--yields", "yields", type=click.Choice(["expected", "low", "high"]), default="expected",
@@ -27,7 +29,7 @@ from routeplan.commands.common import (caution_line, check_output_paths, echo_er
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
-             csv_dir: str | None, stock_file: str | None, yields: str, strict: bool, quiet: bool) -> None:
+             csv_dir: str | None, html_out: str | None, stock_file: str | None, yields: str, strict: bool, quiet: bool) -> None:
     """Plan every charge of every step of ROUTE for the target mass.
 
     Prints one table per step in execution order (mol, kg, L), the raw materials to
@@ -38,7 +40,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     from routeplan.route.load import load_route
     from routeplan.units import parse_quantity
 
-    check_output_paths(json_out=json_out, xlsx_out=xlsx_out, csv_dir=csv_dir)
+    check_output_paths(json_out=json_out, xlsx_out=xlsx_out, csv_dir=csv_dir, html_out=html_out)
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
@@ -58,6 +60,11 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
 
         write_workbook(plan, xlsx_out)
         echo_err(f"wrote {xlsx_out}")
+    if html_out is not None:
+        from routeplan.export.html import write_plan_html
+
+        write_plan_html(plan, html_out)
+        echo_err(f"wrote {html_out}")
     if csv_dir is not None:
         from routeplan.export.csv import write_csv
 

@@ -13,7 +13,7 @@ from rich.console import Console
 from rich.markup import escape
 from rich.table import Table
 
-from routeplan.views.tables import column_unit, raw_material_rows, step_charge_rows
+from routeplan.views.tables import column_unit, fmt, raw_material_rows, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -36,20 +36,6 @@ def make_console() -> Console:
     """A console for standard output; 120 columns when piped to a file (no need to squeeze)."""
     con = _Console()
     return con if con.is_terminal else _Console(width=120)
-
-
-def fmt(value: float | None, digits: int = 4) -> str:
-    """A number to ``digits`` significant figures, without exponent for everyday sizes."""
-    if value is None:
-        return "–"
-    if value == 0:
-        return "0"
-    if 1e-3 <= abs(value) < 1e6:
-        text = f"{value:.{digits}g}"
-        if "e" in text:  # e.g. 12345 at 4 digits
-            text = f"{value:.0f}"
-        return text
-    return f"{value:.{digits - 1}e}"
 
 
 def _step_table(sp, route) -> Table:
