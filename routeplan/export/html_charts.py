@@ -62,14 +62,18 @@ def _mass_chart(data: "ChartData", Figure) -> str:
     rows = [("whole route", tuple(data.mass_by_material))] + [(f"step {sid}", parts) for sid, parts in data.mass_by_step]
     fig = Figure(figsize=(7.0, 1.3 + 0.3 * len(rows)))
     ax = fig.add_subplot()
-    for i, (label, parts) in enumerate(rows):
-        left = 0.0
-        for mat in sorted(dict(parts), key=lambda k: order.index(k) if k in order else len(order)):
-            v = dict(parts)[mat]
-            ax.barh(i, v, left=left, color=colour.get(mat, _OTHER), height=0.62 if i else 0.8,
+    # one bar call per material over every row: a segment per row where it is charged
+    values = [dict(parts) for _label, parts in rows]
+    left = [0.0] * len(rows)
+    heights = [0.8] + [0.62] * (len(rows) - 1)
+    for mat in order + sorted({m for v in values for m in v} - set(order)):
+        widths = [v.get(mat, 0.0) for v in values]
+        if any(widths):
+            ax.barh(range(len(rows)), widths, left=left, color=colour.get(mat, _OTHER), height=heights,
                     edgecolor="white", linewidth=0.4)
-            left += v
-        ax.text(left, i, f" {left:.3g}", va="center", ha="left", color=_INK, fontsize=7.5)
+            left = [a + b for a, b in zip(left, widths)]
+    for i, total in enumerate(left):
+        ax.text(total, i, f" {total:.3g}", va="center", ha="left", color=_INK, fontsize=7.5)
     ax.set_yticks(range(len(rows)), [r[0] for r in rows])
     ax.invert_yaxis()
     ax.axhline(0.5, color="#999999", linewidth=0.6)

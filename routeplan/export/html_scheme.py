@@ -54,6 +54,7 @@ def _depict(smiles: str, width: float, height: float) -> str | None:
     opts = drawer.drawOptions()
     opts.clearBackground = False
     opts.bondLineWidth = 1.2
+    opts.fixedBondLength = 22  # one scale for every structure that fits its box [px]
     rdMolDraw2D.PrepareAndDrawMolecule(drawer, mol)
     drawer.FinishDrawing()
     svg = drawer.GetDrawingText()

@@ -316,7 +316,6 @@ def scheme_layout(plan: "Plan") -> Scheme:
     layer = _layers(g, order)
 
     # long arrows bend through a lane in every layer they cross
-    edges: list[tuple[str, str]] = []
     bends = 0
     for u, v in list(g.edges):
         if layer[v] - layer[u] > 1:
