@@ -74,7 +74,10 @@ def pages(tmp_path_factory):
     hostile_text = good.replace("    name: ethyl bromoacetate", f"    name: '{quoted}'")
     hostile = routeplan.plan_route(routeplan.load_route(write_route(base, hostile_text, "hostile.yaml")))
     write_plan_html(hostile, base / "hostile.html")
+    uncertain = routeplan.plan_route(linear.route, confidence=0.9, draws=20000)
+    write_plan_html(uncertain, base / "uncertain.html")
     return {"demo": (demo, base / "demo.html"), "compare": (cmp, base / "compare.html"),
+            "uncertain": (uncertain, base / "uncertain.html"),
             "big": (big, base / "branched30.html"), "hostile": (hostile, base / "hostile.html")}
 
 
@@ -89,7 +92,7 @@ def _open(browser, path: Path):
     return browser
 
 
-@pytest.mark.parametrize("name", ["demo", "compare", "big", "hostile"])
+@pytest.mark.parametrize("name", ["demo", "compare", "big", "hostile", "uncertain"])
 def test_loads_without_console_error_or_network_request(browser, pages, name):
     _obj, path = pages[name]
     b = _open(browser, path)
@@ -130,14 +133,14 @@ def test_masses_shown_are_the_json_plans(browser, pages):
             assert math.isclose(s, w, rel_tol=5e-4), (t["id"], s, w)  # four significant figures shown
 
 
-@pytest.mark.parametrize("name", ["demo", "compare", "big"])
+@pytest.mark.parametrize("name", ["demo", "compare", "big", "uncertain"])
 def test_every_chart_and_scheme_has_a_size(browser, pages, name):
     _obj, path = pages[name]
     b = _open(browser, path)
     sizes = b.evaluate("""[...document.querySelectorAll('svg.scheme, figure.chart svg')].map(e => {
         const r = e.getBoundingClientRect(); return [e.closest('figure') ? e.closest('figure').id : '', r.width, r.height]; })""")
     schemes = 2 if name == "compare" else 1
-    charts = 0 if name == "compare" else 3
+    charts = {"compare": 0, "uncertain": 5}.get(name, 3)  # with uncertainty: delivery and shares too
     assert len(sizes) == schemes + charts
     for fig, w, h in sizes:
         assert w > 50 and h > 50, fig

@@ -223,3 +223,30 @@ def test_notebook_object_shows_summary_and_scheme():
     assert '<svg class="scheme"' in html and "target_mass_kg" in html
     assert routeplan.CAUTION in html and "<html" not in html
     assert str(nb).startswith("<!DOCTYPE html>")
+
+
+def test_uncertainty_section_shows_the_plans_draws():
+    """With --confidence: the facts read back equal the JSON uncertainty block; two charts more."""
+    plan = routeplan.plan_route(routeplan.load_route(LINEAR), confidence=0.9, draws=20000)
+    html = plan_html(plan)
+    section = html.split('<section id="uncertainty"', 1)[1].split("</section>", 1)[0]
+    page = parse(section)
+    rows = {a["data-key"]: a for t, a in page.elements if t == "tr" and "data-key" in a}
+    values = {}
+    for key in rows:
+        row = section.split(f'data-key="{key}"', 1)[1].split("</tr>", 1)[0]
+        nums = re.findall(r'data-value="([^"]*)"', row)
+        values[key] = float(nums[0]) if nums and nums[0] else None
+    u = plan.to_dict()["uncertainty"]
+    for q in ("p10", "p50", "p90", "mean"):
+        assert math.isclose(values[q], u["delivered_kg"][q], rel_tol=1e-12)
+    assert math.isclose(values["probability_of_target"], u["probability_of_target"], rel_tol=1e-12)
+    assert math.isclose(values["confidence_target"], u["for_confidence"]["target_kg"], rel_tol=1e-12)
+    for r in u["for_confidence"]["raw_materials"]:
+        assert math.isclose(values[f"buy:{r['material']}"], r["mass_kg"], rel_tol=1e-12)
+    assert 'id="chart-delivery"' in section and 'id="chart-contributions"' in section
+
+
+def test_without_uncertainty_there_is_no_uncertainty_section(demo):
+    _plan, html = demo
+    assert 'id="uncertainty"' not in html and "chart-delivery" not in html

@@ -128,8 +128,46 @@ def _yield_chart(data: "ChartData", Figure) -> str:
     return _to_svg(fig, "yield-", ["100"], bottom_in=0.75 if len(seq) > 12 else 0.45)
 
 
+def _delivery_chart(data: "ChartData", Figure) -> str:
+    """Histogram of the delivered mass over the yield draws, the required mass and P10/P50/P90 marked."""
+    d = data.delivery
+    edges, share = d["edges_kg"], d["share"]
+    fig = Figure(figsize=(7.0, 2.6))
+    ax = fig.add_subplot()
+    widths = [b - a for a, b in zip(edges, edges[1:])]
+    ax.bar(edges[:-1], [100 * s for s in share], width=widths, align="edge", color="#c7dde8",
+           edgecolor=PALETTE[0], linewidth=0.4)
+    top = max(100 * s for s in share) if share else 1.0
+    for key, label, style in (("p10_kg", "P10", ":"), ("p50_kg", "P50", "--"), ("p90_kg", "P90", ":")):
+        ax.axvline(d[key], color="#555555", linestyle=style, linewidth=0.9)
+        ax.text(d[key], top * 1.02, label, ha="center", va="bottom", fontsize=7, color="#555555")
+    ax.axvline(d["required_kg"], color=PALETTE[3], linewidth=1.6)
+    ax.text(d["required_kg"], top * 0.6, f" required\n {100 * d['probability_of_target']:.1f} % reach it",
+            ha="left", va="center", fontsize=7, color=PALETTE[3])
+    ax.set_ylim(0, top * 1.15)
+    ax.set_xlabel("mass delivered [kg]")
+    ax.set_ylabel("draws [%]")
+    return _to_svg(fig, "delivery-", ["100"])
+
+
+def _contributions_chart(data: "ChartData", Figure) -> str:
+    """Each drawn step's share of the spread of the delivered mass, largest first."""
+    rows = list(data.contributions)
+    fig = Figure(figsize=(7.0, 1.0 + 0.28 * len(rows)))
+    ax = fig.add_subplot()
+    ax.barh(range(len(rows)), [100 * v for _s, v in rows], color=PALETTE[4], height=0.62)
+    for i, (_s, v) in enumerate(rows):
+        ax.text(100 * v, i, f" {100 * v:.1f} %", va="center", ha="left", fontsize=7.5, color=_INK)
+    ax.set_yticks(range(len(rows)), [f"step {s}" for s, _v in rows])
+    ax.invert_yaxis()
+    ax.set_xlabel("share of the spread [%]")
+    ax.margins(x=0.15)
+    return _to_svg(fig, "contrib-", [f"step {s}" for s, _v in rows])
+
+
 def charts(data: "ChartData") -> dict[str, str]:
-    """Every chart that applies, as SVG text: keys ``mass``, ``cost``, ``yield``.
+    """Every chart that applies, as SVG text: keys ``mass``, ``cost``, ``yield``, and
+    ``delivery`` and ``contributions`` where the plan has yield uncertainty.
 
     Raises
     ------
@@ -147,4 +185,8 @@ def charts(data: "ChartData") -> dict[str, str]:
             out["cost"] = cost
         if data.yield_sequence:
             out["yield"] = _yield_chart(data, Figure)
+        if data.delivery is not None:
+            out["delivery"] = _delivery_chart(data, Figure)
+        if data.contributions:
+            out["contributions"] = _contributions_chart(data, Figure)
     return out

@@ -17,7 +17,7 @@ from routeplan.views.tables import column_unit, display_quantity, fmt, raw_mater
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
 
-__all__ = ["Cell", "Table", "StepSection", "ChartData", "Report", "plan_report", "charge_table",
+__all__ = ["Cell", "Table", "Section", "StepSection", "fact_table", "ChartData", "Report", "plan_report", "charge_table",
            "charge_label", "chart_data", "OPTIONAL_SECTIONS"]
 
 #: Plan fields that add a section to the report where the Plan has them (not None).
@@ -35,12 +35,36 @@ class Cell:
 
 @dataclass(frozen=True)
 class Table:
-    """A table: column keys, headings (with units) and rows of cells."""
+    """A table: column keys, headings (with units) and rows of cells; ``keys_by_row``
+    names each row where rows are facts (``p10``, ``buy:water``)."""
 
     keys: tuple[str, ...]
     headings: tuple[str, ...]
     rows: tuple[tuple[Cell, ...], ...]
     units: tuple[str, ...] = ()
+    keys_by_row: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class Section:
+    """A section from an optional part of the Plan (uncertainty, safety, record, ...).
+
+    Attributes
+    ----------
+    key : str
+        The Plan field it shows, e.g. ``"uncertainty"``.
+    heading : str
+        Heading shown.
+    lines : tuple of str
+        Sentences.
+    facts : Table or None
+        Item, value and note rows, the value's number in ``data-value``.
+    """
+
+    key: str
+    heading: str
+    lines: tuple[str, ...] = ()
+    facts: Table | None = None
 
 
 @dataclass(frozen=True)
@@ -63,8 +87,8 @@ class StepSection:
         Batches [-].
     fill : float or None
         Fill of the vessel per batch [-].
-    extra : tuple of (str, tuple of str)
-        Sections from optional Plan fields (heading, lines).
+    extra : tuple of Section
+        Sections from optional Plan fields.
     """
 
     id: str
@@ -76,7 +100,7 @@ class StepSection:
     facts: tuple[tuple[str, str], ...]
     batches: int
     fill: float | None
-    extra: tuple[tuple[str, tuple[str, ...]], ...] = ()
+    extra: tuple[Section, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -101,6 +125,12 @@ class ChartData:
         Along the longest linear sequence: step id, step yield [-], yield so far [-].
     overall_yield : float
         ``plan.overall_yield.yield_`` [-].
+    delivery : dict or None
+        The delivered-mass histogram of the yield draws
+        (:func:`routeplan.views.uncertainty_text.histogram_data`: bin edges [kg], counts,
+        required mass and percentiles [kg]); None without uncertainty or without ranges.
+    contributions : tuple of (str, float)
+        Each drawn step's share of the spread [-], largest first; empty without.
     """
 
     mass_by_material: tuple[tuple[str, float], ...]
@@ -111,6 +141,8 @@ class ChartData:
     unpriced: tuple[str, ...]
     yield_sequence: tuple[tuple[str, float, float], ...]
     overall_yield: float
+    delivery: dict | None = None
+    contributions: tuple[tuple[str, float], ...] = ()
 
 
 @dataclass(frozen=True)
@@ -127,7 +159,7 @@ class Report:
     stock: tuple[str, ...]
     warnings: tuple[str, ...]
     charts: ChartData
-    extra: tuple[tuple[str, tuple[str, ...]], ...] = ()
+    extra: tuple[Section, ...] = ()
     notes: tuple[str, ...] = field(default=())
 
 
@@ -211,22 +243,50 @@ def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
     return tuple(facts)
 
 
-def _optional_lines(plan: "Plan", name: str, step_id: str | None = None) -> tuple[str, ...]:
-    """Lines for an optional Plan field, from its view where one exists, else none."""
+_HEADINGS = {"uncertainty": "Yield uncertainty", "safety": "Safety screening", "record": "Campaign record",
+             "schedule": "Schedule", "waste": "Waste", "cost_of_goods": "Cost of goods"}
+
+
+def fact_table(rows) -> Table | None:
+    """Rows of ``key, item, value, unit, kind, note`` (the sheets' fact rows) as a table."""
+    if not rows:
+        return None
+    out = []
+    for r in rows:
+        v, kind = r["value"], r.get("kind", "text")
+        if kind == "mass" and isinstance(v, (int, float)):
+            cell = Cell(display_quantity(v, "mass"), v, True)
+        elif kind == "fraction" and isinstance(v, (int, float)):
+            cell = Cell(f"{100 * v:.1f} %", v, True)
+        elif isinstance(v, (int, float)) and not isinstance(v, bool):
+            cell = Cell(f"{fmt(v)} {r.get('unit', '')}".strip(), v, True)
+        else:
+            cell = Cell("" if v is None else str(v))
+        out.append((Cell(r["item"]), cell, Cell(r.get("note", "") or "")))
+    return Table(("item", "value", "note"), ("", "value", "note"), tuple(out),
+                 keys_by_row=tuple(r["key"] for r in rows))
+
+
+def _optional_section(plan: "Plan", name: str, step_id: str | None = None) -> Section | None:
+    """The section of an optional Plan field, from its view module, or None without one."""
     import importlib
 
-    value = getattr(plan, name, None)
-    if value is None:
-        return ()
+    if getattr(plan, name, None) is None:
+        return None
     try:
         module = importlib.import_module(f"routeplan.views.{name}_text")
     except ImportError:
-        return ()
-    fn = getattr(module, f"step_{name}_lines" if step_id else f"{name}_lines", None)
-    if fn is None:
-        return ()
-    lines = fn(plan, step_id) if step_id else fn(plan)
-    return tuple(str(x) for x in lines)
+        return None
+    prefix = f"step_{name}" if step_id else name
+    lines_fn = getattr(module, f"{prefix}_lines", None)
+    facts_fn = getattr(module, f"{prefix}_fact_rows", None)
+    args = (plan, step_id) if step_id else (plan,)
+    facts = fact_table(facts_fn(*args)) if facts_fn is not None else None
+    # with a table of the facts, the sentences would say the same again
+    lines = tuple(x.strip() for x in lines_fn(*args) if x.strip()) if lines_fn and facts is None else ()
+    if not lines and facts is None:
+        return None
+    return Section(key=name, heading=_HEADINGS.get(name, name.replace("_", " ")), lines=lines, facts=facts)
 
 
 def chart_data(plan: "Plan") -> ChartData:
@@ -249,10 +309,18 @@ def chart_data(plan: "Plan") -> ChartData:
         y = plan.step(sid).yield_
         so_far *= y
         seq.append((sid, y, so_far))
+    delivery, contributions = None, ()
+    u = getattr(plan, "uncertainty", None)
+    if u is not None and u.carries_uncertainty:
+        from routeplan.views.uncertainty_text import contribution_rows, histogram_data
+
+        delivery = histogram_data(u)
+        contributions = tuple((r["step"], r["share"]) for r in contribution_rows(u))
     return ChartData(
         mass_by_material=tuple(by_material), mass_by_step=tuple(by_step),
         pmi=None if m is None else m.pmi, cost_by_material=tuple(costs), currency=plan.route.currency,
-        unpriced=unpriced, yield_sequence=tuple(seq), overall_yield=plan.overall_yield.yield_)
+        unpriced=unpriced, yield_sequence=tuple(seq), overall_yield=plan.overall_yield.yield_,
+        delivery=delivery, contributions=contributions)
 
 
 def _raw_table(plan: "Plan") -> Table:
@@ -328,8 +396,7 @@ def plan_report(plan: "Plan") -> Report:
     steps = []
     for sp in plan.steps:
         title = sp.id if not sp.name or sp.name == sp.id else f"{sp.id} · {sp.name}"
-        extra = tuple((name, lines) for name in OPTIONAL_SECTIONS
-                      if (lines := _optional_lines(plan, name, sp.id)))
+        extra = tuple(sec for name in OPTIONAL_SECTIONS if (sec := _optional_section(plan, name, sp.id)))
         steps.append(StepSection(
             id=sp.id, title=title, equation=sp.equation, yield_=sp.yield_, telescoped=not sp.isolated,
             charges=charge_table(sp, route) if sp.runs else None, facts=_step_facts(plan, sp),
@@ -340,7 +407,7 @@ def plan_report(plan: "Plan") -> Report:
 
         stock = tuple(x for x in stock_lines(plan) if x.strip())
     mat = route.materials[plan.target_material]
-    extra = tuple((name, lines) for name in OPTIONAL_SECTIONS if (lines := _optional_lines(plan, name)))
+    extra = tuple(sec for name in OPTIONAL_SECTIONS if (sec := _optional_section(plan, name)))
     return Report(
         title=route.name, target_material=plan.target_material, target_name=mat.name or plan.target_material,
         summary=tuple(summary), steps=tuple(steps), raw_materials=_raw_table(plan), metrics=_metrics_lines(plan),
