@@ -165,9 +165,38 @@ def _contributions_chart(data: "ChartData", Figure) -> str:
     return _to_svg(fig, "contrib-", [f"step {s}" for s, _v in rows])
 
 
+def _timeline_chart(data: "ChartData", Figure) -> str:
+    """Vessels over the campaign: one lane per vessel, one bar per batch, critical-chain steps outlined."""
+    t = data.timeline
+    lanes = t["lanes"]
+    days = t["campaign_h"] > 96
+    scale = 24.0 if days else 1.0
+    steps = list(dict.fromkeys(b["step"] for lane in lanes for b in lane["bars"]))
+    colour = {sid: PALETTE[i % len(PALETTE)] for i, sid in enumerate(steps)}
+    fig = Figure(figsize=(7.0, 1.0 + 0.42 * len(lanes)))
+    ax = fig.add_subplot()
+    span = max(t["campaign_h"], 1e-9) / scale
+    for y, lane in enumerate(lanes):
+        bars = lane["bars"]
+        ax.broken_barh([(b["start_h"] / scale, (b["end_h"] - b["start_h"]) / scale) for b in bars], (y - 0.32, 0.64),
+                       facecolors=[colour[b["step"]] for b in bars],
+                       edgecolors=[_INK if b["critical"] else "white" for b in bars], linewidths=0.8)
+        for b in bars:
+            width = (b["end_h"] - b["start_h"]) / scale
+            if width > span * 0.045:
+                ax.text((b["start_h"] / scale) + width / 2, y, f"{b['step']}·{b['batch']}", ha="center", va="center",
+                        fontsize=6.5, color="white")
+    ax.set_yticks(range(len(lanes)), [lane["lane"] for lane in lanes])
+    ax.invert_yaxis()
+    ax.set_xlim(0, span * 1.02)
+    ax.set_xlabel("days from the campaign start" if days else "hours from the campaign start")
+    return _to_svg(fig, "timeline-", [lane["lane"] for lane in lanes])
+
+
 def charts(data: "ChartData") -> dict[str, str]:
     """Every chart that applies, as SVG text: keys ``mass``, ``cost``, ``yield``, and
-    ``delivery`` and ``contributions`` where the plan has yield uncertainty.
+    ``delivery`` and ``contributions`` where the plan has yield uncertainty, ``timeline``
+    where it has a schedule.
 
     Raises
     ------
@@ -189,4 +218,6 @@ def charts(data: "ChartData") -> dict[str, str]:
             out["delivery"] = _delivery_chart(data, Figure)
         if data.contributions:
             out["contributions"] = _contributions_chart(data, Figure)
+        if data.timeline is not None and data.timeline.get("lanes"):
+            out["timeline"] = _timeline_chart(data, Figure)
     return out

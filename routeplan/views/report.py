@@ -131,6 +131,9 @@ class ChartData:
         required mass and percentiles [kg]); None without uncertainty or without ranges.
     contributions : tuple of (str, float)
         Each drawn step's share of the spread [-], largest first; empty without.
+    timeline : dict or None
+        Vessels and batches over the campaign (``timeline_data`` of
+        :mod:`routeplan.views.schedule_text`: lanes of bars, hours [h]); None without a schedule.
     """
 
     mass_by_material: tuple[tuple[str, float], ...]
@@ -143,6 +146,7 @@ class ChartData:
     overall_yield: float
     delivery: dict | None = None
     contributions: tuple[tuple[str, float], ...] = ()
+    timeline: dict | None = None
 
 
 @dataclass(frozen=True)
@@ -316,11 +320,16 @@ def chart_data(plan: "Plan") -> ChartData:
 
         delivery = histogram_data(u)
         contributions = tuple((r["step"], r["share"]) for r in contribution_rows(u))
+    timeline = None
+    if getattr(plan, "schedule", None) is not None:
+        from routeplan.views.schedule_text import timeline_data
+
+        timeline = timeline_data(plan)
     return ChartData(
         mass_by_material=tuple(by_material), mass_by_step=tuple(by_step),
         pmi=None if m is None else m.pmi, cost_by_material=tuple(costs), currency=plan.route.currency,
         unpriced=unpriced, yield_sequence=tuple(seq), overall_yield=plan.overall_yield.yield_,
-        delivery=delivery, contributions=contributions)
+        delivery=delivery, contributions=contributions, timeline=timeline)
 
 
 def _raw_table(plan: "Plan") -> Table:
