@@ -9,7 +9,7 @@ writer can put it in a ``data-value`` attribute and a test can read the report b
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 from routeplan.views.tables import column_unit, display_quantity, fmt, raw_material_rows, step_charge_rows
@@ -17,11 +17,9 @@ from routeplan.views.tables import column_unit, display_quantity, fmt, raw_mater
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
 
-__all__ = ["Cell", "Table", "Section", "StepSection", "fact_table", "ChartData", "Report", "plan_report", "charge_table",
-           "charge_label", "chart_data", "OPTIONAL_SECTIONS"]
+__all__ = ["Cell", "Table", "Section", "StepSection", "fact_table", "columns_table", "ChartData", "Report", "plan_report", "charge_table",
+           "charge_label", "chart_data"]
 
-#: Plan fields that add a section to the report where the Plan has them (not None).
-OPTIONAL_SECTIONS = ("safety", "record", "uncertainty", "schedule", "waste", "cost_of_goods")
 
 
 @dataclass(frozen=True)
@@ -164,7 +162,6 @@ class Report:
     warnings: tuple[str, ...]
     charts: ChartData
     extra: tuple[Section, ...] = ()
-    notes: tuple[str, ...] = field(default=())
 
 
 def charge_label(row: dict[str, Any], maker) -> str:
@@ -271,26 +268,99 @@ def fact_table(rows) -> Table | None:
                  keys_by_row=tuple(r["key"] for r in rows))
 
 
-def _optional_section(plan: "Plan", name: str, step_id: str | None = None) -> Section | None:
-    """The section of an optional Plan field, from its view module, or None without one."""
+def columns_table(columns, rows) -> Table:
+    """Rows of plain values as a table with the given :class:`~routeplan.views.tables.Column` s.
+
+    Numbers are shown to four significant figures (fractions of a column with unit ``-``
+    and a heading saying yield, assay or share as %), text as it is.
+    """
+    out = []
+    for r in rows:
+        cells = []
+        for c in columns:
+            v = r.get(c.key)
+            if isinstance(v, bool) or v is None or not isinstance(v, (int, float)):
+                cells.append(Cell("" if v is None else ("yes" if v is True else "" if v is False else str(v))))
+            elif c.unit == "-" and any(w in c.heading for w in ("yield", "assay", "share")):
+                cells.append(Cell(f"{100 * v:.1f} %", float(v), True))
+            else:
+                cells.append(Cell(fmt(float(v)), float(v), True))
+        out.append(tuple(cells))
+    return Table(tuple(c.key for c in columns), tuple(c.title for c in columns), tuple(out),
+                 tuple(c.unit for c in columns))
+
+
+def _view(module: str):
+    """The view module ``routeplan.views.<module>``, or None while the Plan part it shows is not built."""
     import importlib
 
-    if getattr(plan, name, None) is None:
-        return None
     try:
-        module = importlib.import_module(f"routeplan.views.{name}_text")
+        return importlib.import_module(f"routeplan.views.{module}")
     except ImportError:
         return None
-    prefix = f"step_{name}" if step_id else name
-    lines_fn = getattr(module, f"{prefix}_lines", None)
-    facts_fn = getattr(module, f"{prefix}_fact_rows", None)
-    args = (plan, step_id) if step_id else (plan,)
-    facts = fact_table(facts_fn(*args)) if facts_fn is not None else None
-    # with a table of the facts, the sentences would say the same again
-    lines = tuple(x.strip() for x in lines_fn(*args) if x.strip()) if lines_fn and facts is None else ()
-    if not lines and facts is None:
+
+
+def _uncertainty_section(plan: "Plan") -> Section | None:
+    v = _view("uncertainty_text")
+    return None if v is None else Section("uncertainty", _HEADINGS["uncertainty"],
+                                          facts=fact_table(v.uncertainty_fact_rows(plan)))
+
+
+def _record_section(plan: "Plan") -> Section | None:
+    v = _view("record_text")
+    if v is None:
         return None
-    return Section(key=name, heading=_HEADINGS.get(name, name.replace("_", " ")), lines=lines, facts=facts)
+    return Section("record", _HEADINGS["record"], lines=tuple(x.strip() for x in v.record_lines(plan) if x.strip()),
+                   facts=columns_table(v.IN_HAND_COLUMNS, v.in_hand_rows(plan)) if plan.record.in_hand else None)
+
+
+def _schedule_section(plan: "Plan") -> Section | None:
+    v = _view("schedule_text")
+    if v is None:
+        return None
+    pace = v.pace_text(plan)
+    return Section("schedule", _HEADINGS["schedule"], lines=(pace,) if pace else (),
+                   facts=columns_table(v.VESSEL_USE_COLUMNS, v.vessel_rows(plan)))
+
+
+def _waste_section(plan: "Plan") -> Section | None:
+    v = _view("waste_cost_text")
+    return None if v is None else Section("waste", _HEADINGS["waste"],
+                                          lines=tuple(x.strip() for x in v.waste_lines(plan) if x.strip()))
+
+
+def _cost_section(plan: "Plan") -> Section | None:
+    v = _view("waste_cost_text")
+    return None if v is None else Section("cost_of_goods", _HEADINGS["cost_of_goods"],
+                                          lines=tuple(x.strip() for x in v.cost_lines(plan) if x.strip()))
+
+
+#: Plan field -> the section that shows it (only where the Plan has the field set).
+_SECTIONS = {"uncertainty": _uncertainty_section, "record": _record_section, "schedule": _schedule_section,
+             "waste": _waste_section, "cost_of_goods": _cost_section}
+
+
+def _plan_sections(plan: "Plan") -> tuple[Section, ...]:
+    return tuple(sec for name, build in _SECTIONS.items()
+                 if getattr(plan, name, None) is not None and (sec := build(plan)) is not None)
+
+
+def _step_sections(plan: "Plan", sp: "StepPlan") -> tuple[Section, ...]:
+    """The step's safety block (screening estimates) and its recorded lots, where the Plan has them."""
+    out = []
+    v = _view("safety_text") if getattr(sp, "safety", None) is not None else None
+    if v is not None:
+        pairs = v.sheet_safety_pairs(sp)
+        if pairs:
+            out.append(Section("safety", f"Safety per batch: {v.SCREENING_NOTE}",
+                               facts=Table(("item", "value"), ("", ""),
+                                           tuple((Cell(a), Cell(b)) for a, b in pairs))))
+    v = _view("record_text") if getattr(plan, "record", None) is not None else None
+    if v is not None:
+        lots = [r for r in v.lot_rows(plan) if r["step"] == sp.id]
+        if lots:
+            out.append(Section("record", "Lots recorded", facts=columns_table(v.LOT_COLUMNS, lots)))
+    return tuple(out)
 
 
 def chart_data(plan: "Plan") -> ChartData:
@@ -405,7 +475,7 @@ def plan_report(plan: "Plan") -> Report:
     steps = []
     for sp in plan.steps:
         title = sp.id if not sp.name or sp.name == sp.id else f"{sp.id} · {sp.name}"
-        extra = tuple(sec for name in OPTIONAL_SECTIONS if (sec := _optional_section(plan, name, sp.id)))
+        extra = _step_sections(plan, sp)
         steps.append(StepSection(
             id=sp.id, title=title, equation=sp.equation, yield_=sp.yield_, telescoped=not sp.isolated,
             charges=charge_table(sp, route) if sp.runs else None, facts=_step_facts(plan, sp),
@@ -416,7 +486,7 @@ def plan_report(plan: "Plan") -> Report:
 
         stock = tuple(x for x in stock_lines(plan) if x.strip())
     mat = route.materials[plan.target_material]
-    extra = tuple(sec for name in OPTIONAL_SECTIONS if (sec := _optional_section(plan, name)))
+    extra = _plan_sections(plan)
     return Report(
         title=route.name, target_material=plan.target_material, target_name=mat.name or plan.target_material,
         summary=tuple(summary), steps=tuple(steps), raw_materials=_raw_table(plan), metrics=_metrics_lines(plan),
