@@ -122,7 +122,7 @@ def test_masses_shown_are_the_json_plans(browser, pages):
         id: s.dataset.step,
         head: [...s.querySelectorAll('table.charges th')].map(th => th.innerText),
         rows: [...s.querySelectorAll('table.charges tbody tr')].map(tr => [...tr.cells].map(td => td.innerText))}))""")
-    data = {st["id"]: st for st in plan.to_dict()["steps"]}
+    data = {st["id"]: st for st in routeplan.plan_to_dict(plan)["steps"]}
     for t in tables:
         col = next(i for i, h in enumerate(t["head"]) if h.startswith("m ["))
         factor = _FACTOR[t["head"][col][3:-1]]
