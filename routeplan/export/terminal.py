@@ -14,7 +14,7 @@ from rich.markup import escape
 from rich.table import Table
 
 from routeplan.views.metrics_text import metrics_lines
-from routeplan.views.tables import column_unit, fmt, raw_material_rows, step_charge_rows
+from routeplan.views.tables import charge_label, column_unit, fmt, raw_material_rows, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -58,11 +58,7 @@ def _step_table(sp, route) -> Table:
         t.add_column(escape(f"m/batch [{mu}]"), justify="right")
         t.add_column(escape(f"V/batch [{vu}]"), justify="right")
     for r in rows:
-        name = r["material"]
-        if r["carried_from"]:
-            name += f" ({r['carried_from']}, in solution)"
-        elif r["intermediate"]:
-            name += f" ({made_in[r['material']]})"
+        name = charge_label(r, made_in)
         cells = [
             str(r["order"]), name, r["role"], fmt(r["equiv"], 3),
             fmt(None if r["mol"] is None else r["mol"] / nf),

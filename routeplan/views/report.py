@@ -10,15 +10,16 @@ writer can put it in a ``data-value`` attribute and a test can read the report b
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any
+from typing import TYPE_CHECKING
 
-from routeplan.views.tables import column_unit, display_quantity, fmt, raw_material_rows, step_charge_rows
+from routeplan.views.tables import (charge_label, column_unit, display_quantity, fmt, raw_material_rows,
+                                    step_charge_rows)
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
 
-__all__ = ["Cell", "Table", "Section", "StepSection", "fact_table", "columns_table", "ChartData", "Report", "plan_report", "charge_table",
-           "charge_label", "chart_data"]
+__all__ = ["Cell", "Table", "Section", "StepSection", "ChartData", "Report", "plan_report", "charge_table",
+           "chart_data", "fact_table", "columns_table"]
 
 
 
@@ -162,20 +163,6 @@ class Report:
     warnings: tuple[str, ...]
     charts: ChartData
     extra: tuple[Section, ...] = ()
-
-
-def charge_label(row: dict[str, Any], maker) -> str:
-    """The material of a charge row as people read it: ``acetamidophenol (B1)``.
-
-    ``maker`` maps an intermediate to the step making it; a charge carried in solution
-    reads ``salt (S2, in solution)``.
-    """
-    name = row["material"]
-    if row["carried_from"]:
-        return f"{name} ({row['carried_from']}, in solution)"
-    if row["intermediate"]:
-        return f"{name} ({maker[row['material']]})"
-    return name
 
 
 def charge_table(sp: "StepPlan", route) -> Table:

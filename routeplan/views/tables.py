@@ -26,6 +26,7 @@ __all__ = [
     "charges_frame",
     "display_quantity",
     "fmt",
+    "charge_label",
 ]
 
 
@@ -201,3 +202,17 @@ def fmt(value: float | None, digits: int = 4) -> str:
             text = f"{value:.0f}"
         return text
     return f"{value:.{digits - 1}e}"
+
+
+def charge_label(row: dict[str, Any], maker) -> str:
+    """The material of a charge row as people read it: ``acetamidophenol (B1)``.
+
+    ``maker`` maps an intermediate to the step making it; a charge carried in solution
+    reads ``salt (S2, in solution)``.
+    """
+    name = row["material"]
+    if row["carried_from"]:
+        return f"{name} ({row['carried_from']}, in solution)"
+    if row["intermediate"]:
+        return f"{name} ({maker[row['material']]})"
+    return name
