@@ -76,8 +76,10 @@ def pages(tmp_path_factory):
     write_plan_html(hostile, base / "hostile.html")
     uncertain = routeplan.plan_route(linear.route, confidence=0.9, draws=20000)
     write_plan_html(uncertain, base / "uncertain.html")
+    recorded = routeplan.plan_route(linear.route, record=ROOT / "demo_routes" / "record.yaml")
+    write_plan_html(recorded, base / "record.html")
     return {"demo": (demo, base / "demo.html"), "compare": (cmp, base / "compare.html"),
-            "uncertain": (uncertain, base / "uncertain.html"),
+            "uncertain": (uncertain, base / "uncertain.html"), "record": (recorded, base / "record.html"),
             "big": (big, base / "branched30.html"), "hostile": (hostile, base / "hostile.html")}
 
 
@@ -92,13 +94,15 @@ def _open(browser, path: Path):
     return browser
 
 
-@pytest.mark.parametrize("name", ["demo", "compare", "big", "hostile", "uncertain"])
+@pytest.mark.parametrize("name", ["demo", "compare", "big", "hostile", "uncertain", "record"])
 def test_loads_without_console_error_or_network_request(browser, pages, name):
     _obj, path = pages[name]
     b = _open(browser, path)
     assert b.console_errors() == []
     assert b.requests() == [path.resolve().as_uri()]
     assert b.evaluate("document.querySelectorAll('script').length") == 0
+    # nothing pushes the page wider than the window (wide tables scroll in their own box)
+    assert b.evaluate("document.documentElement.scrollWidth <= window.innerWidth")
 
 
 @pytest.mark.parametrize("name", ["demo", "big"])

@@ -250,3 +250,22 @@ def test_uncertainty_section_shows_the_plans_draws():
 def test_without_uncertainty_there_is_no_uncertainty_section(demo):
     _plan, html = demo
     assert 'id="uncertainty"' not in html and "chart-delivery" not in html
+
+
+def test_recorded_lots_are_shown_under_their_steps_with_the_plans_numbers():
+    """With a record: each step lists its lots; the numbers read back are the JSON record's."""
+    plan = routeplan.plan_route(routeplan.load_route(LINEAR), record=ROOT / "demo_routes" / "record.yaml")
+    html = plan_html(plan)
+    lots = routeplan.plan_to_dict(plan)["record"]["lots"]
+    assert lots
+    assert 'id="record"' in html
+    for sid in {lot["step"] for lot in lots}:
+        section = html.split(f'<section class="step" id="step-{sid}"', 1)[1].split("</section>", 1)[0]
+        block = section.split('class="extra record"', 1)[1]
+        cells = parse(block).cells
+        for key in ("charged_kg", "mass_kg", "yield", "assay"):
+            got = [float(a["data-value"]) for a, _t in cells if a.get("data-key") == key]
+            want = [lot[key] for lot in lots if lot["step"] == sid]
+            assert got == pytest.approx(want, rel=1e-12), (sid, key)
+    without = plan_html(routeplan.plan_route(routeplan.load_route(LINEAR)))
+    assert 'id="record"' not in without and "Lots recorded" not in without
