@@ -141,6 +141,10 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         if yields != "expected":
             raise PlanError(f"yield uncertainty is drawn around the plan at the expected yields, not the {yields} ones",
                             location=Location(key="--yields"), hint="leave out --yields with --confidence")
+    if confidence is not None and record is not None:
+        raise PlanError("yield draws are not run on the rest of a recorded campaign: they would start from the "
+                        "planned charges, not from what is in hand", location=Location(key="--confidence"),
+                        hint="use --confidence on the plan without --record, or --record without --confidence")
     if yields not in YIELD_BASES:
         raise PlanError(f"unknown yield basis '{yields}'", hint="use expected, low or high")
     amount_kg = _amount_kg(route, target)
@@ -154,7 +158,8 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         shelf_kg = {k: float(v.m_as(unit("kg"))) for k, v in shelf.items()} or None
 
     account, shelf_kg, yield_of = _record_inputs(route, record, shelf_kg, yields, record_yields)
-    walked = walk_route(route, amount_kg, yields=yields, shelf_kg=shelf_kg, yield_of=yield_of)
+    shelf_name = "the stock" if account is None else "what is in hand" if stock is None else "the stock and what is in hand"
+    walked = walk_route(route, amount_kg, yields=yields, shelf_kg=shelf_kg, yield_of=yield_of, shelf_name=shelf_name)
     sized, batch_warnings = size_steps(route, walked)
     steps = step_plans(route, walked, sized)
     draft = Draft(route=route, target_material=route.target.material,
