@@ -261,6 +261,7 @@ def columns_table(columns, rows) -> Table:
     Numbers are shown to four significant figures (fractions of a column with unit ``-``
     and a heading saying yield, assay or share as %), text as it is.
     """
+    percent = {c.key for c in columns if c.unit == "-" and any(w in c.heading for w in ("yield", "assay", "share"))}
     out = []
     for r in rows:
         cells = []
@@ -268,13 +269,13 @@ def columns_table(columns, rows) -> Table:
             v = r.get(c.key)
             if isinstance(v, bool) or v is None or not isinstance(v, (int, float)):
                 cells.append(Cell("" if v is None else ("yes" if v is True else "" if v is False else str(v))))
-            elif c.unit == "-" and any(w in c.heading for w in ("yield", "assay", "share")):
+            elif c.key in percent:
                 cells.append(Cell(f"{100 * v:.1f} %", float(v), True))
             else:
                 cells.append(Cell(fmt(float(v)), float(v), True))
         out.append(tuple(cells))
-    return Table(tuple(c.key for c in columns), tuple(c.title for c in columns), tuple(out),
-                 tuple(c.unit for c in columns))
+    heads = tuple(f"{c.heading} [%]" if c.key in percent else c.title for c in columns)
+    return Table(tuple(c.key for c in columns), heads, tuple(out), tuple(c.unit for c in columns))
 
 
 def _view(module: str):
