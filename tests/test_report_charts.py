@@ -33,7 +33,7 @@ def test_every_chart_is_well_formed_and_names_its_series():
     plan = routeplan.plan_route(routeplan.load_route(ROOT / "demo_routes" / "hx17-convergent.yaml"))
     data = chart_data(plan)
     out = charts(data)
-    assert set(out) == {"mass", "cost", "yield"}
+    assert set(out) == {"mass", "cost", "yield"} | ({"timeline"} if plan.schedule is not None else set())
     for svg in out.values():
         ET.fromstring(svg)
     mass = _texts(out["mass"])

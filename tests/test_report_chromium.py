@@ -144,7 +144,11 @@ def test_every_chart_and_scheme_has_a_size(browser, pages, name):
     sizes = b.evaluate("""[...document.querySelectorAll('svg.scheme, figure.chart svg')].map(e => {
         const r = e.getBoundingClientRect(); return [e.closest('figure') ? e.closest('figure').id : '', r.width, r.height]; })""")
     schemes = 2 if name == "compare" else 1
-    charts = {"compare": 0, "uncertain": 5}.get(name, 3)  # with uncertainty: delivery and shares too
+    charts = 0
+    if name != "compare":
+        plan = _obj
+        charts = 3 + (plan.schedule is not None)  # mass, cost, yield; the vessel timeline with a schedule
+        charts += 2 * (plan.uncertainty is not None and plan.uncertainty.carries_uncertainty)
     assert len(sizes) == schemes + charts
     for fig, w, h in sizes:
         assert w > 50 and h > 50, fig

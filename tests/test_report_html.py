@@ -269,3 +269,16 @@ def test_recorded_lots_are_shown_under_their_steps_with_the_plans_numbers():
             assert got == pytest.approx(want, rel=1e-12), (sid, key)
     without = plan_html(routeplan.plan_route(routeplan.load_route(LINEAR)))
     assert 'id="record"' not in without and "Lots recorded" not in without
+
+
+def test_schedule_section_shows_the_plans_vessels_and_timeline():
+    """With cycle times (the demo has them): the vessels' busy hours read back are the JSON schedule's."""
+    plan = routeplan.plan_route(routeplan.load_route(CONVERGENT))
+    assert plan.schedule is not None
+    html = plan_html(plan)
+    section = html.split('<section id="schedule"', 1)[1].split("</section>", 1)[0]
+    busy = [float(a["data-value"]) for a, _t in parse(section).cells if a.get("data-key") == "busy_h"]
+    assert busy == pytest.approx([v["busy_h"] for v in routeplan.plan_to_dict(plan)["schedule"]["vessels"]], rel=1e-12)
+    assert 'id="chart-timeline"' in section
+    for v in plan.schedule.vessels:
+        assert f">{v.vessel}<" in section
