@@ -276,3 +276,20 @@ def test_with_every_formula_the_atoms_are_counted_not_the_masses(good_text):
     text = change(good_text, [("aminophenol + Ac2O -> paracetamol + AcOH", "aminophenol + Ac2O -> paracetamol")])
     (w,) = load_route_text(text, "atoms.yaml").warnings
     assert "is not balanced" in w.message and "by mass" not in w.message
+
+
+def test_vessel_in_millilitres_for_a_kilo_campaign_warns_at_its_line(tmp_path, good_text):
+    # issue 19: a 630 mL vessel for a 10 kg target is a unit slip for 630 L (common
+    # practice, no source: no kilo campaign runs in a vessel under a litre)
+    text = good_text.replace("  R630:\n    volume: 630 L", "  R630:\n    volume: 630 mL")
+    line = text.splitlines().index("    volume: 630 mL") + 1
+    path = write_route(tmp_path, text)
+    route = load_route(path)
+    hits = [w for w in route.warnings if "vessel R630 holds 630 mL" in w.message]
+    assert len(hits) == 1, route.warnings
+    assert hits[0].location.line == line and hits[0].location.column == 13
+    assert hits[0].hint == "probably meant 630 L"
+    assert run_cli("check", "--strict", path).exit_code == 2
+    # the same vessel for a 0.5 kg lab route is plausible: no such warning
+    lab = write_route(tmp_path, text.replace("  amount: 10 kg", "  amount: 500 g"), "lab.yaml")
+    assert not any("holds 630 mL" in w.message for w in load_route(lab).warnings)

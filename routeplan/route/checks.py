@@ -448,7 +448,10 @@ class _Checker:
 
     def target(self) -> None:
         t = self.parts.target
-        if t is None or t.material is None:
+        if t is None:
+            return
+        self.found(plausible.vessel_volume_findings(t.amount, self.parts.equipment))
+        if t.material is None:
             return
         if not self.known(t.material):
             self.unknown_material(t.material, ("target", "material"), "the target")

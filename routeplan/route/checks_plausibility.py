@@ -25,7 +25,16 @@ from typing import Any, Mapping
 from routeplan.vocab import Severity
 
 __all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "MOLAR_MASS_TOLERANCE", "density_findings",
-           "molar_mass_findings", "solution_findings", "mass_balance_finding"]
+           "molar_mass_findings", "solution_findings", "mass_balance_finding", "vessel_volume_findings",
+           "SMALL_VESSEL_L", "LARGE_TARGET_KG"]
+
+#: A vessel below this nominal volume [L] in a route whose target is above
+#: :data:`LARGE_TARGET_KG` is taken for a unit slip (``630 mL`` for ``630 L``); common
+#: practice, no source: no kilo campaign runs in a vessel smaller than a litre.
+SMALL_VESSEL_L = 1.0
+
+#: Target mass [kg] above which a vessel under :data:`SMALL_VESSEL_L` is suspect.
+LARGE_TARGET_KG = 1.0
 
 #: Densities a material or solution of a route may have [g/mL], inclusive.
 #: Upper bound: osmium, the densest element, is 22.59 g/cm³ (CRC Handbook of Chemistry and
@@ -263,3 +272,36 @@ def mass_balance_finding(path: tuple, step_id: str | None, equation,
                    f"{who} does not balance by mass: the products weigh {_g(abs(diff))} g/mol {how} than the "
                    f"reactants ({_g(products)} vs {_g(reactants)} g/mol)",
                    "check the coefficients and the molar masses; atom economy would be wrong")
+
+
+def vessel_volume_findings(target_amount, equipment: Mapping[str, Any]) -> list[Finding]:
+    """Vessels too small for the campaign, most likely a unit slip (``630 mL`` for ``630 L``).
+
+    Parameters
+    ----------
+    target_amount : pint.Quantity or None
+        The route's target mass.
+    equipment : mapping
+        Vessel key -> a vessel with ``volume`` (a pint Quantity), or None.
+
+    Returns
+    -------
+    list of Finding
+        One warning at each vessel's ``volume`` under :data:`SMALL_VESSEL_L` when the
+        target is above :data:`LARGE_TARGET_KG`, suggesting the same number in litres.
+    """
+    if target_amount is None or not float(target_amount.m_as("kg")) > LARGE_TARGET_KG:
+        return []
+    out = []
+    for key, vessel in equipment.items():
+        volume = getattr(vessel, "volume", None)
+        if volume is None:
+            continue
+        V_L = float(volume.m_as("L"))
+        if 0 < V_L < SMALL_VESSEL_L:
+            out.append(Finding(
+                Severity.WARNING, ("equipment", key, "volume"),
+                f"vessel {key} holds {_written(volume)} ({_g(V_L)} L), under {SMALL_VESSEL_L:g} L, for a target of "
+                f"{_g(float(target_amount.m_as('kg')))} kg: it would need a great many batches",
+                f"probably meant {volume.magnitude:g} L"))
+    return out
