@@ -37,7 +37,6 @@ __all__ = [
     "compare_plans",
     "compare_routes",
     "best_indices",
-    "tradeoff_sentence",
 ]
 
 #: A row whose lowest value is best / whose highest value is best.
@@ -127,8 +126,6 @@ class Comparison:
         The routes' common currency; None when they give none or differ.
     rows : tuple of CompareRow
         The measures, in display order.
-    tradeoff : str
-        One sentence: which route wins on which measure.
     notes : tuple of str
         What the reader must know (the target mass chosen, differing overages).
     plans : tuple of Plan
@@ -142,7 +139,6 @@ class Comparison:
     amount: float
     currency: str | None
     rows: tuple[CompareRow, ...]
-    tradeoff: str
     notes: tuple[str, ...] = ()
     plans: tuple["Plan", ...] = field(default=(), repr=False)
 
@@ -152,12 +148,6 @@ class Comparison:
             if r.key == key:
                 return r
         raise KeyError(key)
-
-    def to_dict(self) -> dict[str, Any]:
-        """The comparison as plain JSON values (see :mod:`routeplan.export.compare_out`)."""
-        from routeplan.export.compare_out import comparison_to_dict
-
-        return comparison_to_dict(self)
 
 
 # ------------------------------------------------------------------ the target
@@ -313,54 +303,6 @@ def best_indices(values: Sequence[float | None], better: BetterIs | str | None) 
     top = min(values) if better == LOWER else max(values)
     best = tuple(i for i, v in enumerate(values) if math.isclose(v, top, rel_tol=_TIE, abs_tol=1e-12))
     return () if len(best) == len(values) else best
-
-
-def _join(words: Sequence[str]) -> str:
-    words = list(words)
-    if len(words) <= 1:
-        return "".join(words)
-    return ", ".join(words[:-1]) + " and " + words[-1]
-
-
-def tradeoff_sentence(labels: Sequence[str], rows: Sequence[CompareRow]) -> str:
-    """One sentence saying which route wins on which measure.
-
-    Examples
-    --------
-    >>> rows = [CompareRow("pmi", "PMI", "PMI", "kg/kg", "ratio", LOWER, (20.0, 30.0), best=(0,)),
-    ...         CompareRow("batches", "batches", "batches", "-", "count", LOWER, (9, 6), best=(1,))]
-    >>> tradeoff_sentence(["A", "B"], rows)
-    'A wins on PMI; B wins on batches.'
-    """
-    wins: dict[tuple[int, ...], list[str]] = {}
-    equal: list[str] = []
-    unranked: list[str] = []
-    for r in rows:
-        if r.better is None:
-            continue
-        if r.best:
-            wins.setdefault(r.best, []).append(r.short)
-        elif r.all_equal:
-            equal.append(r.short)
-        else:
-            unranked.append(r.short)
-    parts = []
-    ranked_count = sum(len(v) for v in wins.values())
-    for idx in sorted(wins, key=lambda k: (-len(wins[k]), k)):
-        who = _join([labels[i] for i in idx])
-        verb = "wins" if len(idx) == 1 else "share the best value"
-        if len(idx) == 1 and len(wins) == 1 and not equal and not unranked:
-            parts.append(f"{who} wins on every measure ranked ({_join(wins[idx])})")
-        else:
-            parts.append(f"{who} {verb} on {_join(wins[idx])}")
-    if equal:
-        parts.append(f"the routes are equal on {_join(equal)}")
-    if unranked:
-        parts.append(f"{_join(unranked)} cannot be ranked")
-    if not ranked_count and not parts:
-        return "No measure could be ranked."
-    text = "; ".join(parts)
-    return text[0].upper() + text[1:] + "."
 
 
 # ----------------------------------------------------------------------- rows
@@ -550,7 +492,6 @@ def compare_plans(plans: Sequence["Plan"], notes: Sequence[str] = ()) -> Compari
         amount=amounts[0],
         currency=next(iter(currencies)) if len(currencies) == 1 else None,
         rows=rows,
-        tradeoff=tradeoff_sentence(labels, rows),
         notes=tuple(notes),
         plans=plans,
     )
