@@ -305,6 +305,14 @@ def best_indices(values: Sequence[float | None], better: BetterIs | str | None) 
     return () if len(best) == len(values) else best
 
 
+def _join(words: Sequence[str]) -> str:
+    """``a, b and c``: words joined for a note."""
+    words = list(words)
+    if len(words) <= 1:
+        return "".join(words)
+    return ", ".join(words[:-1]) + " and " + words[-1]
+
+
 # ----------------------------------------------------------------------- rows
 
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Sequence
 
-from routeplan.plan.compare import LOWER, CompareRow
+from routeplan.plan.compare import LOWER, CompareRow, _join
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.compare import Comparison
@@ -15,13 +15,6 @@ __all__ = ["tradeoff_sentence", "tradeoff"]
 def tradeoff(cmp: "Comparison") -> str:
     """The trade-off sentence of a comparison (:func:`tradeoff_sentence` of its rows)."""
     return tradeoff_sentence(cmp.labels, cmp.rows)
-
-
-def _join(words: Sequence[str]) -> str:
-    words = list(words)
-    if len(words) <= 1:
-        return "".join(words)
-    return ", ".join(words[:-1]) + " and " + words[-1]
 
 
 def tradeoff_sentence(labels: Sequence[str], rows: Sequence[CompareRow]) -> str:
