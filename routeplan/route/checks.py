@@ -201,6 +201,7 @@ class _Checker:
                          "install the 'smiles' extra (pip install 'routeplan[smiles]') or give a formula")
             return None
         from routeplan.chemistry.formula import molar_mass
+        from routeplan.units import Q
 
         from rdkit import rdBase
 
@@ -217,9 +218,9 @@ class _Checker:
             self.add("error", ("materials", key, "smiles"), f"'{m.smiles}' is not a valid SMILES: {detail}",
                      "correct the SMILES, or give a formula instead")
             return None
-        formula = rdMolDescriptors.CalcMolFormula(mol)
+        formula, shift = smiles_formula(mol)
         try:
-            mass = molar_mass(formula).to("g/mol")
+            mass = molar_mass(formula).to("g/mol") + Q(shift, "g/mol")
         except FormulaError as exc:  # pragma: no cover - RDKit writes formulas we read
             self.add("error", ("materials", key, "smiles"), exc.message, exc.hint)
             return None
@@ -527,6 +528,42 @@ class _Checker:
                 s = self.parts.steps[i]
                 self.add("warning", ("steps", i, "equation"), describe_imbalance(diff, s.id),
                          "check the coefficients and the formulas", step=s.id)
+
+
+def smiles_formula(mol) -> tuple[str, float]:
+    """The formula of an RDKit molecule, isotope labels kept, and the mass they add.
+
+    Deuterium and tritium (``[2H]``, ``[3H]``) are written ``D`` and ``T``, which the
+    formula parser weighs with their own atomic masses.  Another labelled atom
+    (``[13C]``) is counted as its element in the formula (so the atoms still balance),
+    and the difference between its isotope's mass and the element's standard atomic
+    weight is returned apart.
+
+    Returns
+    -------
+    tuple
+        (formula, mass to add to the formula's molar mass [g/mol]).  Isotope masses are
+        from RDKit's periodic table (atomic masses of the isotopes).
+    """
+    from rdkit import Chem
+    from rdkit.Chem import rdMolDescriptors
+
+    from routeplan.chemistry.elements import atomic_weight
+
+    formula = rdMolDescriptors.CalcMolFormula(mol, True, True)  # separate isotopes, H isotopes as D, T
+    if "[" not in formula:
+        return formula, 0.0
+    table = Chem.GetPeriodicTable()
+    shift = 0.0
+    for atom in mol.GetAtoms():
+        iso = atom.GetIsotope()
+        if iso and not (atom.GetAtomicNum() == 1 and iso in (2, 3)):
+            shift += table.GetMassForIsotope(atom.GetAtomicNum(), iso) - atomic_weight(atom.GetSymbol())
+    plain = Chem.Mol(mol)
+    for atom in plain.GetAtoms():
+        if not (atom.GetAtomicNum() == 1 and atom.GetIsotope() in (2, 3)):
+            atom.SetIsotope(0)
+    return rdMolDescriptors.CalcMolFormula(plain, True, True), shift
 
 
 def _bad(m) -> frozenset:
