@@ -6,7 +6,7 @@ from __future__ import annotations
 
 import pytest
 
-from conftest import run_cli, write_route
+from conftest import run_cli, run_edited, write_route
 from routeplan.chemistry.formula import MAX_COUNT, molar_mass_value, parse_formula
 from routeplan.errors import FormulaError
 from test_load_bad_routes import change, line_of
@@ -65,9 +65,7 @@ def test_a_count_with_a_leading_zero_suggests_the_letter_O():
 
 
 def test_a_leading_zero_in_a_route_stops_the_plan_at_the_formula(tmp_path, good_text):
-    text = change(good_text, [("formula: C12H15NO4", "formula: C12H15N04")])
-    path = write_route(tmp_path, text)
-    result = run_cli("check", path)
+    text, path, result = run_edited(tmp_path, good_text, [("formula: C12H15NO4", "formula: C12H15N04")])
     assert result.exit_code == 2
     assert f"{path}:{line_of(text, 'C12H15N04')}:" in result.stderr
     assert "was the letter O meant, as in 'C12H15NO4'?" in result.stderr

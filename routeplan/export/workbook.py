@@ -67,7 +67,7 @@ def _utf16_len(text: str) -> int:
 
 
 def _clip(text: str, units: int) -> str:
-    while _utf16_len(text) > units:
+    while text and _utf16_len(text) > units:
         text = text[:-1]
     return text
 
@@ -91,7 +91,7 @@ def safe_sheet_name(base: str, suffix: str, taken: set[str]) -> str:
     while True:
         extra = suffix if n == 1 else f"{suffix} ({n})"
         name = _clip(clean, MAX_SHEET_NAME - _utf16_len(extra)).rstrip(" '")
-        name = (name or "step") + extra
+        name = _clip((name or "step") + extra, MAX_SHEET_NAME)  # a suffix longer than a sheet name is cut
         if name.casefold() not in taken:
             taken.add(name.casefold())
             return name

@@ -28,6 +28,7 @@ from typing import TYPE_CHECKING
 
 from routeplan.units import unit
 from routeplan.errors import Problem
+from routeplan.plan.guards import check_batches
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import StepPlan
@@ -155,6 +156,7 @@ def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
             batches, fill = 1, None
         else:
             usable = (vessel.volume * vessel.max_fill).to(unit("L"))
+            check_batches(route, sp.id, vessel, volume.m_as(unit("L")), usable.m_as(unit("L")))
             batches = max(1, math.ceil(volume.m_as(unit("L")) / usable.m_as(unit("L")) - 1e-9))
             fill = volume.m_as(unit("L")) / batches / vessel.volume.m_as(unit("L"))
             if batches > MANY_BATCHES:

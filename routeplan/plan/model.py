@@ -324,6 +324,9 @@ class Plan:
         Stock comparison, when a stock list was given.
     yield_basis : str
         Which step yields the walk used: ``"expected"``, ``"low"`` or ``"high"``.
+    yields_without_range : tuple of str
+        Ids of the steps without the ``low`` (or ``high``) yield asked for, planned at
+        their expected yield instead; empty at the expected yields.
     """
 
     route: "Route"
@@ -337,6 +340,7 @@ class Plan:
     metrics: Any = None
     stock: StockPlan | None = None
     yield_basis: str = "expected"
+    yields_without_range: tuple[str, ...] = ()
 
     def __hash__(self) -> int:
         return id(self)

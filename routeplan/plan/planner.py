@@ -72,6 +72,9 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     if not amount.magnitude > 0:
         raise PlanError(f"the target mass must be positive, got {amount:~P}",
                         hint="give a mass such as '25 kg'")
+    from routeplan.plan import guards
+
+    guards.check_target(float(amount.magnitude), route.target.overage, route.target.location)
 
     on_hand, source, from_stock = None, None, None
     if stock is not None:
@@ -84,6 +87,10 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     warnings: list[Problem] = list(route.warnings)
     n_target = target_moles(route, amount)
     steps = walk_steps(route, n_target, yields=yields, from_stock=from_stock)
+    guards.check_amounts(route, steps)
+    no_range = guards.steps_without_range(route, yields)
+    if no_range:
+        warnings.append(guards.range_warning(route, yields, no_range))
 
     from routeplan.plan import campaign
 
@@ -100,6 +107,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         overall_yield=overall_yield(route, steps, n_target),
         warnings=tuple(warnings),
         yield_basis=yields,
+        yields_without_range=no_range,
     )
     from dataclasses import replace
 

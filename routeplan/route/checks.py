@@ -26,13 +26,12 @@ from typing import Any
 
 from routeplan.errors import EquationError, FormulaError, Problem
 from routeplan.route import checks_plausibility as plausible
+from routeplan.route.checks_plausibility import MOLAR_MASS_TOLERANCE
 from routeplan.route.schema import CHARGE_BASES, MaterialModel, StepModel, TargetModel, VesselModel
 from routeplan.route.yamlpos import Positions
 
 __all__ = ["Parts", "Facts", "check_parts", "suggest", "MOLAR_MASS_TOLERANCE"]
 
-#: Largest relative difference allowed between a given molar mass and the formula's [-].
-MOLAR_MASS_TOLERANCE = 1e-3
 
 #: Largest relative difference allowed between a material's density and its solution's [-].
 _DENSITY_TOLERANCE = 1e-3
@@ -132,7 +131,14 @@ class _Checker:
         self.problems.append(Problem(severity, message, self.pos.at(path, key=key, show=show), step, hint))
 
     def unknown_material(self, name: str, path: tuple, what: str, step: str | None = None) -> None:
+        from routeplan.route.schema import lookalike_hint
+
         hint = suggest(name, self.parts.material_keys, formulas=self.facts.formulas)
+        near = [k for k in self.parts.material_keys if lookalike_hint(k) and lookalike_hint(k).endswith(f"'{name}'")]
+        if near:
+            hint = f"the material is defined as '{near[0]}', whose " + lookalike_hint(near[0]).removeprefix("the ")
+        elif lookalike_hint(name):
+            hint = lookalike_hint(name).replace("the key holds", f"'{name}' holds", 1)
         self.add("error", path, f"{what} '{name}' is not a material of this route", hint or
                  "add it under 'materials'", step=step)
 
@@ -174,10 +180,10 @@ class _Checker:
             if m.solution is not None:
                 self.solution(key, m)
 
-    def found(self, findings) -> bool:
+    def found(self, findings, step: str | None = None) -> bool:
         """Add plausibility findings (:mod:`routeplan.route.checks_plausibility`); True if any."""
         for f in findings:
-            self.add(f.severity, f.path, f.message, f.hint)
+            self.add(f.severity, f.path, f.message, f.hint, step=step)
         return bool(findings)
 
     def compare(self, path: tuple, value, what: str, reference, source: str) -> None:
@@ -270,6 +276,11 @@ class _Checker:
                 self.add("error", here + ("vessel",), f"vessel '{s.vessel}' is not in equipment",
                          hint or "valid vessels: " + ", ".join(self.parts.equipment), step=s.id)
             y = s.yield_
+            for which in ("expected", "low", "high"):
+                value = getattr(y, which, None) if y is not None else None
+                if value is not None:
+                    at = here + ("yield",) + ((which,) if self.raw_yield(i) is not None else ())
+                    self.found(plausible.yield_findings(at, s.id, which, value), step=s.id)
             for bound, ok in (("low", y is None or y.low is None or y.low <= y.expected),
                               ("high", y is None or y.high is None or y.expected <= y.high)):
                 if not ok:
@@ -329,9 +340,13 @@ class _Checker:
                 continue
             bases = [b for b in CHARGE_BASES if getattr(c, b) is not None]
             if len(bases) > 1:
-                self.add("error", at + (bases[1],), f"the line gives both {bases[0]} and {bases[1]}",
+                self.add("error", at + (bases[1],), f"the line of {c.material} gives both {bases[0]} and {bases[1]}",
                          "a charge line takes at most one basis", key=True, step=s.id)
             basis = bases[0] if bases else None
+            if basis is not None and len(bases) == 1 and not (eq_ok and c.material == limiting):
+                role = c.role or _default_role(basis, c.material in reactants)
+                self.found(plausible.charge_findings(at + (basis,), c.material, basis, getattr(c, basis), role),
+                           step=s.id)
             if basis in ("equiv", "mol_percent"):
                 self.molar_use.setdefault(c.material, at + (basis,))
             if basis == "volumes":
@@ -435,8 +450,14 @@ class _Checker:
                      f"{len(priced)} material(s) have a price but the route has no currency; "
                      "no cost will be computed", "add e.g. 'currency: EUR' at the top level")
 
+    def raw_yield(self, i: int):
+        """What the file gives as ``steps[i].yield`` (a mapping or a plain value), by position."""
+        return "mapping" if ("steps", i, "yield", "expected") in self.pos.values else None
+
     def target(self) -> None:
         t = self.parts.target
+        if t is not None and getattr(t, "overage", None):
+            self.found(plausible.overage_findings(("target", "overage"), t.overage))
         if t is None or t.material is None:
             return
         if not self.known(t.material):
@@ -474,6 +495,13 @@ class _Checker:
             self.add("error", ("target", "material"), f"no step makes the target '{t.material}' as its product",
                      (f"it is only a by-product of {', '.join(byproduct)}; set that step's 'product'"
                       if byproduct else "add the step that makes it"))
+        elif t is not None and t.material in made_by and steps[made_by[t.material]].isolated is False:
+            i = made_by[t.material]
+            self.add("error", ("steps", i, "isolated"),
+                     f"step {steps[i].id} makes the target '{t.material}' but says 'isolated: false': a product "
+                     "that is never isolated cannot be delivered by mass",
+                     "remove 'isolated: false' from the target step (the target is isolated at its assay)",
+                     step=steps[i].id)
         self.graph(steps, made_by)
 
     def graph(self, steps: list[StepModel], made_by: dict[str, int]) -> None:
@@ -564,6 +592,14 @@ def smiles_formula(mol) -> tuple[str, float]:
         if not (atom.GetAtomicNum() == 1 and atom.GetIsotope() in (2, 3)):
             atom.SetIsotope(0)
     return rdMolDescriptors.CalcMolFormula(plain, True, True), shift
+
+
+def _default_role(basis: str | None, reactant: bool) -> str:
+    """The role of a charge line that gives none (route format: a reactant of the equation
+    is a reactant, ``mol_percent`` a catalyst, ``volumes`` a solvent, else a reagent)."""
+    if reactant:
+        return "reactant"
+    return {"mol_percent": "catalyst", "volumes": "solvent"}.get(basis, "reagent")
 
 
 def _bad(m) -> frozenset:

@@ -25,7 +25,7 @@ from typing import Annotated, Any
 from pydantic import TypeAdapter, ValidationError
 
 from routeplan.errors import Location, Problem, RouteError
-from routeplan.route.checks import Facts, Parts, check_parts
+from routeplan.route.checks import Facts, Parts, _default_role, check_parts
 from routeplan.route.model import Charge, Material, Route, Solution, Source, Step, Target, Vessel, Yield
 from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepModel, TargetModel, VesselModel, describe_value,
                                     keys_of, validation_problems)
@@ -261,12 +261,6 @@ def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Mater
         smiles=m.smiles, molar_mass=facts.molar_masses.get(key), assay=m.assay if m.assay is not None else 1.0,
         density=density, solution=solution, price=m.price, hazards=tuple(m.hazards or ()), notes=m.notes,
         location=pos.at(("materials", key), key=True))
-
-
-def _default_role(basis: str | None, reactant: bool) -> str:
-    if reactant:
-        return "reactant"
-    return {"mol_percent": "catalyst", "volumes": "solvent"}.get(basis, "reagent")
 
 
 def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
