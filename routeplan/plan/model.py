@@ -327,6 +327,9 @@ class Plan:
     yields_without_range : tuple of str
         Ids of the steps without the ``low`` (or ``high``) yield asked for, planned at
         their expected yield instead; empty at the expected yields.
+    uncertainty : Uncertainty or None
+        Yield draws around the plan (:mod:`routeplan.plan.uncertainty`), when a
+        confidence was asked for.
     """
 
     route: "Route"
@@ -341,6 +344,7 @@ class Plan:
     stock: StockPlan | None = None
     yield_basis: str = "expected"
     yields_without_range: tuple[str, ...] = ()
+    uncertainty: Any = None
 
     def __hash__(self) -> int:
         return id(self)
