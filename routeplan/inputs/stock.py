@@ -19,7 +19,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any, Mapping
 
 from routeplan.units import unit
-from routeplan.errors import Location, QuantityError, StockError
+from routeplan.errors import Location, QuantityError, StockError, not_a_regular_file
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -114,8 +114,9 @@ def _read_yaml(route, path: Path, data: bytes) -> dict[str, Any]:
     return out
 
 
-def _table(route, path: Path, rows: list[list[Any]], cell) -> dict[str, Any]:
-    """Read header + rows; ``cell(row, col)`` names a cell for messages."""
+def _table(route, path: Path, rows: list[list[Any]], cell, formula=None) -> dict[str, Any]:
+    """Read header + rows; ``cell(row, col)`` names a cell for messages; ``formula(row,
+    col)`` gives the formula a workbook cell holds without a stored value (or None)."""
     if not rows:
         raise StockError("the stock table is empty; it needs the columns material, amount, unit",
                          location=Location(str(path)))
@@ -139,6 +140,15 @@ def _table(route, path: Path, rows: list[list[Any]], cell) -> dict[str, Any]:
                              location=Location(str(path), r, None, cell(r, len(header))),
                              hint="a decimal comma or a stray comma splits a field; quote it or remove it")
         get = (lambda c: row[idx[c]] if idx[c] < len(row) else None)
+        for name in _COLUMNS:
+            empty = get(name) is None or str(get(name)).strip() == ""
+            held = formula(r, idx[name]) if formula is not None and empty else None
+            if held:
+                raise StockError(f"cell {cell(r, idx[name])} holds the formula {held} but no value: no spreadsheet "
+                                 "has calculated it since it was written",
+                                 location=Location(str(path), r, None, cell(r, idx[name])),
+                                 hint="open the file in a spreadsheet and save it (that stores the values), "
+                                      "or type the value itself")
         key = str(get("material") or "").strip()
         amount, unit = get("amount"), str(get("unit") or "").strip()
         where = Location(str(path), r, None, cell(r, idx["material"]))
@@ -168,6 +178,10 @@ def read_stock(route: "Route", path: str | Path) -> dict[str, "pint.Quantity"]:
         material listed twice.
     """
     path = Path(path)
+    odd = not_a_regular_file(path)
+    if odd is not None:
+        raise StockError(f"the stock file {odd}", location=Location(str(path)),
+                         hint="give a stock list: .yaml, .csv or .xlsx")
     try:
         data = path.read_bytes()
     except OSError as exc:
@@ -194,9 +208,30 @@ def read_stock(route: "Route", path: str | Path) -> dict[str, "pint.Quantity"]:
         ws = wb.worksheets[0]
         rows = [list(r) for r in ws.iter_rows(values_only=True)]
         wb.close()
-        return _table(route, path, rows, lambda r, c: f"{ws.title}!{get_column_letter(c + 1)}{r}")
+        return _table(route, path, rows, lambda r, c: f"{ws.title}!{get_column_letter(c + 1)}{r}",
+                      _formulas(data))
     raise StockError(f"unknown stock file type '{path.suffix}'", location=Location(str(path)),
                      hint="use .yaml, .csv or .xlsx")
+
+
+def _formulas(data: bytes):
+    """``formula(row, col)``: the formula text of a cell of the first sheet (1-based row,
+    0-based column), or None; read only when a cell has no value, since a workbook
+    written by a program may hold formulas whose values were never calculated."""
+    cache: dict = {}
+
+    def formula(r: int, c: int):
+        import openpyxl
+
+        if "cells" not in cache:
+            wb = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=False)
+            cache["cells"] = [list(row) for row in wb.worksheets[0].iter_rows(values_only=True)]
+            wb.close()
+        cells = cache["cells"]
+        value = cells[r - 1][c] if r - 1 < len(cells) and c < len(cells[r - 1]) else None
+        return value if isinstance(value, str) and value.startswith("=") else None
+
+    return formula
 
 
 def load_stock(route: "Route", stock: "str | Path | Mapping[str, pint.Quantity]"):

@@ -24,7 +24,7 @@ from typing import Annotated, Any
 
 from pydantic import TypeAdapter, ValidationError
 
-from routeplan.errors import Location, Problem, RouteError
+from routeplan.errors import Location, Problem, RouteError, not_a_regular_file
 from routeplan.route.checks import Facts, Parts, _default_role, check_parts
 from routeplan.route.model import Charge, Material, Route, Solution, Source, Step, Target, Vessel, Yield
 from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepModel, TargetModel, VesselModel, describe_value,
@@ -57,6 +57,9 @@ def load_route(path: str | os.PathLike) -> Route:
         Listing every problem found, each with file, line, column and key path.
     """
     name = os.fspath(path)
+    odd = not_a_regular_file(name)
+    if odd is not None and not os.path.isdir(name):
+        raise _one(name, odd, "give the route file itself (YAML text)")
     try:
         size = os.path.getsize(name)
         if size > MAX_BYTES:
