@@ -43,7 +43,7 @@ _DECIMAL_COMMA_RE = re.compile(r"^\s*[+-]?\d+,\d")
 _THOUSANDS_RE = re.compile(r"^\s*(?P<sign>[+-]?)(?P<head>\d{1,3})(?P<groups>(?:,\d{3})+)(?![\d.,])(?P<rest>.*)$")
 
 
-def _comma_error(text: str, where, expect: str | None = None) -> QuantityError:
+def _comma_error(text: str, where, expect: str | None = None, *, dimension: str | None = None) -> QuantityError:
     """The error for a number written with a comma: both readings where the comma may
     separate thousands (``1,000 L``), else the decimal point to write."""
     m = _THOUSANDS_RE.match(text)
@@ -58,9 +58,10 @@ def _comma_error(text: str, where, expect: str | None = None) -> QuantityError:
                        f"{decimal}{unit} (a decimal comma)")
         else:
             message = f"'{text.strip()}' has thousands separators ({whole}{unit}?), which are not read"
-        return QuantityError(message, location=where, hint="write the amount meant without a comma")
+        return QuantityError(message, location=where, text=text, dimension=dimension,
+                             hint="write the amount meant without a comma")
     return QuantityError(f"'{text}' uses a decimal comma" + (f"; expected {expect}" if expect else ""),
-                         location=where, hint=f"write '{text.replace(',', '.', 1).strip()}' with a decimal point")
+                         location=where, text=text, dimension=dimension, hint=f"write '{text.replace(',', '.', 1).strip()}' with a decimal point")
 # a percent or a bare count inside a quantity would be multiplied in silently ('10 % kg')
 _NOT_IN_A_QUANTITY = re.compile(r"%|\bpercent\b|\bdimensionless\b|\bppm\b|\bppb\b")
 _TON = re.compile(r"\btons?\b")
@@ -103,18 +104,35 @@ def unit(name: str) -> "pint.Unit":
     return registry().Unit(name)
 
 
+@functools.lru_cache(maxsize=1024)
+def _factor(units: "pint.Unit", name: str) -> float | None:
+    """The factor from ``units`` to the unit ``name`` [-], or None for an offset unit (degC)."""
+    reg = registry()
+    one = reg.Quantity(1.0, units)
+    if not one._is_multiplicative:
+        return None
+    return float(one.m_as(unit(name)))
+
+
 def magnitude(quantity: "pint.Quantity | None", name: str) -> float | None:
     """The magnitude of ``quantity`` in unit ``name`` as a float, or None for None.
 
-    Where a plan's numbers are written out (JSON, tables, metrics), this is the one
-    conversion, through the cached unit objects.
+    Where a plan's numbers are written out (JSON, tables, metrics) and where the planner
+    reads a route's quantities, this is the one conversion: a factor from the quantity's
+    unit to ``name`` is computed once per pair of units and cached, so a conversion in a
+    loop is one multiplication (an offset unit such as degC goes through pint each time).
 
     Examples
     --------
     >>> magnitude(Q(1.5, "kg"), "g")
     1500.0
     """
-    return None if quantity is None else float(quantity.m_as(unit(name)))
+    if quantity is None:
+        return None
+    factor = _factor(quantity.units, name)
+    if factor is None:
+        return float(quantity.m_as(unit(name)))
+    return float(quantity.magnitude) * factor
 
 
 def dimension_name(quantity: "pint.Quantity") -> str:
@@ -163,47 +181,52 @@ def parse_quantity(text: Any, dimension: str, *, where: Location | None = None) 
     spec, example = DIMENSIONS[dimension]
     expect = f"{_article(dimension)} such as '{example}'"
     if isinstance(text, bool) or not isinstance(text, (str, int, float)):
-        raise QuantityError(f"expected {expect}, got {text!r}", location=where)
+        raise QuantityError(f"expected {expect}, got {text!r}", location=where, text=text, dimension=dimension)
     if isinstance(text, (int, float)):
         raise QuantityError(
             f"{text!r} has no unit; {_article(dimension)} needs one",
-            location=where,
+            location=where, text=text, dimension=dimension,
             hint=f"write it with its unit, e.g. '{text} {example.split()[1]}'",
         )
     if _DECIMAL_COMMA_RE.match(text):
-        raise _comma_error(text, where, expect)
+        raise _comma_error(text, where, expect, dimension=dimension)
     m = _QUANTITY_RE.match(text)
     if not m:
-        raise QuantityError(f"'{text}' is not a number followed by a unit; expected {expect}", location=where)
+        raise QuantityError(f"'{text}' is not a number followed by a unit; expected {expect}",
+                            location=where, text=text, dimension=dimension)
     unit = m.group("unit")
     if not unit:
         raise QuantityError(
             f"'{text}' has no unit; {_article(dimension)} needs one",
-            location=where,
+            location=where, text=text, dimension=dimension,
             hint=f"write it with its unit, e.g. '{m.group('num')} {example.split()[1]}'",
         )
     bad = _NOT_IN_A_QUANTITY.search(unit)
     if bad:
         raise QuantityError(f"'{text}': '{bad.group(0)}' does not belong in {_article(dimension)}",
-                            location=where, hint=f"write {expect}")
+                            location=where, text=text, dimension=dimension, hint=f"write {expect}")
     if _TON.search(unit):
         raise QuantityError(f"'{text}': 'ton' is ambiguous (a US ton is 907.18 kg, a metric one 1000 kg)",
-                            location=where, hint="write 't' or 'tonne' for 1000 kg, or 'short_ton' / 'long_ton'")
+                            location=where, text=text, dimension=dimension,
+                            hint="write 't' or 'tonne' for 1000 kg, or 'short_ton' / 'long_ton'")
     unit = _POWER.sub(r"\1**\2", unit)  # cm3 and m3 as chemists write them
     ureg = registry()
     try:
         units = ureg.parse_units(unit)
     except Exception:
-        raise QuantityError(f"'{text}': unknown unit '{unit}'; expected {expect}", location=where) from None
+        raise QuantityError(f"'{text}': unknown unit '{unit}'; expected {expect}",
+                            location=where, text=text, dimension=dimension) from None
     value = float(m.group("num"))
     if not math.isfinite(value) or (value != 0 and not 1e-30 < abs(value) < 1e30):
-        raise QuantityError(f"'{text}': {m.group('num')} is out of any sensible range", location=where,
+        raise QuantityError(f"'{text}': {m.group('num')} is out of any sensible range",
+                            location=where, text=text, dimension=dimension,
                             hint=f"write {expect}")
     q = ureg.Quantity(value, units)
     if q.dimensionality != ureg.get_dimensionality(spec):
         found = dimension_name(q)
         found = found if found.startswith(("a ", "[")) else _article(found)
-        raise QuantityError(f"'{text}' is {found}, but {expect} is needed", location=where)
+        raise QuantityError(f"'{text}' is {found}, but {expect} is needed",
+                            location=where, text=text, dimension=dimension)
     return q
 
 
@@ -240,11 +263,11 @@ def parse_fraction(value: Any, *, where: Location | None = None, allow_zero: boo
     """
     if isinstance(value, bool):
         raise QuantityError(f"expected a percent such as '85 %' or a fraction such as 0.85, got {value!r}",
-                            location=where)
+                            location=where, text=value)
     if isinstance(value, (int, float)):
         frac = float(value)
         if frac != frac or frac in (float("inf"), float("-inf")):
-            raise QuantityError(f"expected a percent such as '85 %', got {value!r}", location=where)
+            raise QuantityError(f"expected a percent such as '85 %', got {value!r}", location=where, text=value)
         if frac > 1:
             if frac > 100 and not allow_above_one:
                 hint = "a percent here is at most 100 %"
@@ -253,7 +276,7 @@ def parse_fraction(value: Any, *, where: Location | None = None, allow_zero: boo
             else:
                 hint = f"write '{value:g} %' for percent, or {frac / 100:g} as a fraction"
             raise QuantityError(f"{value!r} is above 1; a plain number here is a fraction",
-                                location=where, hint=hint)
+                                location=where, text=value, hint=hint)
     elif isinstance(value, str):
         if _DECIMAL_COMMA_RE.match(value):
             raise _comma_error(value, where)
@@ -266,17 +289,18 @@ def parse_fraction(value: Any, *, where: Location | None = None, allow_zero: boo
             except ValueError:
                 raise QuantityError(
                     f"'{value}' is not a percent; expected e.g. '85 %' or a fraction such as 0.85",
-                    location=where) from None
+                    location=where, text=value) from None
             return parse_fraction(frac, where=where, allow_zero=allow_zero, allow_above_one=allow_above_one)
         if frac > 1 and not allow_above_one:
-            raise QuantityError(f"'{value}' is above 100 %", location=where)
+            raise QuantityError(f"'{value}' is above 100 %", location=where, text=value)
     else:
         raise QuantityError(f"expected a percent such as '85 %' or a fraction such as 0.85, got {value!r}",
-                            location=where)
+                            location=where, text=value)
     if frac < 0:
-        raise QuantityError(f"{value!r} is negative; expected a percent between 0 and 100 %", location=where)
+        raise QuantityError(f"{value!r} is negative; expected a percent between 0 and 100 %",
+                            location=where, text=value)
     if frac == 0 and not allow_zero:
-        raise QuantityError(f"{value!r} is zero; expected a percent above 0", location=where)
+        raise QuantityError(f"{value!r} is zero; expected a percent above 0", location=where, text=value)
     return frac
 
 

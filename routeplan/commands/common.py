@@ -5,6 +5,7 @@ from __future__ import annotations
 import click
 
 from routeplan import CAUTION
+from routeplan.vocab import Severity
 
 
 def echo_err(text: str) -> None:
@@ -15,7 +16,7 @@ def echo_err(text: str) -> None:
 def echo_warnings(problems, *, strict: bool = False) -> None:
     """Print warnings to standard error, one per line."""
     for p in problems:
-        echo_err(("error" if strict else "warning") + ": " + p.render())
+        echo_err(f"{Severity.ERROR if strict else Severity.WARNING}: {p.render()}")
 
 
 def caution_line() -> str:

@@ -6,6 +6,7 @@ import click
 
 from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
                                        echo_warnings, finish_outputs, output_set)
+from routeplan.vocab import YieldCase
 
 
 @click.command("compare")
@@ -17,7 +18,7 @@ from routeplan.commands.common import (caution_line, check_output_paths, confide
               help="Write the comparison as JSON to FILE ('-' for standard output).")
 @click.option("--xlsx", "xlsx_out", metavar="FILE",
               help="Write the comparison as a workbook to FILE.")
-@click.option("--yields", "yields", type=click.Choice(["expected", "low", "high"]), default="expected",
+@click.option("--yields", "yields", type=click.Choice([str(y) for y in YieldCase]), default=str(YieldCase.EXPECTED),
               show_default=True, help="Which yield of each step every route is planned with.")
 @click.option("--confidence", "confidence", metavar="PERCENT",
               help='Draw every route\'s step yields from their ranges and compare the probability of delivering '
@@ -53,7 +54,7 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
     level = confidence_option(confidence, draws, seed)
     loaded = [load_route(path) for path in routes]
-    plans, notes = plan_for_comparison(loaded, amount, yields=yields, confidence=level, draws=draws, seed=seed)
+    plans, notes = plan_for_comparison(loaded, amount, yields=YieldCase(yields), confidence=level, draws=draws, seed=seed)
     cmp = compare_plans(plans, notes)
     for label, plan in zip(cmp.labels, plans):
         # a warning without a file in its location would not say which route it is about

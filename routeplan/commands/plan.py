@@ -6,6 +6,7 @@ import click
 
 from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
                                        echo_warnings, finish_outputs, output_set)
+from routeplan.vocab import YieldCase
 
 
 @click.command("plan")
@@ -20,7 +21,7 @@ from routeplan.commands.common import (caution_line, check_output_paths, confide
               help="Write the plan's tables as CSV files into folder DIR (made if missing).")
 @click.option("--stock", "stock_file", metavar="FILE",
               help="Stock on hand (YAML, CSV or xlsx: material, amount, unit): say what it allows and what to buy.")
-@click.option("--yields", "yields", type=click.Choice(["expected", "low", "high"]), default="expected",
+@click.option("--yields", "yields", type=click.Choice([str(y) for y in YieldCase]), default=str(YieldCase.EXPECTED),
               show_default=True,
               help="Which yield of each step to plan with; 'low' sizes charges and purchases for the worst "
                    "case the yield ranges allow (a step without a range uses its expected yield).")
@@ -52,7 +53,8 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
     level = confidence_option(confidence, draws, seed)
     r = load_route(route)
-    plan = plan_route(r, amount, stock=stock_file, yields=yields, confidence=level, draws=draws, seed=seed)
+    plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), confidence=level, draws=draws,
+                      seed=seed)
     if strict and plan.warnings:
         echo_warnings(plan.warnings, strict=True)
         n = len(plan.warnings)

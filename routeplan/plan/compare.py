@@ -16,6 +16,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any, Sequence
 
 from routeplan.errors import CompareError, RouteplanError
+from routeplan.vocab import BetterIs, YieldCase
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -39,8 +40,9 @@ __all__ = [
     "tradeoff_sentence",
 ]
 
-LOWER = "lower"
-HIGHER = "higher"
+#: A row whose lowest value is best / whose highest value is best.
+LOWER = BetterIs.LOWER
+HIGHER = BetterIs.HIGHER
 
 #: Largest relative difference of two molar masses still taken as the same target [-]
 #: (the route format's tolerance between a formula and an explicit molar mass, 0.1 %).
@@ -68,7 +70,7 @@ class CompareRow:
     kind : str
         How to show a value: ``"count"``, ``"fraction"`` (shown as %), ``"ratio"``,
         ``"money"`` or ``"mass"``.
-    better : str or None
+    better : BetterIs or None
         :data:`LOWER`, :data:`HIGHER`, or None for a row that is not ranked by nature.
     values : tuple
         One value per route, in route order; None where there is none.
@@ -87,7 +89,7 @@ class CompareRow:
     short: str
     unit: str
     kind: str
-    better: str | None
+    better: BetterIs | None
     values: tuple[Any, ...]
     labels: tuple[str | None, ...] = ()
     best: tuple[int, ...] = ()
@@ -260,11 +262,11 @@ def comparison_amount(routes: Sequence["Route"], target: "pint.Quantity | str | 
 
 
 def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str | None" = None, *,
-                        yields: str = "expected", confidence: float | None = None, draws: int | None = None,
-                        seed: int | None = None):
+                        yields: YieldCase | str = YieldCase.EXPECTED, confidence: float | None = None,
+                        draws: int | None = None, seed: int | None = None):
     """Check the routes share a target, then plan each for the same target mass.
 
-    ``yields`` (``"expected"``, ``"low"`` or ``"high"``) is the step-yield basis every
+    ``yields`` (a :class:`~routeplan.vocab.YieldCase` or its word) is the step-yield basis every
     route is planned at (see :func:`routeplan.plan.planner.plan_route`).  With
     ``confidence`` [-], every route's yields are drawn (``draws``, ``seed``) and the
     comparison gains the probability of delivering and the target for that confidence.
@@ -282,7 +284,7 @@ def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str 
     amount, notes = comparison_amount(routes, target)
     plans = tuple(plan_route(r, amount, yields=yields, confidence=confidence, draws=draws, seed=seed)
                   for r in routes)
-    if yields != "expected":
+    if yields != YieldCase.EXPECTED:
         notes = [*notes, f"every route is planned at its steps' {yields} yields"]
         for r, p in zip(routes, plans):
             if p.yields_without_range:
@@ -299,7 +301,7 @@ def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str 
 # --------------------------------------------------------------------- ranking
 
 
-def best_indices(values: Sequence[float | None], better: str | None) -> tuple[int, ...]:
+def best_indices(values: Sequence[float | None], better: BetterIs | str | None) -> tuple[int, ...]:
     """Indices of the best values: the lowest, or the highest for :data:`HIGHER`.
 
     Values within a relative 1e-9 of the best tie.  Empty when ``better`` is None,

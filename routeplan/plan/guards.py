@@ -7,8 +7,8 @@ then hold ``inf``, ``nan`` or 1e300 kg, and sizing the batches would run for eve
 guards here stop the plan with a located error instead:
 
 - every amount of the walk must be finite and at most :data:`MAX_MASS_KG` (mass) or the
-  like in moles and litres;
-- a step may need at most :data:`MAX_BATCHES` batches in its vessel.
+  like in moles and litres (batch sizing refuses a step that needs more than
+  :data:`routeplan.plan.campaign.MAX_BATCHES` batches).
 
 They also say which steps have no yield range when the plan is asked for the low or the
 high yields (:func:`steps_without_range`), so that no output presents such a plan as a
@@ -21,13 +21,14 @@ import math
 from typing import TYPE_CHECKING
 
 from routeplan.errors import Location, PlanError, Problem
+from routeplan.vocab import Severity
 
 if TYPE_CHECKING:  # pragma: no cover
-    from routeplan.plan.model import StepPlan
+    from routeplan.plan.walk import Walked
     from routeplan.route.model import Route
 
-__all__ = ["MAX_MASS_KG", "MAX_MOL", "MAX_VOLUME_L", "MAX_BATCHES", "check_target", "check_amounts",
-           "check_batches", "steps_without_range", "range_warning"]
+__all__ = ["MAX_MASS_KG", "MAX_MOL", "MAX_VOLUME_L", "check_target", "check_amounts", "steps_without_range",
+           "range_warning"]
 
 #: Largest mass of one charge, product or target a plan may hold [kg]: a million tonnes,
 #: far beyond any campaign of a kilo lab or pilot plant (common practice, no source).
@@ -38,9 +39,6 @@ MAX_MOL = 1e12
 #: Largest volume of one charge or one step [L] (a million cubic metres; common practice,
 #: no source).
 MAX_VOLUME_L = 1e9
-#: Largest number of batches of one step: ten thousand batches is decades of plant time
-#: (common practice, no source); beyond it the vessel or a number is wrong.
-MAX_BATCHES = 10_000
 
 
 def _bad(x: float, limit: float) -> bool:
@@ -89,15 +87,17 @@ def _hint(route: "Route", step_id: str | None) -> str:
     return "check the target, the yields, the assays and the equivalents"
 
 
-def check_amounts(route: "Route", steps: "tuple[StepPlan, ...]") -> None:
+def check_amounts(route: "Route", walked: "Walked") -> None:
     """Refuse a walk whose amounts are not finite or beyond any campaign.
 
     Parameters
     ----------
     route : Route
         The route planned.
-    steps : tuple of StepPlan
-        The steps of the walk (before batches are sized).
+    walked : Walked
+        The backward walk (:func:`routeplan.plan.walk.walk_route`): per step the
+        limiting reagent [kg], the product [mol] and per charge line
+        ``(n [mol] or None, m [kg], V [L] or None)``.
 
     Raises
     ------
@@ -106,46 +106,22 @@ def check_amounts(route: "Route", steps: "tuple[StepPlan, ...]") -> None:
         above :data:`MAX_MOL`, a volume above :data:`MAX_VOLUME_L`, or a value that is not
         finite; the hint names the route's values that can cause it.
     """
-    from routeplan.units import magnitude
-
-    for sp in steps:
-        step = route.step(sp.id)
-        for c in sp.charges:
-            for what, q, unit, limit in (("mass", c.mass, "kg", MAX_MASS_KG), ("amount", c.mol, "mol", MAX_MOL),
-                                         ("volume", c.volume, "L", MAX_VOLUME_L)):
-                x = magnitude(q, unit)
-                if x is not None and _bad(x, limit):
-                    location = step.charges[c.order - 1].location if 1 <= c.order <= len(step.charges) else None
-                    raise PlanError(f"step {sp.id}: the {what} of {c.material} to charge would be {x:.4g} {unit}, "
-                                    f"beyond any campaign (more than {limit:.0e} {unit})",
-                                    location=location or step.location, step=sp.id, hint=_hint(route, sp.id))
-        for what, q, unit, limit in (("product", sp.product_mass, "kg", MAX_MASS_KG),
-                                     ("limiting reagent", sp.limiting_mass, "kg", MAX_MASS_KG)):
-            x = magnitude(q, unit)
-            if x is not None and _bad(x, limit):
-                raise PlanError(f"step {sp.id}: the {what} would be {x:.4g} {unit}, beyond any campaign",
-                                location=step.location, step=sp.id, hint=_hint(route, sp.id))
-
-
-def check_batches(route: "Route", step_id: str, vessel, volume_L: float, usable_L: float) -> None:
-    """Refuse a step that would need more than :data:`MAX_BATCHES` batches (or a count that
-    cannot be computed) in ``vessel``: the batch count is never formed from such numbers.
-
-    Parameters
-    ----------
-    volume_L : float
-        Volume of the step over the campaign [L].
-    usable_L : float
-        Working volume of one batch, ``volume × max_fill`` [L].
-    """
-    ratio = volume_L / usable_L if usable_L > 0 else math.inf
-    if not math.isfinite(ratio) or ratio > MAX_BATCHES:
-        shown = f"{ratio:.4g}" if math.isfinite(ratio) else "an endless number of"
-        raise PlanError(f"step {step_id} would need {shown} batches in vessel {vessel.key} "
-                        f"({vessel.volume.m_as('L'):.4g} L at {vessel.max_fill * 100:.4g} % fill), more than "
-                        f"{MAX_BATCHES:,}", location=vessel.location or route.step(step_id).location,
-                        step=step_id, hint="check the vessel's volume and max_fill, and " +
-                        _hint(route, step_id).removeprefix("check "))
+    limits = (("amount", "mol", MAX_MOL), ("mass", "kg", MAX_MASS_KG), ("volume", "L", MAX_VOLUME_L))
+    for sid, ws in walked.steps.items():
+        step = route.step(sid)
+        for j, numbers in enumerate(ws.charges):
+            for (what, unit, limit), x in zip(limits, numbers):
+                if x is not None and _bad(float(x), limit):
+                    c = step.charges[j] if j < len(step.charges) else None
+                    raise PlanError(f"step {sid}: the {what} of {c.material if c else 'a charge'} to charge would be "
+                                    f"{float(x):.4g} {unit}, beyond any campaign (more than {limit:.0e} {unit})",
+                                    location=(c.location if c else None) or step.location, step=sid,
+                                    hint=_hint(route, sid))
+        for what, x, unit, limit in (("limiting reagent", ws.m_lim, "kg", MAX_MASS_KG),
+                                     ("product", ws.n_product, "mol", MAX_MOL)):
+            if _bad(float(x), limit):
+                raise PlanError(f"step {sid}: the {what} would be {float(x):.4g} {unit}, beyond any campaign",
+                                location=step.location, step=sid, hint=_hint(route, sid))
 
 
 def steps_without_range(route: "Route", yields: str) -> tuple[str, ...]:
@@ -169,6 +145,6 @@ def range_warning(route: "Route", yields: str, missing: tuple[str, ...]) -> Prob
     else:
         what = (f"{'steps' if n > 1 else 'step'} {', '.join(missing)} {'have' if n > 1 else 'has'} no {yields} "
                 f"yield and {'are' if n > 1 else 'is'} planned at {'their' if n > 1 else 'its'} expected yield")
-    return Problem("warning", f"--yields {yields}: {what}: this is not a {case} case",
+    return Problem(Severity.WARNING, f"--yields {yields}: {what}: this is not a {case} case",
                    location=first.location, step=first.id,
                    hint="give a range, e.g. 'yield: {expected: 88 %, low: 80 %, high: 92 %}'")

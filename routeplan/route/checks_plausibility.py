@@ -26,6 +26,8 @@ import re
 from dataclasses import dataclass
 from typing import Any, Mapping
 
+from routeplan.vocab import Severity
+
 __all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "MOLAR_MASS_TOLERANCE", "CHARGE_RANGES",
            "LOWEST_USUAL_YIELD", "HIGHEST_USUAL_OVERAGE", "charge_findings", "yield_findings", "overage_findings", "density_findings", "molar_mass_findings",
            "solution_findings", "mass_balance_finding"]
@@ -87,15 +89,15 @@ class Finding:
 
     Parameters
     ----------
-    severity : str
-        ``"error"`` or ``"warning"``.
+    severity : Severity
+        :attr:`Severity.ERROR` or :attr:`Severity.WARNING`.
     path : tuple
         Key path in the route file, e.g. ``("materials", "HCl6M", "solution", "molarity")``.
     message, hint : str
         What is wrong, and what would be right.
     """
 
-    severity: str
+    severity: Severity
     path: tuple
     message: str
     hint: str | None = None
@@ -155,7 +157,7 @@ def density_findings(path: tuple, density) -> list[Finding]:
         hint = f"was {_g(fixed)} g/mL meant? {unit_words}"
     elif rho < low:
         hint += "; a gas charged by mass needs no density"
-    return [Finding("error", path, message, hint)]
+    return [Finding(Severity.ERROR, path, message, hint)]
 
 
 def molar_mass_findings(path: tuple, molar_mass) -> list[Finding]:
@@ -193,7 +195,7 @@ def molar_mass_findings(path: tuple, molar_mass) -> list[Finding]:
     hint = "check the unit and the decimal point"
     if m * 1000 >= h:
         hint = f"was {_g(m * 1000)} g/mol meant? " + hint
-    return [Finding("error", path, f"molar mass {shown} is less than that of a hydrogen atom, "
+    return [Finding(Severity.ERROR, path, f"molar mass {shown} is less than that of a hydrogen atom, "
                                    f"{h:.4g} g/mol, the lightest of all", hint)]
 
 
@@ -226,7 +228,7 @@ def solution_findings(key: str, solution, molar_mass) -> list[Finding]:
     rho = float(density.m_as("g/mL"))              # = kg of solution per litre
     out = []
     if solution.mass_fraction is not None and solution.mass_fraction >= 1 - _EQUAL:
-        out.append(Finding("error", here + ("mass_fraction",),
+        out.append(Finding(Severity.ERROR, here + ("mass_fraction",),
                            "a mass fraction of 100 % leaves no solvent: this is the neat compound, not a solution",
                            f"describe the neat material with 'density: {_g(rho)} g/mL' and no solution, "
                            f"or give the real mass fraction"))
@@ -236,7 +238,7 @@ def solution_findings(key: str, solution, molar_mass) -> list[Finding]:
         solute = c * m / 1000                       # kg of solute per litre
         if solute >= rho * (1 - _EQUAL):
             limit = rho * 1000 / m                  # mol/L at which the solute would be all the mass
-            out.append(Finding("error", here + ("molarity",),
+            out.append(Finding(Severity.ERROR, here + ("molarity",),
                                f"{_g(c)} mol/L × {_g(m)} g/mol is {_g(solute)} kg of solute per litre, but a litre "
                                f"of this solution, at {_g(rho)} g/mL, weighs only {_g(rho)} kg",
                                _molarity_hint(c, limit, rho)))
@@ -292,7 +294,7 @@ def mass_balance_finding(path: tuple, step_id: str | None, equation,
         return None
     who = f"step {step_id}" if step_id is not None else "the equation"
     how = "more" if diff > 0 else "less"
-    return Finding("warning", path,
+    return Finding(Severity.WARNING, path,
                    f"{who} does not balance by mass: the products weigh {_g(abs(diff))} g/mol {how} than the "
                    f"reactants ({_g(products)} vs {_g(reactants)} g/mol)",
                    "check the coefficients and the molar masses; atom economy would be wrong")
@@ -326,13 +328,13 @@ def charge_findings(path: tuple, material: str, basis: str, value: float, role: 
     if limit is None or value <= limit:
         return []
     if basis == "mol_percent":
-        return [Finding("error", path, f"{material} is charged at mol_percent: {_g(value)}, that is "
+        return [Finding(Severity.ERROR, path, f"{material} is charged at mol_percent: {_g(value)}, that is "
                                        f"{_g(value / 100)} equivalents, more than one",
                         f"{usual}; write 'equiv: {_g(value / 100)}' if that much is meant")]
     hint = usual
     if basis == "mass_ratio" and role == "catalyst" and value <= 100:
         hint += f"; for {_g(value)} wt % write 'mass_ratio: {_g(value / 100)}'"
-    return [Finding("warning", path, f"{material} is charged at {basis}: {_g(value)}, above the usual range "
+    return [Finding(Severity.WARNING, path, f"{material} is charged at {basis}: {_g(value)}, above the usual range "
                                      f"(more than {_g(limit)}) for a {role}", hint)]
 
 
@@ -352,7 +354,7 @@ def yield_findings(path: tuple, step_id: str, which: str, value: float) -> list[
     hint = "a step usually yields 10 to 100 %"
     if 1e-4 <= value < 0.01:  # '0.9 %' where the fraction 0.9 (90 %) was meant
         hint += f"; was the fraction {value * 100:.4g} ({value * 1e4:.4g} %) meant?"
-    return [Finding("warning", path, f"step {step_id}: {what} of {shown} is below the usual range "
+    return [Finding(Severity.WARNING, path, f"step {step_id}: {what} of {shown} is below the usual range "
                                      f"(less than {LOWEST_USUAL_YIELD * 100:g} %)", hint)]
 
 
@@ -366,7 +368,7 @@ def overage_findings(path: tuple, overage: float) -> list[Finding]:
     """
     if overage <= HIGHEST_USUAL_OVERAGE:
         return []
-    return [Finding("warning", path, f"an overage of {overage * 100:.4g} % is above the usual range "
+    return [Finding(Severity.WARNING, path, f"an overage of {overage * 100:.4g} % is above the usual range "
                                      f"(more than {HIGHEST_USUAL_OVERAGE * 100:g} %): the plan makes "
                                      f"{1 + overage:.4g} times the target",
                     "a planning margin is usually 0 to 20 %")]
