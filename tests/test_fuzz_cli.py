@@ -80,7 +80,8 @@ def _assert_promise(result, outputs=()) -> None:
         assert "error" in result.stderr, text[-2000:]
     for path in outputs:
         if path.suffix == ".json" and path.exists():
-            json.loads(path.read_text(encoding="utf-8"))  # whole, and no NaN or Infinity
+            json.loads(path.read_text(encoding="utf-8"),  # whole, and no NaN or Infinity
+                       parse_constant=lambda c: (_ for _ in ()).throw(AssertionError(f"{c} in {path}")))
     for path in outputs:
         folder = path.parent
         assert not [p for p in folder.iterdir() if p.name.startswith(".")], "temporary files left behind"
@@ -132,10 +133,10 @@ TARGETS = ["25 kg", "90 lb", "0 kg", "-1 kg", "1e400 kg", "1e20 kg", "1e-300 kg"
 @given(command=st.sampled_from(["plan", "compare", "check"]),
        target=st.none() | st.sampled_from(TARGETS),
        yields=st.none() | st.sampled_from(["low", "high", "expected", "worst"]),
-       strict=st.booleans(),
+       strict=st.booleans(), confidence=st.none() | st.sampled_from(["90 %", "0.5", "150 %", "x"]),
        outputs=st.lists(st.sampled_from(["json", "json-", "xlsx", "csv", "bad-xlsx", "missing-folder"]),
                         max_size=3, unique=True))
-def test_command_lines_keep_the_promise(command, target, yields, strict, outputs):
+def test_command_lines_keep_the_promise(command, target, yields, strict, confidence, outputs):
     demo = Path(__file__).resolve().parents[1] / "demo_routes"
     with tempfile.TemporaryDirectory() as tmp:
         tmp = Path(tmp)
@@ -147,6 +148,8 @@ def test_command_lines_keep_the_promise(command, target, yields, strict, outputs
                 args += ["--target", target]
             if yields is not None:
                 args += ["--yields", yields]
+            if confidence is not None:
+                args += ["--confidence", confidence, "--draws", "500"]
             for o in outputs:
                 args += {"json": ["--json", tmp / "o.json"], "json-": ["--json", "-"],
                          "xlsx": ["--xlsx", tmp / "o.xlsx"], "csv": ["--csv", tmp / "tables"],
