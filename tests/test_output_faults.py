@@ -187,3 +187,16 @@ def test_a_stock_xlsx_formula_without_a_stored_value_says_so(tmp_path):
     assert "cell stock!B3 holds the formula =B2*2 but no value" in result.stderr
     assert "open the file in a spreadsheet and save it" in result.stderr
     assert "no amount" not in result.stderr
+
+
+def test_every_file_a_plan_writes_counts_as_a_plan_file(tmp_path):
+    from routeplan.export.atomic import CSV_PLAN_FILES
+
+    stock = ROOT / "demo_routes" / "stock.yaml"
+    for route, extra in ((DEMO, ["--stock", stock]), (CONVERGENT, [])):
+        folder = tmp_path / route.stem
+        assert run_cli("plan", route, "--csv", folder, "-q", *extra).exit_code == 0
+        names = [p.name for p in folder.iterdir()]
+        assert "stock.csv" in names or route is CONVERGENT
+        assert all(CSV_PLAN_FILES.match(n) for n in names), names
+    assert not CSV_PLAN_FILES.match("my-notes.csv") and not CSV_PLAN_FILES.match("summary.csv.bak")

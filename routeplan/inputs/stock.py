@@ -12,14 +12,14 @@ What the stock allows and what to buy is computed in :mod:`routeplan.plan.stock`
 
 from __future__ import annotations
 
-import csv
 import difflib
-import io
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, Mapping
 
 from routeplan.units import unit
-from routeplan.errors import Location, QuantityError, StockError, not_a_regular_file
+from routeplan.errors import Location, QuantityError, StockError
+from routeplan.inputs.files import (TABLE_SUFFIXES, YAML_SUFFIXES, formula_cells, read_bytes, refuse_unevaluated,
+                                    table_rows, yaml_document)
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -88,19 +88,7 @@ def _check_intermediate(route: "Route", key: str, where: Location | None) -> Non
 
 
 def _read_yaml(route, path: Path, data: bytes) -> dict[str, Any]:
-    from ruamel.yaml import YAML
-    from ruamel.yaml.error import YAMLError
-
-    yaml = YAML(typ="rt", pure=True)
-    yaml.allow_duplicate_keys = False
-    try:
-        doc = yaml.load(data.decode("utf-8"))
-    except UnicodeDecodeError:
-        raise StockError("the stock file is not UTF-8 text", location=Location(str(path))) from None
-    except YAMLError as exc:
-        mark = getattr(exc, "problem_mark", None)
-        loc = Location(str(path), mark.line + 1, mark.column + 1) if mark else Location(str(path))
-        raise StockError(f"not valid YAML: {getattr(exc, 'problem', exc)}", location=loc) from None
+    doc = yaml_document(path, data, StockError, "stock file")
     if not isinstance(doc, dict) or not doc:
         raise StockError("a YAML stock list is a mapping of material to amount, e.g. 'toluene: 200 kg'",
                          location=Location(str(path)))
@@ -145,14 +133,7 @@ def _table(route, path: Path, rows: list[list[Any]], cell, formula=None) -> dict
                              hint="a decimal comma or a stray comma splits a field; quote it or remove it")
         get = (lambda c: row[idx[c]] if idx[c] < len(row) else None)
         for name in _COLUMNS:
-            empty = get(name) is None or str(get(name)).strip() == ""
-            held = formula(r, idx[name]) if formula is not None and empty else None
-            if held:
-                raise StockError(f"cell {cell(r, idx[name])} holds the formula {held} but no value: no spreadsheet "
-                                 "has calculated it since it was written",
-                                 location=Location(str(path), r, None, cell(r, idx[name])),
-                                 hint="open the file in a spreadsheet and save it (that stores the values), "
-                                      "or type the value itself")
+            refuse_unevaluated(formula, path, r, idx[name], get(name), cell, StockError)
         key = str(get("material") or "").strip()
         amount, unit = get("amount"), str(get("unit") or "").strip()
         where = Location(str(path), r, None, cell(r, idx["material"]))
@@ -184,60 +165,15 @@ def read_stock(route: "Route", path: str | Path) -> dict[str, "pint.Quantity"]:
         material listed twice.
     """
     path = Path(path)
-    odd = not_a_regular_file(path)
-    if odd is not None:
-        raise StockError(f"the stock file {odd}", location=Location(str(path)),
-                         hint="give a stock list: .yaml, .csv or .xlsx")
-    try:
-        data = path.read_bytes()
-    except OSError as exc:
-        raise StockError(f"cannot read the stock file: {exc.strerror}", location=Location(str(path))) from None
+    data = read_bytes(path, StockError, "stock file")
     suffix = path.suffix.lower()
-    if suffix in (".yaml", ".yml"):
+    if suffix in YAML_SUFFIXES:
         return _read_yaml(route, path, data)
-    if suffix == ".csv":
-        try:
-            text = data.decode("utf-8-sig")
-        except UnicodeDecodeError:
-            raise StockError("the stock file is not UTF-8 text", location=Location(str(path))) from None
-        rows = list(csv.reader(io.StringIO(text)))
-        return _table(route, path, rows, lambda r, c: f"row {r}")
-    if suffix in (".xlsx", ".xlsm"):
-        import openpyxl
-        from openpyxl.utils import get_column_letter
-
-        try:
-            wb = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=True)
-        except Exception as exc:  # openpyxl raises several kinds for a bad file
-            raise StockError(f"not a readable xlsx workbook ({type(exc).__name__})",
-                             location=Location(str(path))) from None
-        ws = wb.worksheets[0]
-        rows = [list(r) for r in ws.iter_rows(values_only=True)]
-        wb.close()
-        return _table(route, path, rows, lambda r, c: f"{ws.title}!{get_column_letter(c + 1)}{r}",
-                      _formulas(data))
+    if suffix in TABLE_SUFFIXES:
+        rows, cell = table_rows(path, data, StockError, "stock file")
+        return _table(route, path, rows, cell, formula_cells(path, data))
     raise StockError(f"unknown stock file type '{path.suffix}'", location=Location(str(path)),
                      hint="use .yaml, .csv or .xlsx")
-
-
-def _formulas(data: bytes):
-    """``formula(row, col)``: the formula text of a cell of the first sheet (1-based row,
-    0-based column), or None; read only when a cell has no value, since a workbook
-    written by a program may hold formulas whose values were never calculated."""
-    cache: dict = {}
-
-    def formula(r: int, c: int):
-        import openpyxl
-
-        if "cells" not in cache:
-            wb = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=False)
-            cache["cells"] = [list(row) for row in wb.worksheets[0].iter_rows(values_only=True)]
-            wb.close()
-        cells = cache["cells"]
-        value = cells[r - 1][c] if r - 1 < len(cells) and c < len(cells[r - 1]) else None
-        return value if isinstance(value, str) and value.startswith("=") else None
-
-    return formula
 
 
 def load_stock(route: "Route", stock: "str | Path | Mapping[str, pint.Quantity]"):

@@ -488,6 +488,10 @@ class Plan:
     uncertainty : Uncertainty or None
         Yield draws around the plan (:mod:`routeplan.plan.uncertainty`), when a
         confidence was asked for.
+    record : RecordPlan or None
+        With a campaign record: lots and their actual yields, what is in hand, the
+        projected target and what closes the gap (:class:`routeplan.plan.record.RecordPlan`);
+        the steps are then the rest of the campaign.
     """
 
     route: "Route"
@@ -503,6 +507,7 @@ class Plan:
     yield_basis: str = "expected"
     yields_without_range: tuple[str, ...] = ()
     uncertainty: "Uncertainty | None" = None
+    record: Any = None
 
     @property
     def target_mass(self) -> "pint.Quantity":

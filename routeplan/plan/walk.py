@@ -65,7 +65,8 @@ def shelf_moles(route: "Route", core: CoreRoute, shelf_kg: Mapping[str, float]) 
 
 
 def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
-               shelf_kg: Mapping[str, float] | None = None) -> Walked:
+               shelf_kg: Mapping[str, float] | None = None,
+               yield_of: Mapping[str, float] | None = None) -> Walked:
     """Walk ``route`` backward for ``amount_kg`` [kg] of target as isolated, before overage.
 
     Parameters
@@ -80,6 +81,9 @@ def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
         Intermediates on the shelf: key -> mass as isolated, at its assay [kg].  A step
         whose demand the shelf covers does not run, and so does a step that feeds only
         steps that do not run.
+    yield_of : Mapping[str, float], optional
+        Step id -> yield [-] to plan that step at instead of its ``yields`` yield (the
+        actual yield of a campaign record's lots, :mod:`routeplan.plan.record`).
 
     Raises
     ------
@@ -87,6 +91,11 @@ def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
         A charge whose numbers overflow (located at the step).
     """
     core = compile_route(route, yields)
+    if yield_of:
+        from dataclasses import replace
+
+        core = replace(core, steps=tuple(replace(s, yield_=yield_of[s.id]) if s.id in yield_of else s
+                                         for s in core.steps))
     n_target = target_amount(amount_kg, core.overage, core.target_kg_per_mol_pure)
     shelf = None if shelf_kg is None else shelf_moles(route, core, shelf_kg)
     steps = walk(core, n_target, shelf)
