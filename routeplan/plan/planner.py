@@ -156,7 +156,8 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         shelf_kg = {k: float(v.m_as(unit("kg"))) for k, v in shelf.items()} or None
 
     account, shelf_kg, yield_of = _record_inputs(route, record, shelf_kg, yields, record_yields)
-    walked = walk_route(route, amount_kg, yields=yields, shelf_kg=shelf_kg, yield_of=yield_of)
+    shelf_name = "the stock" if account is None else "what is in hand" if stock is None else "the stock and what is in hand"
+    walked = walk_route(route, amount_kg, yields=yields, shelf_kg=shelf_kg, yield_of=yield_of, shelf_name=shelf_name)
     guards.check_amounts(route, walked)
     no_range = guards.steps_without_range(route, yields)
     sized, batch_warnings = size_steps(route, walked)

@@ -66,7 +66,7 @@ def shelf_moles(route: "Route", core: CoreRoute, shelf_kg: Mapping[str, float]) 
 
 def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
                shelf_kg: Mapping[str, float] | None = None,
-               yield_of: Mapping[str, float] | None = None) -> Walked:
+               yield_of: Mapping[str, float] | None = None, shelf_name: str = "the stock") -> Walked:
     """Walk ``route`` backward for ``amount_kg`` [kg] of target as isolated, before overage.
 
     Parameters
@@ -84,6 +84,9 @@ def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
     yield_of : Mapping[str, float], optional
         Step id -> yield [-] to plan that step at instead of its ``yields`` yield (the
         actual yield of a campaign record's lots, :mod:`routeplan.plan.record`).
+    shelf_name : str
+        What the shelf is, in the reason a covered step does not run (``"the stock"``;
+        ``"what is in hand"`` for a campaign record's lots).
 
     Raises
     ------
@@ -105,7 +108,7 @@ def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
             w = steps[s.id]
             demanded = w.n_product + (w.n_taken or 0.0)
             if w.n_taken is not None and demanded > 0 and w.n_product == 0:
-                not_run[s.id] = f"the stock of {s.product} covers it"
+                not_run[s.id] = f"{shelf_name} of {s.product} covers it"
             elif demanded == 0:
                 users = [u for u in route.consumers.get(s.product, ()) if u in steps]
                 if users and all(u in not_run for u in users):
