@@ -322,7 +322,7 @@ def charge_findings(path: tuple, material: str, basis: str, value: float, role: 
     >>> charge_findings(("equiv",), "Ac2O", "equiv", 1.1, "reagent")
     []
     >>> charge_findings(("equiv",), "Ac2O", "equiv", 11, "reagent")[0].message
-    "Ac2O is charged at equiv: 11, above the usual range (more than 10) for a reagent"
+    'Ac2O is charged at equiv: 11, above the usual range (more than 10) for a reagent'
     """
     limit, usual = CHARGE_RANGES.get((basis, role), CHARGE_RANGES.get((basis, None), (None, "")))
     if limit is None or value <= limit:
