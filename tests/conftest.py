@@ -7,6 +7,7 @@ Use them from any test module::
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 
 import pytest
@@ -21,6 +22,13 @@ def write_route(tmp_path: Path, text: str, name: str = "route.yaml") -> Path:
     path = Path(tmp_path) / name
     path.write_text(text, encoding="utf-8")
     return path
+
+
+def missing_tool(reason: str) -> None:
+    """Skip on a developer's machine without an outside tool; under CI (CI set) fail instead."""
+    if os.environ.get("CI"):
+        pytest.fail(reason)
+    pytest.skip(reason)
 
 
 def run_cli(*args: str):

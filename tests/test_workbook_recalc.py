@@ -26,7 +26,6 @@ two column headings of 80 % or more (so 10-pt text prints at 8 pt or larger).
 
 from __future__ import annotations
 
-import os
 import re
 import shutil
 import subprocess
@@ -37,6 +36,7 @@ import openpyxl
 import pytest
 
 from routeplan.export.workbook import charge_sheet_names, write_workbook
+from conftest import missing_tool as _missing
 from test_workbook import WRITTEN, _raw_table, charge_table, close, make_plan
 from test_workbook_summary import column_widths, make_stock_plan, printed_px, stock_table
 
@@ -83,13 +83,6 @@ def _row_of(ws, material):
         if ws.cell(r, col["key"]).value == material:
             return r, col
     raise AssertionError(material)
-
-
-def _missing(reason: str) -> None:
-    """Skip on a developer's machine without the tool; in CI (CI set) a missing tool fails."""
-    if os.environ.get("CI"):
-        pytest.fail(reason)
-    pytest.skip(reason)
 
 
 @pytest.fixture(scope="module")

@@ -79,7 +79,7 @@ def finish_outputs(out: _Outputs) -> None:
 
 
 def check_output_paths(*, json_out: str | None = None, xlsx_out: str | None = None,
-                       csv_dir: str | None = None) -> None:
+                       csv_dir: str | None = None, html_out: str | None = None) -> None:
     """Refuse an output path that cannot work, before anything is computed or written.
 
     Every output is then written to a temporary file and moved into place only when all
@@ -118,6 +118,11 @@ def check_output_paths(*, json_out: str | None = None, xlsx_out: str | None = No
         if file_target("--xlsx", xlsx_out).suffix.lower() != ".xlsx":
             raise OutputError(f"'{xlsx_out}' does not end in .xlsx", location=Location(key="--xlsx"),
                               hint="a workbook is written as FILE.xlsx, so spreadsheets open it as one")
+    if html_out is not None:
+        if html_out == "-":
+            raise OutputError("the report cannot go to standard output", location=Location(key="--html"),
+                              hint="give a file name ending in .html")
+        file_target("--html", html_out)
     if csv_dir is not None:
         if not csv_dir.strip():
             raise OutputError("needs a folder name", location=Location(key="--csv"))

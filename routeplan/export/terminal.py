@@ -14,7 +14,7 @@ from rich.markup import escape
 from rich.table import Table
 
 from routeplan.views.metrics_text import metrics_lines
-from routeplan.views.tables import column_unit, raw_material_rows, step_charge_rows
+from routeplan.views.tables import charge_label, column_unit, fmt, raw_material_rows, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -99,20 +99,6 @@ class Printer:
             self.console.on_broken_pipe()
 
 
-def fmt(value: float | None, digits: int = 4) -> str:
-    """A number to ``digits`` significant figures, without exponent for everyday sizes."""
-    if value is None:
-        return "–"
-    if value == 0:
-        return "0"
-    if 1e-3 <= abs(value) < 1e6:
-        text = f"{value:.{digits}g}"
-        if "e" in text:  # e.g. 12345 at 4 digits
-            text = f"{value:.0f}"
-        return text
-    return f"{value:.{digits - 1}e}"
-
-
 def _step_table(sp, route, new_table=Table) -> Table:
     rows = step_charge_rows(sp)
     made_in = route.maker
@@ -132,11 +118,7 @@ def _step_table(sp, route, new_table=Table) -> Table:
         t.add_column(escape(f"m/batch [{mu}]"), justify="right")
         t.add_column(escape(f"V/batch [{vu}]"), justify="right")
     for r in rows:
-        name = r["material"]
-        if r["carried_from"]:
-            name += f" ({r['carried_from']}, in solution)"
-        elif r["intermediate"]:
-            name += f" ({made_in[r['material']]})"
+        name = charge_label(r, made_in)
         cells = [
             str(r["order"]), name, r["role"], fmt(r["equiv"], 3),
             fmt(None if r["mol"] is None else r["mol"] / nf),
