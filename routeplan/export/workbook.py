@@ -207,7 +207,11 @@ def write_workbook(plan: "Plan", path: str | os.PathLike, *, written: datetime |
         from routeplan.export.workbook_schedule import SCHEDULE_SHEET, write_schedule_sheet
 
         if plan.schedule is not None:
-            write_schedule_sheet(wb.add_worksheet(SCHEDULE_SHEET), st, plan, context)
+            from routeplan.export.workbook_records import protect
+
+            schedule = wb.add_worksheet(SCHEDULE_SHEET)
+            write_schedule_sheet(schedule, st, plan, context)
+            protect(schedule)  # like every sheet: no password, nothing to type in
         summary.activate()
         try:
             wb.close()

@@ -130,6 +130,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     from routeplan.plan.charges import step_plans
     from routeplan.plan.metrics import compute_metrics
     from routeplan.plan.model import Plan
+    from routeplan.plan.purchase import with_packs
     from routeplan.plan.totals import overall_yield, raw_material_totals
     from routeplan.units import unit
 
@@ -168,7 +169,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     steps = step_plans(route, walked, sized)
     draft = Draft(route=route, target_material=route.target.material,
                   target_kg=amount_kg * (1 + route.target.overage), target_n_mol=walked.n_target_mol,
-                  steps=steps, raw_materials=raw_material_totals(route, steps),
+                  steps=steps, raw_materials=with_packs(route, raw_material_totals(route, steps)),
                   overall_yield=overall_yield(route, steps, walked.n_target_mol), yield_basis=yields)
     warnings: list[Problem] = [*route.warnings, *batch_warnings, *(() if account is None else account.warnings)]
     if no_range:
