@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
-                                       echo_warnings, write_text_output)
+                                       echo_warnings, finish_outputs, output_set)
 from routeplan.vocab import YieldCase
 
 
@@ -73,25 +73,24 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
         n = len(plan.warnings)
         echo_err(f"{route}: {n} warning{'s' if n != 1 else ''}, counted as errors under --strict; nothing written")
         raise click.exceptions.Exit(2)
-    if json_out is not None:
-        from routeplan.export.json import plan_to_json
+    with output_set() as out:  # every output complete before any is moved into place
+        if json_out is not None:
+            from routeplan.export.json import plan_to_json
 
-        write_text_output(plan_to_json(plan), json_out)
-    if xlsx_out is not None:
-        from routeplan.export.workbook import write_workbook
+            out.text(json_out, plan_to_json(plan))
+        if xlsx_out is not None:
+            from routeplan.export.workbook import write_workbook
 
-        write_workbook(plan, xlsx_out)
-        echo_err(f"wrote {xlsx_out}")
-    if html_out is not None:
-        from routeplan.export.html import write_plan_html
+            write_workbook(plan, out.file(xlsx_out, suffix=".xlsx"))
+        if html_out is not None:
+            from routeplan.export.html import write_plan_html
 
-        write_plan_html(plan, html_out)
-        echo_err(f"wrote {html_out}")
-    if csv_dir is not None:
-        from routeplan.export.csv import write_csv
+            write_plan_html(plan, out.file(html_out, suffix=".html"))
+        if csv_dir is not None:
+            from routeplan.export.csv import write_csv
 
-        for path in write_csv(plan, csv_dir):
-            echo_err(f"wrote {path}")
+            write_csv(plan, out.folder(csv_dir))
+    finish_outputs(out)
     if json_out == "-" or quiet:
         echo_warnings(plan.warnings)
         echo_err(caution_line())

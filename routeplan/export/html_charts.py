@@ -68,9 +68,10 @@ def _mass_chart(data: "ChartData", Figure) -> str:
     heights = [0.8] + [0.62] * (len(rows) - 1)
     for mat in order + sorted({m for v in values for m in v} - set(order)):
         widths = [v.get(mat, 0.0) for v in values]
-        if any(widths):
-            ax.barh(range(len(rows)), widths, left=left, color=colour.get(mat, _OTHER), height=heights,
-                    edgecolor="white", linewidth=0.4)
+        drawn = [i for i, w in enumerate(widths) if w]  # only the rows that charge it: fewer patches
+        if drawn:
+            ax.barh(drawn, [widths[i] for i in drawn], left=[left[i] for i in drawn], color=colour.get(mat, _OTHER),
+                    height=[heights[i] for i in drawn], edgecolor="white", linewidth=0.4)
             left = [a + b for a, b in zip(left, widths)]
     for i, total in enumerate(left):
         ax.text(total, i, f" {total:.3g}", va="center", ha="left", color=_INK, fontsize=7.5)

@@ -181,6 +181,26 @@ def _raw_table(plan, new_table=Table) -> Table:
     return t
 
 
+def _print_purchases(con, plan) -> None:
+    """The purchase list (bought materials, need in kg and L, packs to order) and the
+    note on materials not bought."""
+    from routeplan.views.purchase_rows import not_bought_note, purchase_rows
+
+    rows = purchase_rows(plan)
+    t = con.table(title="[bold]To order, whole campaign[/bold]", box=box.SIMPLE_HEAD, title_justify="left",
+                  pad_edge=False)
+    for head, just in (("material", "left"), ("need [kg]", "right"), ("need [L]", "right"), ("pack", "right"),
+                       ("packs", "right"), ("ordered", "right")):
+        t.add_column(escape(head), justify=just)
+    for r in rows:
+        t.add_row(escape(r["material"]), fmt(r["need_kg"]), fmt(r["need_L"]), escape(r["pack"] or "–"),
+                  "–" if r["packs"] is None else str(r["packs"]), escape(r["ordered"] or "–"))
+    con(t)
+    note = not_bought_note(plan)
+    if note:
+        con(escape("  " + note))
+
+
 def _print_time_waste_cost(con: "Printer", plan: "Plan") -> None:
     """The schedule's timeline, the waste streams and the cost of goods (headings in bold)."""
     from routeplan.views.schedule_text import schedule_lines
@@ -230,6 +250,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
             con(escape(stock_line))
         con()
     con(_raw_table(plan, con.table))
+    _print_purchases(con, plan)
     oy = plan.overall_yield
     con(escape(f"Overall yield along the longest linear sequence "
               f"({' -> '.join(oy.longest_linear_sequence)}): {oy.yield_:.1%}"
