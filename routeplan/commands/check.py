@@ -12,13 +12,41 @@ def _pct(x: float) -> str:
     return f"{x * 100:.4g} %"
 
 
-def summary(route) -> list[str]:
+def planned_warnings(route) -> tuple:
+    """The route's warnings and those of its plan at the route's own target.
+
+    Planning at the target is what ``plan`` does, so a route that checks clean plans clean
+    (a step far above its demonstrated batch, or needing many batches, is only seen there).
+
+    Parameters
+    ----------
+    route : Route
+        A loaded route.
+
+    Returns
+    -------
+    tuple of Problem
+        The plan's warnings (they include the route's own, first).
+
+    Raises
+    ------
+    RouteplanError
+        The route cannot be planned at its target.
+    """
+    from routeplan.plan.planner import plan_route
+
+    return tuple(plan_route(route).warnings)
+
+
+def summary(route, n_warnings: int | None = None) -> list[str]:
     """Lines that summarise a checked route: steps in execution order, materials, sequence.
 
     Parameters
     ----------
     route : Route
         A loaded route.
+    n_warnings : int, optional
+        Warnings found (route and plan); default the route's own.
 
     Returns
     -------
@@ -61,8 +89,9 @@ def summary(route) -> list[str]:
         lines.append("  defined but not used: " + ", ".join(unused))
     lls = longest_linear_sequence(route)
     lines.append(f"  longest linear sequence: {' -> '.join(lls)} ({len(lls)} step{'s' if len(lls) != 1 else ''})")
-    if route.warnings:
-        lines.append(f"  warnings: {len(route.warnings)} (on standard error)")
+    n = len(route.warnings) if n_warnings is None else n_warnings
+    if n:
+        lines.append(f"  warnings: {n} (on standard error)")
     return lines
 
 
@@ -73,7 +102,9 @@ def summary(route) -> list[str]:
 def check_cmd(ctx: click.Context, routes: tuple[str, ...], strict: bool) -> None:
     """Check each ROUTE file and explain every mistake found.
 
-    For a valid route, prints a short summary (steps in execution order, raw materials,
+    Each valid route is also planned at its own target, and the plan's warnings (a step
+    far above its demonstrated batch, many batches) are reported with the route's, so a
+    route that checks clean plans clean.  For a valid route, prints a short summary (steps in execution order, raw materials,
     intermediates, longest linear sequence).  Errors and warnings go to standard error,
     each with file, line, column and key.  Exit code 0 when every file is valid (warnings
     allowed), 2 when any file has an error, or any warning under --strict.
@@ -97,12 +128,19 @@ def check_cmd(ctx: click.Context, routes: tuple[str, ...], strict: bool) -> None
             echo_err(f"{Severity.ERROR}: {exc.render()}")
             failed += 1
             continue
+        try:
+            warnings = planned_warnings(route)
+        except RouteplanError as exc:
+            echo_err(f"{Severity.ERROR}: {exc.render()}")
+            echo_err(f"{path}: the route loads, but cannot be planned at its target")
+            failed += 1
+            continue
         valid += 1
-        for line in summary(route):
+        for line in summary(route, len(warnings)):
             click.echo(line)
-        echo_warnings(route.warnings, strict=strict)
-        if strict and route.warnings:
-            n = len(route.warnings)
+        echo_warnings(warnings, strict=strict)
+        if strict and warnings:
+            n = len(warnings)
             echo_err(f"{path}: {n} warning{'s' if n != 1 else ''}, counted as errors under --strict")
             failed += 1
     if valid:
