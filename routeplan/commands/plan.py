@@ -31,11 +31,14 @@ from routeplan.vocab import YieldCase
 @click.option("--draws", "draws", type=int, metavar="N",
               help="Number of yield draws with --confidence (default 100000).")
 @click.option("--seed", "seed", type=int, metavar="S", help="Seed of the yield draws with --confidence (default 1).")
+@click.option("--explain", "explain", is_flag=True,
+              help="With --json: add to each charge the derivation of its numbers (factors with value, unit, "
+                   "what and source).")
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
              csv_dir: str | None, stock_file: str | None, yields: str, confidence: str | None, draws: int | None,
-             seed: int | None, strict: bool, quiet: bool) -> None:
+             seed: int | None, strict: bool, quiet: bool, explain: bool = False) -> None:
     """Plan every charge of every step of ROUTE for the target mass.
 
     Prints one table per step in execution order (mol, kg, L), the raw materials to
@@ -54,7 +57,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     level = confidence_option(confidence, draws, seed)
     r = load_route(route)
     plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), confidence=level, draws=draws,
-                      seed=seed)
+                      seed=seed, explain=explain)
     if strict and plan.warnings:
         echo_warnings(plan.warnings, strict=True)
         n = len(plan.warnings)

@@ -20,6 +20,7 @@ if TYPE_CHECKING:  # pragma: no cover
     import pint
 
     from routeplan.plan.metrics import Metrics
+    from routeplan.plan.derivation import Derivation
     from routeplan.plan.uncertainty import Uncertainty
     from routeplan.route.model import Route
 
@@ -485,6 +486,9 @@ class Plan:
     uncertainty : Uncertainty or None
         Yield draws around the plan (:mod:`routeplan.plan.uncertainty`), when a
         confidence was asked for.
+    derivation : Derivation or None
+        Every named amount with the chain of factors that made it
+        (:mod:`routeplan.plan.derivation`), when an explanation was asked for.
     """
 
     route: "Route"
@@ -499,6 +503,7 @@ class Plan:
     stock: StockPlan | None = None
     yield_basis: str = "expected"
     uncertainty: "Uncertainty | None" = None
+    derivation: "Derivation | None" = None
 
     @property
     def target_mass(self) -> "pint.Quantity":

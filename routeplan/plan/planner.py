@@ -76,7 +76,7 @@ def _amount_kg(route: "Route", target) -> float:
 
 def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None,
                yields: str = "expected", confidence: float | None = None, draws: int | None = None,
-               seed: int | None = None) -> "Plan":
+               seed: int | None = None, explain: bool = False) -> "Plan":
     """Plan a campaign: every charge of every step for a target mass.
 
     Parameters
@@ -105,6 +105,9 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         Number of draws (default 100 000).
     seed : int, optional
         Seed of the draws (default 1).
+    explain : bool
+        With it, the plan's ``derivation`` holds the chain of factors of every amount
+        (:func:`routeplan.plan.derivation.derive`: the same core, run on recording numbers).
 
     Returns
     -------
@@ -162,9 +165,17 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         from routeplan.plan.uncertainty import yield_uncertainty
 
         uncertainty = yield_uncertainty(draft, confidence=confidence, draws=draws, seed=seed)
+    derivation = None
+    if explain:
+        from routeplan.plan.derivation import derive
+
+        derivation = derive(route, amount_kg, yields=yields, shelf_kg=shelf_kg,
+                            target_source=None if target is None else "--target",
+                            stock_source=None if source is None else str(source))
     return Plan(
         route=route, target_material=draft.target_material, target_kg=draft.target_kg,
         target_n_mol=draft.target_n_mol, steps=steps, raw_materials=draft.raw_materials,
         overall_yield=draft.overall_yield, metrics=compute_metrics(draft),
         warnings=tuple(warnings), stock=stock_plan, yield_basis=yields, uncertainty=uncertainty,
+        derivation=derivation,
     )
