@@ -200,3 +200,36 @@ def test_cli_final_number_is_the_plans_printed_number():
         assert out[-2].startswith("= ") and f" {printed} {name}" in out[-2], out[-2]
         # and the derivation line of that amount ends in the same printed number
         assert any(line.endswith(f"= {printed} {name} {material} charged to {sid}") for line in out), out
+
+
+def test_workbook_derivation_sheet_holds_every_factor(tmp_path):
+    import openpyxl
+
+    from routeplan.export.workbook import write_workbook
+    from routeplan.views.derivation_text import plan_derivation_rows
+
+    plan = plan_route(load_route(GOOD), explain=True)
+    path = write_workbook(plan, tmp_path / "d.xlsx")
+    ws = openpyxl.load_workbook(path)["Derivation"]
+    rows = plan_derivation_rows(plan)
+    cells = [[c.value for c in r] for r in ws.iter_rows(min_row=6)]
+    assert len(cells) == len(rows)
+    for got, want in zip(cells, rows):
+        assert got[0] == want["step"] and got[5] == pytest.approx(want["value"], rel=1e-12)
+    # without --explain there is no such sheet
+    assert "Derivation" not in openpyxl.load_workbook(write_workbook(plan_route(load_route(GOOD)),
+                                                                     tmp_path / "e.xlsx")).sheetnames
+
+
+def test_plan_json_explain_through_the_cli(tmp_path):
+    import json
+
+    r = _cli("plan", str(GOOD), "--json", str(tmp_path / "p.json"), "--explain", "-q")
+    assert r.returncode == 0, r.stderr
+    data = json.loads((tmp_path / "p.json").read_text())
+    for step in data["steps"]:
+        for c in step["charges"]:
+            got = evaluate(c["derivation"])[-1]
+            assert got.m_as(c["derivation"][-1]["unit"]) == pytest.approx(c["derivation"][-1]["value"], rel=1e-12)
+    r = _cli("plan", str(GOOD), "--json", str(tmp_path / "q.json"), "-q")
+    assert "derivation" not in (tmp_path / "q.json").read_text()

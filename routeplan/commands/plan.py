@@ -33,7 +33,7 @@ from routeplan.vocab import YieldCase
 @click.option("--seed", "seed", type=int, metavar="S", help="Seed of the yield draws with --confidence (default 1).")
 @click.option("--explain", "explain", is_flag=True,
               help="With --json: add to each charge the derivation of its numbers (factors with value, unit, "
-                   "what and source).")
+                   "what and source); with --xlsx: add a Derivation sheet.")
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,

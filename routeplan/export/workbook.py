@@ -59,7 +59,7 @@ MAX_SHEET_NAME = 31
 # Characters a sheet name may not hold, plus control characters.
 _BAD_SHEET_CHARS = re.compile(r"[\[\]:*?/\\\x00-\x1f\x7f]")
 # Names taken before any step: our own sheets, and one that spreadsheets reserve.
-_RESERVED = (SUMMARY_SHEET, MATERIALS_SHEET, "History")
+_RESERVED = (SUMMARY_SHEET, MATERIALS_SHEET, "History", "Derivation")
 
 
 def _utf16_len(text: str) -> int:
@@ -199,6 +199,10 @@ def write_workbook(plan: "Plan", path: str | os.PathLike, *, written: datetime |
         for sp, k, name in names:
             write_charge_sheet(wb.add_worksheet(name), st, plan, sp, k, context)
         write_materials(wb.add_worksheet(MATERIALS_SHEET), st, plan, context)
+        if plan.derivation is not None:
+            from routeplan.export.workbook_derivation import DERIVATION_SHEET, write_derivation
+
+            write_derivation(wb.add_worksheet(DERIVATION_SHEET), st, plan, "CAUTION: " + CAUTION)
         summary.activate()
         try:
             wb.close()

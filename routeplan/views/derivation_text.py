@@ -112,8 +112,10 @@ def raw_text(plan: "Plan", material: str) -> list[str]:
     find_raw(plan.route, material, [r.material for r in plan.raw_materials])
     lines = plan.derivation.chain(("raw", material, "m"))
     scale = column_unit([r.m_kg for r in plan.raw_materials], "mass")
+    total = next(r for r in plan.raw_materials if r.material == material)
     return ([f"{material} over the campaign: how the plan gets its mass"]
-            + lines_text(lines, {len(lines) - 1: scale}))
+            + lines_text(lines, {len(lines) - 1: scale})
+            + [f"= {_num(total.m_kg / scale[1], 4)} {scale[0]} {material} over the campaign, as in the plan"])
 
 
 def derivation_rows(lines) -> list[dict[str, Any]]:
