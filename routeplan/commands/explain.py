@@ -17,8 +17,12 @@ from routeplan.vocab import YieldCase
               help="Stock on hand (YAML, CSV or xlsx), as for plan: intermediates on the shelf are used first.")
 @click.option("--yields", "yields", type=click.Choice([str(y) for y in YieldCase]), default=str(YieldCase.EXPECTED),
               show_default=True, help="Which yield of each step to plan with, as for plan.")
+@click.option("--record", "record_file", metavar="FILE",
+              help="Campaign record (YAML, CSV or xlsx), as for plan: explain the rest of the campaign.")
+@click.option("--record-yields", "record_yields", type=click.Choice(["expected", "actual"]), default="expected",
+              show_default=True, help="With --record: as for plan.")
 def explain_cmd(route: str, what: tuple[str, ...], target: str | None, stock_file: str | None,
-                yields: str) -> None:
+                yields: str, record_file: str | None, record_yields: str) -> None:
     """Show how the plan of ROUTE gets one number, one chain of factors per line.
 
     STEP MATERIAL: the charge of MATERIAL in STEP; target: the moles of target to make;
@@ -37,7 +41,8 @@ def explain_cmd(route: str, what: tuple[str, ...], target: str | None, stock_fil
                         hint="give STEP MATERIAL, 'target' or 'raw MATERIAL'")
     amount = None if target is None else parse_quantity(target, "mass", where=Location(key="--target"))
     r = load_route(route)
-    plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), explain=True)
+    plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), record=record_file,
+                      record_yields=record_yields, explain=True)
     if what[0] == "target":
         lines = target_text(plan)
     elif what[0] == "raw":

@@ -353,7 +353,8 @@ def _is_overage(t: Traced) -> bool:
 
 def derive(route: "Route", amount_kg: float, *, yields: str = "expected",
            shelf_kg: Mapping[str, float] | None = None, target_source: str | None = None,
-           stock_source: str | None = None) -> Derivation:
+           stock_source: str | None = None, yield_of: Mapping[str, float] | None = None,
+           record: Any = None) -> Derivation:
     """Run the plan's core once on :class:`Traced` numbers and cut the result into lines.
 
     Parameters
@@ -369,6 +370,10 @@ def derive(route: "Route", amount_kg: float, *, yields: str = "expected",
     target_source, stock_source : str, optional
         Where the target mass and the stock came from (default: the route's target line,
         "stock file").
+    yield_of : Mapping[str, float], optional
+        Step id -> yield [-] from a campaign record, as the planner gives the walk.
+    record : optional
+        The campaign record (its file is cited for those yields and for what is in hand).
     """
     from routeplan.plan.core import compile_route, target_amount, walk
     from routeplan.plan.walk import shelf_moles
@@ -376,13 +381,23 @@ def derive(route: "Route", amount_kg: float, *, yields: str = "expected",
 
     b = _Builder(route)
     core = compile_route(route, yields, quantity=_factory(route))
+    record_source = "campaign record" if record is None or not isinstance(record, (str, bytes)) and not hasattr(
+        record, "__fspath__") else f"campaign record {record}"
+    if yield_of:  # the planner's walk plans these steps at the record's yields (plan/walk.py)
+        from dataclasses import replace
+
+        core = replace(core, steps=tuple(
+            replace(s, yield_=Traced(Q(float(yield_of[s.id]), ""), ("leaf", f"actual yield of {s.id}", record_source)))
+            if s.id in yield_of else s for s in core.steps))
     tgt = route.target
     src = target_source or _where(route, tgt.location)
     amount = Traced(Q(float(amount_kg), "kg"), ("leaf", f"target mass of {tgt.material}", src))
     n_target = target_amount(amount, core.overage, core.target_kg_per_mol_pure)
     shelf = None
+    shelf_source = " and ".join(x for x in (stock_source, None if record is None else record_source) if x) \
+        or "stock file"
     if shelf_kg is not None:
-        on_hand = {k: Traced(Q(float(v), "kg"), ("leaf", f"{k} on the shelf", stock_source or "stock file"))
+        on_hand = {k: Traced(Q(float(v), "kg"), ("leaf", f"{k} on the shelf", shelf_source))
                    for k, v in shelf_kg.items()}
         shelf = shelf_moles(route, core, on_hand)
     steps = walk(core, n_target, shelf)

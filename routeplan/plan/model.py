@@ -486,6 +486,10 @@ class Plan:
     uncertainty : Uncertainty or None
         Yield draws around the plan (:mod:`routeplan.plan.uncertainty`), when a
         confidence was asked for.
+    record : RecordPlan or None
+        With a campaign record: lots and their actual yields, what is in hand, the
+        projected target and what closes the gap (:class:`routeplan.plan.record.RecordPlan`);
+        the steps are then the rest of the campaign.
     derivation : Derivation or None
         Every named amount with the chain of factors that made it
         (:mod:`routeplan.plan.derivation`), when an explanation was asked for.
@@ -503,6 +507,7 @@ class Plan:
     stock: StockPlan | None = None
     yield_basis: str = "expected"
     uncertainty: "Uncertainty | None" = None
+    record: Any = None
     derivation: "Derivation | None" = None
 
     @property
