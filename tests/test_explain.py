@@ -233,3 +233,11 @@ def test_plan_json_explain_through_the_cli(tmp_path):
             assert got.m_as(c["derivation"][-1]["unit"]) == pytest.approx(c["derivation"][-1]["value"], rel=1e-12)
     r = _cli("plan", str(GOOD), "--json", str(tmp_path / "q.json"), "-q")
     assert "derivation" not in (tmp_path / "q.json").read_text()
+
+
+@pytest.mark.parametrize("record_yields", ["expected", "actual"])
+def test_the_rest_of_a_recorded_campaign_multiplies_out(record_yields):
+    route = load_route(ROOT / "demo_routes" / "hx17-linear.yaml")
+    plan = plan_route(route, record=ROOT / "demo_routes" / "record.yaml", record_yields=record_yields,
+                      explain=True)
+    assert check_plan(plan) > 0
