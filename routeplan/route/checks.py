@@ -26,14 +26,12 @@ from typing import Any
 
 from routeplan.errors import EquationError, FormulaError, Problem
 from routeplan.route import checks_plausibility as plausible
+from routeplan.route.checks_plausibility import MOLAR_MASS_TOLERANCE
 from routeplan.route.schema import CHARGE_BASES, MaterialModel, StepModel, TargetModel, VesselModel
 from routeplan.route.yamlpos import Positions
 from routeplan.vocab import Basis, Severity
 
 __all__ = ["Parts", "Facts", "check_parts", "suggest", "MOLAR_MASS_TOLERANCE"]
-
-#: Largest relative difference allowed between a given molar mass and the formula's [-].
-MOLAR_MASS_TOLERANCE = 1e-3
 
 #: Largest relative difference allowed between a material's density and its solution's [-].
 _DENSITY_TOLERANCE = 1e-3
@@ -62,6 +60,7 @@ class Parts:
         hold None for each line that failed), or None; in file order.
     target : TargetModel, a partly valid stand-in, or None
     currency : str or None
+    waste_prices : WastePricesModel or None
     """
 
     material_keys: list[str] = field(default_factory=list)
@@ -70,6 +69,7 @@ class Parts:
     steps: list[StepModel | None] = field(default_factory=list)
     target: TargetModel | None = None
     currency: str | None = None
+    waste_prices: object | None = None
 
 
 @dataclass
@@ -434,6 +434,17 @@ class _Checker:
             self.add(Severity.WARNING, ("materials", priced[0], "price"),
                      f"{len(priced)} material(s) have a price but the route has no currency; "
                      "no cost will be computed", "add e.g. 'currency: EUR' at the top level")
+        if self.parts.currency is not None:
+            return
+        rated = [k for k, v in self.parts.equipment.items() if v is not None and v.rate is not None]
+        if rated:
+            self.add("warning", ("equipment", rated[0], "rate"),
+                     f"{len(rated)} vessel(s) have a rate but the route has no currency; "
+                     "no plant cost will be computed", "add e.g. 'currency: EUR' at the top level")
+        if self.parts.waste_prices is not None:
+            self.add("warning", ("waste_prices",),
+                     "the route gives waste prices but no currency; no waste cost will be computed",
+                     "add e.g. 'currency: EUR' at the top level", key=True)
 
     def target(self) -> None:
         t = self.parts.target
