@@ -118,7 +118,7 @@ class CoreStep:
     id: str
     product: str
     limiting: str
-    nu_ratio: float
+    nu_ratio: Number
     yield_: Number
     product_form: Form
     limiting_form: Form
@@ -133,7 +133,7 @@ class CoreRoute:
     target: str
     target_form: Form
     target_kg_per_mol_pure: Number
-    overage: float
+    overage: Number
 
     def step(self, step_id: str) -> CoreStep:
         for s in self.steps:
@@ -235,7 +235,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
 # ------------------------------------------------------------------ the expressions
 
 
-def target_amount(amount_kg: Number, overage: float, kg_per_mol_pure: Number) -> Number:
+def target_amount(amount_kg: Number, overage: Number, kg_per_mol_pure: Number) -> Number:
     """Moles of pure target to make [mol]: ``amount * (1 + overage) * assay / M``.
 
     ``amount_kg`` [kg] as isolated, ``overage`` [-], ``kg_per_mol_pure = M / assay``
@@ -249,7 +249,7 @@ def target_amount(amount_kg: Number, overage: float, kg_per_mol_pure: Number) ->
     return amount_kg * (1 + overage) / kg_per_mol_pure
 
 
-def limiting_amount(n_product_mol: Number, yield_: Number, nu_ratio: float) -> Number:
+def limiting_amount(n_product_mol: Number, yield_: Number, nu_ratio: Number) -> Number:
     """Moles of limiting reagent [mol]: ``n_lim = n_p / (yield * nu_p / nu_lim)``.
 
     Examples
