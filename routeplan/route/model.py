@@ -101,6 +101,9 @@ class Material:
         Free text.
     location : Location or None
         Where the material is defined in the route file.
+    starting_material : bool
+        Marked by the route as a starting material (its atoms end up in the target),
+        besides the bought limiting reagents, which are starting materials anyway.
     stream : str or None
         Waste stream named in the route file (one of :data:`STREAMS`); None lets its
         formula decide (:mod:`routeplan.plan.waste`).
@@ -118,6 +121,7 @@ class Material:
     hazards: tuple[str, ...] = ()
     notes: str | None = None
     location: Location | None = None
+    starting_material: bool = False
     stream: str | None = None
 
 

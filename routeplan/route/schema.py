@@ -298,6 +298,9 @@ class MaterialModel(_Model):
     price: Number("price per kg as supplied, in the route's currency", positive=False) = None
     hazards: list[Text("a hazard note")] = Field(None, description="free-text hazard notes")
     notes: Text("free text") = None
+    starting_material: Boolean = Field(False, description="true for a bought reactant whose atoms end up in the "
+                                                          "target besides the limiting reagents (an overall yield is "
+                                                          "reported from it)")
     stream: Annotated[Any, PlainValidator(_stream),
                       WithJsonSchema({"enum": list(STREAMS),
                                       "description": "waste stream this material goes to when it leaves "
