@@ -286,6 +286,12 @@ def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str 
                   for r in routes)
     if yields != YieldCase.EXPECTED:
         notes = [*notes, f"every route is planned at its steps' {yields} yields"]
+        for r, p in zip(routes, plans):
+            if p.yields_without_range:
+                notes.append(f"{_who(r)}: step{'s' if len(p.yields_without_range) > 1 else ''} "
+                             f"{', '.join(p.yields_without_range)} ha{'ve' if len(p.yields_without_range) > 1 else 's'}"
+                             f" no {yields} yield and {'are' if len(p.yields_without_range) > 1 else 'is'} planned at "
+                             f"the expected yield; the rows that depend on yields are not ranked")
     if confidence is not None:
         u = plans[0].uncertainty
         notes = [*notes, f"every route's step yields are drawn {u.draws} times ({u.distribution}, seed {u.seed})"]
@@ -535,7 +541,7 @@ def compare_plans(plans: Sequence["Plan"], notes: Sequence[str] = ()) -> Compari
 
     plans = tuple(p if p.metrics is not None else _with_metrics(p, compute_metrics(p)) for p in plans)
     labels = _labels(plans)
-    rows = _rows(plans)
+    rows = _unranked_without_ranges(plans, labels, _rows(plans))
     currencies = {p.route.currency for p in plans}
     amounts = [p.target_mass.m_as("kg") / (1 + p.route.target.overage) for p in plans]
     if any(not math.isclose(a, amounts[0], rel_tol=1e-9) for a in amounts):
@@ -554,6 +560,26 @@ def compare_plans(plans: Sequence["Plan"], notes: Sequence[str] = ()) -> Compari
         notes=tuple(notes),
         plans=plans,
     )
+
+
+#: Rows that do not depend on the step yields, ranked whatever yields were planned.
+_YIELD_FREE_ROWS = ("target_mass", "steps", "longest_linear_sequence")
+
+
+def _unranked_without_ranges(plans, labels, rows):
+    """``rows`` with no best value marked where a yield-dependent row compares a route
+    planned at the low (or high) yields with steps that have no such yield: those steps
+    were planned at their expected yields, so the route would be ranked as if certain."""
+    from dataclasses import replace
+
+    gaps = [(label, p.yield_basis) for label, p in zip(labels, plans)
+            if p.yield_basis != "expected" and p.yields_without_range]
+    if not gaps:
+        return rows
+    note = (f"not ranked: {', '.join(label for label, _ in gaps)} ha{'s' if len(gaps) == 1 else 've'} steps "
+            f"without a {gaps[0][1]} yield, planned at their expected yields")
+    return tuple(r if r.key in _YIELD_FREE_ROWS or r.better is None else replace(r, best=(), note=note)
+                 for r in rows)
 
 
 def _with_metrics(plan: "Plan", metrics) -> "Plan":

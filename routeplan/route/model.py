@@ -30,6 +30,8 @@ __all__ = [
     "Material",
     "Vessel",
     "Charge",
+    "Control",
+    "DEFAULT_CHARGE_TOLERANCE",
     "Yield",
     "Step",
     "Target",
@@ -42,6 +44,10 @@ __all__ = [
 #: ``"stoichiometric"`` (a reactant with no basis: its coefficient ratio).  The members of
 #: :class:`routeplan.vocab.Basis`, which compare equal to these words.
 BASES: tuple[Basis, ...] = tuple(Basis)
+
+#: How far a weighed charge may be from its mass to charge, either way, when the route
+#: gives no ``charge_tolerance`` [-] (common practice, no source).
+DEFAULT_CHARGE_TOLERANCE = 0.01
 
 #: Roles a charge line may have: the members of :class:`routeplan.vocab.Role`.
 ROLES: tuple[Role, ...] = tuple(Role)
@@ -101,6 +107,11 @@ class Material:
         Free text.
     location : Location or None
         Where the material is defined in the route file.
+    pack : pint.Quantity or None
+        Size of one pack as sold: a mass [kg] or a volume [L]; None when not given.
+    bought : bool
+        False for a raw material the route marks as not bought (process water): it is
+        charged, but left out of the purchase list.
     starting_material : bool
         Marked by the route as a starting material (its atoms end up in the target),
         besides the bought limiting reagents, which are starting materials anyway.
@@ -121,6 +132,8 @@ class Material:
     hazards: tuple[str, ...] = ()
     notes: str | None = None
     location: Location | None = None
+    pack: "pint.Quantity | None" = None
+    bought: bool = True
     starting_material: bool = False
     stream: str | None = None
 
@@ -167,6 +180,9 @@ class Charge:
         True when the loader added the line (a reactant of the equation with no line).
     location : Location or None
         Where the line is in the route file.
+    tolerance : float or None
+        How far the mass weighed in may be from the mass to charge, either way [-];
+        None: the route's ``charge_tolerance``.
     """
 
     material: str
@@ -175,6 +191,7 @@ class Charge:
     role: Role
     implicit: bool = False
     location: Location | None = None
+    tolerance: float | None = None
 
     def __post_init__(self) -> None:
         if not isinstance(self.basis, Basis):
@@ -190,6 +207,25 @@ class Charge:
         if self.basis is Basis.MOL_PERCENT:
             return self.value / 100.0
         return None
+
+
+@dataclass(frozen=True)
+class Control:
+    """A point of a step where the operator records temperature and time.
+
+    Attributes
+    ----------
+    point : str
+        Where in the step (``after dosing``).
+    check : str or None
+        The in-process check taken there (``HPLC conversion``).
+    limit : str or None
+        The result it must reach (``>= 98 %``), as written.
+    """
+
+    point: str
+    check: str | None = None
+    limit: str | None = None
 
 
 @dataclass(frozen=True)
@@ -233,6 +269,8 @@ class Step:
         Free text.
     location : Location or None
         Where the step is defined.
+    controls : tuple of Control
+        Points where the operator records temperature and time, in order.
     cycle_time : pint.Quantity or None
         Vessel time for one batch, cleaning included [h].
     """
@@ -250,6 +288,11 @@ class Step:
     demonstrated_batch: "pint.Quantity | None" = None
     notes: str | None = None
     location: Location | None = None
+    controls: tuple[Control, ...] = ()
+
+    def charge_tolerance(self, charge: Charge, route: "Route") -> float:
+        """The tolerance of ``charge`` [-]: its own, else the route's."""
+        return charge.tolerance if charge.tolerance is not None else route.charge_tolerance
     cycle_time: "pint.Quantity | None" = None
 
     def charge_of(self, material: str) -> Charge | None:
@@ -332,6 +375,9 @@ class Route:
         The file the route came from.
     warnings : tuple of Problem
         Warnings found while loading.
+    charge_tolerance : float
+        How far a weighed charge may be from its mass to charge, either way, unless its
+        line says otherwise [-]; default :data:`DEFAULT_CHARGE_TOLERANCE`.
     waste_prices : WastePrices or None
         Disposal prices of the waste streams; None when the route file gives none.
     """
@@ -345,6 +391,7 @@ class Route:
     format: int = 1
     source: Source | None = None
     warnings: tuple[Problem, ...] = ()
+    charge_tolerance: float = DEFAULT_CHARGE_TOLERANCE
     waste_prices: WastePrices | None = None
 
     def __post_init__(self) -> None:

@@ -61,6 +61,7 @@ BATCH_COLUMNS = (
     Column("mass_kg", "mass to charge", "kg"),
     Column("volume_L", "volume to charge", "L"),
     Column("hazards", "hazards"),
+    Column("tolerance", "tolerance", "-"),
 )
 
 MATERIAL_COLUMNS = (
@@ -147,9 +148,12 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
     then the volume of that step's mixture carried in [L] and ``mass_kg`` the mass of
     the compound in it [kg], nothing weighed.  ``limiting`` marks the limiting
     reagent's line; ``made_in`` names the step that makes an intermediate and
-    ``in_solution`` is True when it is carried in solution.
+    ``in_solution`` is True when it is carried in solution.  ``tolerance`` [-] is how far
+    the mass weighed in may be from the mass to charge, either way (the line's own, else
+    the route's ``charge_tolerance``).
     """
     route = plan.route
+    step = route.step(sp.id)
     n = sp.batches or 1  # a step that does not run gets no charge sheet; its rows are its zeros
     rows = []
     seen_limiting = False
@@ -182,6 +186,7 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
             "mass_kg": float(c.mass.m_as("kg")) / n,
             "volume_L": None if c.volume is None else float(c.volume.m_as("L")) / n,
             "hazards": "; ".join(mat.hazards),
+            "tolerance": step.charge_tolerance(step.charges[c.order - 1], route),
             "rule": rule,
             "limiting": is_limiting,
             "made_in": c.carried_from or (None if made is None else made.id),
