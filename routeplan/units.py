@@ -83,8 +83,11 @@ def registry() -> "pint.UnitRegistry":
     return ureg
 
 
-def Q(value: Any, unit: "str | pint.Unit") -> "pint.Quantity":
+def Q(value: Any, unit: "str | pint.Unit", what: Any = None) -> "pint.Quantity":
     """Build a quantity from a value and a unit name.
+
+    ``what`` is ignored: it lets ``Q`` serve as the number factory of
+    :func:`routeplan.plan.core.compile_route`, which names each constant.
 
     Examples
     --------

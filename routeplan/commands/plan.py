@@ -40,13 +40,16 @@ from routeplan.vocab import YieldCase
               show_default=True,
               help="With --record: plan the remaining batches of a step that has lots at the route's yield "
                    "('expected') or at the assay-corrected mean yield its recorded lots gave ('actual').")
+@click.option("--explain", "explain", is_flag=True,
+              help="With --json: add to each charge the derivation of its numbers (factors with value, unit, "
+                   "what and source); with --xlsx: add a Derivation sheet.")
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
              csv_dir: str | None, html_out: str | None, stock_file: str | None, yields: str,
              confidence: str | None, draws: int | None,
              seed: int | None, record_file: str | None, record_yields: str, strict: bool,
-             quiet: bool) -> None:
+             quiet: bool, explain: bool = False) -> None:
     """Plan every charge of every step of ROUTE for the target mass.
 
     Prints one table per step in execution order (mol, kg, L), the raw materials to
@@ -67,7 +70,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     level = confidence_option(confidence, draws, seed)
     r = load_route(route)
     plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), confidence=level, draws=draws,
-                      seed=seed, record=record_file, record_yields=record_yields)
+                      seed=seed, record=record_file, record_yields=record_yields, explain=explain)
     if strict and plan.warnings:
         echo_warnings(plan.warnings, strict=True)
         n = len(plan.warnings)

@@ -64,7 +64,7 @@ MAX_SHEET_NAME = 31
 # Characters a sheet name may not hold, plus control characters.
 _BAD_SHEET_CHARS = re.compile(r"[\[\]:*?/\\\x00-\x1f\x7f]")
 # Names taken before any step: our own sheets, and one that spreadsheets reserve.
-_RESERVED = (SUMMARY_SHEET, MATERIALS_SHEET, "History", "Schedule")
+_RESERVED = (SUMMARY_SHEET, MATERIALS_SHEET, "History", "Schedule", "Derivation")
 
 
 def _utf16_len(text: str) -> int:
@@ -212,6 +212,13 @@ def write_workbook(plan: "Plan", path: str | os.PathLike, *, written: datetime |
             schedule = wb.add_worksheet(SCHEDULE_SHEET)
             write_schedule_sheet(schedule, st, plan, context)
             protect(schedule)  # like every sheet: no password, nothing to type in
+        if plan.derivation is not None:
+            from routeplan.export.workbook_derivation import DERIVATION_SHEET, write_derivation
+            from routeplan.export.workbook_records import protect
+
+            derivation = wb.add_worksheet(DERIVATION_SHEET)
+            write_derivation(derivation, st, plan, "CAUTION: " + CAUTION)
+            protect(derivation)  # like every sheet: no password, nothing to type in
         summary.activate()
         try:
             wb.close()

@@ -21,6 +21,7 @@ if TYPE_CHECKING:  # pragma: no cover
 
     from routeplan.plan.cost_of_goods import CostOfGoods
     from routeplan.plan.metrics import Metrics
+    from routeplan.plan.derivation import Derivation
     from routeplan.plan.schedule import Schedule
     from routeplan.plan.uncertainty import Uncertainty
     from routeplan.plan.waste import Waste
@@ -529,6 +530,9 @@ class Plan:
         With a campaign record: lots and their actual yields, what is in hand, the
         projected target and what closes the gap (:class:`routeplan.plan.record.RecordPlan`);
         the steps are then the rest of the campaign.
+    derivation : Derivation or None
+        Every named amount with the chain of factors that made it
+        (:mod:`routeplan.plan.derivation`), when an explanation was asked for.
     """
 
     route: "Route"
@@ -548,6 +552,7 @@ class Plan:
     cost_of_goods: "CostOfGoods | None" = None
     uncertainty: "Uncertainty | None" = None
     record: Any = None
+    derivation: "Derivation | None" = None
 
     @property
     def target_mass(self) -> "pint.Quantity":

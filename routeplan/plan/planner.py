@@ -76,7 +76,8 @@ def _amount_kg(route: "Route", target) -> float:
 
 def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None,
                yields: str = "expected", confidence: float | None = None, draws: int | None = None,
-               seed: int | None = None, record=None, record_yields: str = "expected") -> "Plan":
+               seed: int | None = None, record=None, record_yields: str = "expected",
+               explain: bool = False) -> "Plan":
     """Plan a campaign: every charge of every step for a target mass.
 
     Parameters
@@ -114,6 +115,9 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     record_yields : {"expected", "actual"}
         With a record, the yield at which the remaining batches of a step with lots are
         planned: the route's, or the assay-corrected mean of its recorded lots.
+    explain : bool
+        With it, the plan's ``derivation`` holds the chain of factors of every amount
+        (:func:`routeplan.plan.derivation.derive`: the same core, run on recording numbers).
 
     Returns
     -------
@@ -193,6 +197,14 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         from routeplan.plan.record import record_plan as plan_record
 
         record_plan = plan_record(draft, account, amount_kg=amount_kg, stock=stock_plan)
+    derivation = None
+    if explain:
+        from routeplan.plan.derivation import derive
+
+        derivation = derive(route, amount_kg, yields=yields, shelf_kg=shelf_kg,
+                            target_source=None if target is None else "--target",
+                            stock_source=None if source is None else str(source), yield_of=yield_of,
+                            record=record)
     return Plan(
         route=route, target_material=draft.target_material, target_kg=draft.target_kg,
         target_n_mol=draft.target_n_mol, steps=steps, raw_materials=draft.raw_materials,
@@ -201,6 +213,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         yields_without_range=no_range,
         schedule=schedule, waste=waste, cost_of_goods=cost_of_goods,
         record=record_plan,
+        derivation=derivation,
     )
 
 
