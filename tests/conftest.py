@@ -48,3 +48,13 @@ def run_cli(*args: str):
 def good_text() -> str:
     """The text of :data:`GOOD_ROUTE`."""
     return GOOD_ROUTE.read_text(encoding="utf-8")
+
+
+def run_edited(tmp_path: Path, base: str, edits, *args: str, command: str = "check"):
+    """Apply ``edits`` ((old, new) pairs) to the route text ``base``, write it, and run
+    ``routeplan COMMAND ROUTE ARGS...``; return (text, path, result)."""
+    from test_load_bad_routes import change
+
+    text = change(base, edits)
+    path = write_route(tmp_path, text)
+    return text, path, run_cli(command, path, *args)

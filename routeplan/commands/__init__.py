@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import importlib
 
-_MODULES = ("check", "plan", "schema", "compare")
+_MODULES = ("check", "plan", "schema", "compare", "explain")
 
 
 def register_all(cli) -> None:

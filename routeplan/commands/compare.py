@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
-                                       echo_warnings, write_text_output)
+                                       echo_warnings, finish_outputs, output_set)
 from routeplan.vocab import YieldCase
 
 
@@ -63,20 +63,20 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
         echo_warnings([p if p.location is not None and p.location.file
                        else p.__class__(p.severity, f"{label}: {p.message}", p.location, p.step, p.hint)
                        for p in plan.warnings])
-    if json_out is not None:
-        from routeplan.export.compare_out import comparison_to_json
+    with output_set() as out:  # every output complete before any is moved into place
+        if json_out is not None:
+            from routeplan.export.compare_out import comparison_to_json
 
-        write_text_output(comparison_to_json(cmp), json_out)
-    if xlsx_out is not None:
-        from routeplan.export.compare_out import write_comparison_xlsx
+            out.text(json_out, comparison_to_json(cmp))
+        if xlsx_out is not None:
+            from routeplan.export.compare_out import write_comparison_xlsx
 
-        write_comparison_xlsx(cmp, xlsx_out)
-        echo_err(f"wrote {xlsx_out}")
-    if html_out is not None:
-        from routeplan.export.html import write_compare_html
+            write_comparison_xlsx(cmp, out.file(xlsx_out, suffix=".xlsx"))
+        if html_out is not None:
+            from routeplan.export.html import write_compare_html
 
-        write_compare_html(cmp, html_out)
-        echo_err(f"wrote {html_out}")
+            write_compare_html(cmp, out.file(html_out, suffix=".html"))
+    finish_outputs(out)
     if json_out == "-":
         echo_err(caution_line())
     else:

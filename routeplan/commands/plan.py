@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
-                                       echo_warnings, write_text_output)
+                                       echo_warnings, finish_outputs, output_set)
 from routeplan.vocab import YieldCase
 
 
@@ -40,13 +40,16 @@ from routeplan.vocab import YieldCase
               show_default=True,
               help="With --record: plan the remaining batches of a step that has lots at the route's yield "
                    "('expected') or at the assay-corrected mean yield its recorded lots gave ('actual').")
+@click.option("--explain", "explain", is_flag=True,
+              help="With --json: add to each charge the derivation of its numbers (factors with value, unit, "
+                   "what and source); with --xlsx: add a Derivation sheet.")
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
              csv_dir: str | None, html_out: str | None, stock_file: str | None, yields: str,
              confidence: str | None, draws: int | None,
              seed: int | None, record_file: str | None, record_yields: str, strict: bool,
-             quiet: bool) -> None:
+             quiet: bool, explain: bool = False) -> None:
     """Plan every charge of every step of ROUTE for the target mass.
 
     Prints one table per step in execution order (mol, kg, L), the raw materials to
@@ -67,31 +70,30 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     level = confidence_option(confidence, draws, seed)
     r = load_route(route)
     plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), confidence=level, draws=draws,
-                      seed=seed, record=record_file, record_yields=record_yields)
+                      seed=seed, record=record_file, record_yields=record_yields, explain=explain)
     if strict and plan.warnings:
         echo_warnings(plan.warnings, strict=True)
         n = len(plan.warnings)
         echo_err(f"{route}: {n} warning{'s' if n != 1 else ''}, counted as errors under --strict; nothing written")
         raise click.exceptions.Exit(2)
-    if json_out is not None:
-        from routeplan.export.json import plan_to_json
+    with output_set() as out:  # every output complete before any is moved into place
+        if json_out is not None:
+            from routeplan.export.json import plan_to_json
 
-        write_text_output(plan_to_json(plan), json_out)
-    if xlsx_out is not None:
-        from routeplan.export.workbook import write_workbook
+            out.text(json_out, plan_to_json(plan))
+        if xlsx_out is not None:
+            from routeplan.export.workbook import write_workbook
 
-        write_workbook(plan, xlsx_out)
-        echo_err(f"wrote {xlsx_out}")
-    if html_out is not None:
-        from routeplan.export.html import write_plan_html
+            write_workbook(plan, out.file(xlsx_out, suffix=".xlsx"))
+        if html_out is not None:
+            from routeplan.export.html import write_plan_html
 
-        write_plan_html(plan, html_out)
-        echo_err(f"wrote {html_out}")
-    if csv_dir is not None:
-        from routeplan.export.csv import write_csv
+            write_plan_html(plan, out.file(html_out, suffix=".html"))
+        if csv_dir is not None:
+            from routeplan.export.csv import write_csv
 
-        for path in write_csv(plan, csv_dir):
-            echo_err(f"wrote {path}")
+            write_csv(plan, out.folder(csv_dir))
+    finish_outputs(out)
     if json_out == "-" or quiet:
         echo_warnings(plan.warnings)
         echo_err(caution_line())

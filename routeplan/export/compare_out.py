@@ -10,6 +10,7 @@ from __future__ import annotations
 import json
 from typing import TYPE_CHECKING, Any
 
+from routeplan.views.compare_text import tradeoff
 from routeplan.views.tables import display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -110,7 +111,7 @@ def comparison_to_dict(cmp: "Comparison") -> dict[str, Any]:
         "routes": routes,
         "currency": cmp.currency,
         "rows": [_row_dict(cmp, r) for r in cmp.rows],
-        "tradeoff": cmp.tradeoff,
+        "tradeoff": tradeoff(cmp),
         "notes": list(cmp.notes),
         "metrics": [p.metrics.to_dict() for p in cmp.plans],
         "caution": CAUTION,
@@ -164,7 +165,7 @@ def print_comparison(cmp: "Comparison", *, console: "Console | None" = None) -> 
     for note in cmp.notes:
         con.print(f"note: {escape(note)}")
     con.print()
-    con.print(f"[bold]Trade-off[/bold]: {escape(cmp.tradeoff)}")
+    con.print(f"[bold]Trade-off[/bold]: {escape(tradeoff(cmp))}")
     con.print()
     con.print(f"[bold]CAUTION[/bold]: {escape(CAUTION)}")
 
@@ -261,7 +262,7 @@ def _fill_sheet(wb, cmp: "Comparison", caution: str) -> None:
                     ws.write_string(r, 3 + i, text, dim)
             fit(r, {0: (f"{row.heading}: which", 0), **{3 + i: (t, 3 + i) for i, t in enumerate(row.labels) if t}})
     r += 2
-    texts = [("trade-off", cmp.tradeoff, bold)] + [(row.short, row.note, wrap) for row in cmp.rows if row.note] \
+    texts = [("trade-off", tradeoff(cmp), bold)] + [(row.short, row.note, wrap) for row in cmp.rows if row.note] \
         + [("note", note, wrap) for note in cmp.notes]
     for label, text, fmt in texts:
         ws.write_string(r, 0, label, fmt)

@@ -1,6 +1,7 @@
 """The plan's tables as CSV files (``routeplan plan ROUTE --csv DIR``), for other tools.
 
-Files written into ``DIR`` (made if missing), each atomically:
+Files written into ``DIR`` (made if missing), each atomically; the command line writes
+the whole folder as one unit (:class:`routeplan.export.atomic.OutputSet`):
 
 ``summary.csv``
     item, value, unit: route, route file and SHA-256, date, target, overall yield,

@@ -105,6 +105,7 @@ def compare_html(cmp: "Comparison") -> str:
     """The comparison of routes as one HTML page: schemes side by side, the measures, the trade-off."""
     from routeplan.export.compare_out import format_value
     from routeplan.views.report import plan_report
+    from routeplan.views.compare_text import tradeoff
 
     routes = []
     for label, plan in zip(cmp.labels, cmp.plans):
@@ -121,7 +122,7 @@ def compare_html(cmp: "Comparison") -> str:
         rows.append({"key": row.key, "heading": row.heading, "unit": "" if unit in ("-", "") else unit,
                      "better": row.better, "cells": cells, "note": row.note})
     return _env().get_template("compare.html.j2").render(
-        cmp=cmp, routes=routes, rows=rows, **_common())
+        cmp=cmp, tradeoff=tradeoff(cmp), routes=routes, rows=rows, **_common())
 
 
 def write_plan_html(plan: "Plan", path) -> None:

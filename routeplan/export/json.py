@@ -123,6 +123,12 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
         out["record"] = _record(plan.record)
     if plan.uncertainty is not None:
         out["uncertainty"] = uncertainty_to_dict(plan.uncertainty)
+    if plan.derivation is not None:
+        from routeplan.views.derivation_text import charge_derivations
+
+        for sp, step_out in zip(plan.steps, out["steps"]):
+            for charge_out, rows in zip(step_out["charges"], charge_derivations(plan, sp.id)):
+                charge_out["derivation"] = rows
     return out
 
 

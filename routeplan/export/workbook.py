@@ -64,7 +64,7 @@ MAX_SHEET_NAME = 31
 # Characters a sheet name may not hold, plus control characters.
 _BAD_SHEET_CHARS = re.compile(r"[\[\]:*?/\\\x00-\x1f\x7f]")
 # Names taken before any step: our own sheets, and one that spreadsheets reserve.
-_RESERVED = (SUMMARY_SHEET, MATERIALS_SHEET, "History", "Schedule")
+_RESERVED = (SUMMARY_SHEET, MATERIALS_SHEET, "History", "Schedule", "Derivation")
 
 
 def _utf16_len(text: str) -> int:
@@ -72,7 +72,7 @@ def _utf16_len(text: str) -> int:
 
 
 def _clip(text: str, units: int) -> str:
-    while _utf16_len(text) > units:
+    while text and _utf16_len(text) > units:
         text = text[:-1]
     return text
 
@@ -96,7 +96,7 @@ def safe_sheet_name(base: str, suffix: str, taken: set[str]) -> str:
     while True:
         extra = suffix if n == 1 else f"{suffix} ({n})"
         name = _clip(clean, MAX_SHEET_NAME - _utf16_len(extra)).rstrip(" '")
-        name = (name or "step") + extra
+        name = _clip((name or "step") + extra, MAX_SHEET_NAME)  # a suffix longer than a sheet name is cut
         if name.casefold() not in taken:
             taken.add(name.casefold())
             return name
@@ -212,6 +212,13 @@ def write_workbook(plan: "Plan", path: str | os.PathLike, *, written: datetime |
             schedule = wb.add_worksheet(SCHEDULE_SHEET)
             write_schedule_sheet(schedule, st, plan, context)
             protect(schedule)  # like every sheet: no password, nothing to type in
+        if plan.derivation is not None:
+            from routeplan.export.workbook_derivation import DERIVATION_SHEET, write_derivation
+            from routeplan.export.workbook_records import protect
+
+            derivation = wb.add_worksheet(DERIVATION_SHEET)
+            write_derivation(derivation, st, plan, "CAUTION: " + CAUTION)
+            protect(derivation)  # like every sheet: no password, nothing to type in
         summary.activate()
         try:
             wb.close()

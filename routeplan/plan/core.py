@@ -43,8 +43,12 @@ __all__ = [
 Number = Any  # float, numpy array or pint Quantity
 
 
-def _plain(value: float, unit_name: str) -> float:
-    """The number factory of the plan: the magnitude alone, in the unit named beside it."""
+def _plain(value: float, unit_name: str, what: Any = None) -> float:
+    """The number factory of the plan: the magnitude alone, in the unit named beside it.
+
+    ``what`` says which constant it is, ``(kind, route object, ...)``, for a factory that
+    records it (:mod:`routeplan.plan.derivation`); the plan ignores it.
+    """
     return value
 
 
@@ -67,7 +71,7 @@ class Form:
 
 
 def material_form(mat: "Material", quantity: Callable = _plain) -> Form:
-    """The :class:`Form` of ``mat``, its numbers built by ``quantity(value, unit)``.
+    """The :class:`Form` of ``mat``, its numbers built by ``quantity(value, unit, what)``.
 
     ``M`` [g/mol] is read in kg/mol, densities [g/mL] in kg/L, molarities in mol/L.
     """
@@ -77,16 +81,18 @@ def material_form(mat: "Material", quantity: Callable = _plain) -> Form:
     density = sol.density if sol is not None else mat.density
     kg_per_mol = None
     if sol is not None and sol.molarity is not None:
-        rho = quantity(magnitude(sol.density, "kg/L"), "kg/L")
-        c = quantity(magnitude(sol.molarity, "mol/L"), "mol/L")
+        rho = quantity(magnitude(sol.density, "kg/L"), "kg/L", ("solution_density", mat))
+        c = quantity(magnitude(sol.molarity, "mol/L"), "mol/L", ("molarity", mat))
         kg_per_mol = rho / c  # [kg/L] / [mol/L] = [kg/mol]
     elif mat.molar_mass is not None:
-        fraction = sol.mass_fraction if sol is not None else mat.assay
-        M = quantity(magnitude(mat.molar_mass, "kg/mol"), "kg/mol")
+        fraction = (quantity(sol.mass_fraction, "", ("mass_fraction", mat)) if sol is not None
+                    else quantity(mat.assay, "", ("assay", mat)))
+        M = quantity(magnitude(mat.molar_mass, "kg/mol"), "kg/mol", ("molar_mass", mat))
         kg_per_mol = M / fraction  # [kg/mol] / [-]
     L_per_kg = None
     if density is not None:
-        L_per_kg = 1 / quantity(magnitude(density, "kg/L"), "kg/L")  # [L/kg]
+        kind = "solution_density" if sol is not None else "density"
+        L_per_kg = 1 / quantity(magnitude(density, "kg/L"), "kg/L", (kind, mat))  # [L/kg]
     return Form(kg_per_mol, L_per_kg)
 
 
@@ -112,7 +118,7 @@ class CoreStep:
     id: str
     product: str
     limiting: str
-    nu_ratio: float
+    nu_ratio: Number
     yield_: Number
     product_form: Form
     limiting_form: Form
@@ -127,7 +133,7 @@ class CoreRoute:
     target: str
     target_form: Form
     target_kg_per_mol_pure: Number
-    overage: float
+    overage: Number
 
     def step(self, step_id: str) -> CoreStep:
         for s in self.steps:
@@ -167,8 +173,10 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
     yields : {"expected", "low", "high"}
         Which yield of each step (the expected one where a step gives no range).
     quantity : callable, optional
-        ``quantity(value, unit_name)`` builds each constant; the default keeps the
-        magnitude (the plan), ``routeplan.units.Q`` gives pint Quantities (the proof).
+        ``quantity(value, unit_name, what)`` builds each constant (``what``: which one,
+        ``(kind, route object, ...)``); the default keeps the magnitude (the plan),
+        ``routeplan.units.Q`` gives pint Quantities (the proof), and
+        :mod:`routeplan.plan.derivation` records each constant with its source.
 
     Returns
     -------
@@ -199,24 +207,26 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
         charges = []
         for c in step.charges:
             if c.basis == "volumes":
-                factor = quantity(c.value, "L/kg")
+                factor = quantity(c.value, "L/kg", ("volumes", step, c))
             elif c.basis == "mass_ratio":
-                factor = quantity(c.value, "kg/kg")
+                factor = quantity(c.value, "kg/kg", ("mass_ratio", step, c))
             else:
-                factor = quantity(c.equiv, "")
+                factor = quantity(c.equiv, "", ("equiv", step, c))
             charges.append(CoreCharge(c.material, str(c.basis), factor, form(c.material),
                                       route.is_intermediate(c.material)))
         eq = step.equation
         steps.append(CoreStep(
             id=sid, product=step.product, limiting=step.limiting,
-            nu_ratio=eq.coefficient(step.product) / eq.coefficient(step.limiting),
-            yield_=quantity(y, ""), product_form=form(step.product), limiting_form=form(step.limiting),
+            nu_ratio=quantity(eq.coefficient(step.product) / eq.coefficient(step.limiting), "", ("nu_ratio", step)),
+            yield_=quantity(y, "", ("yield", step, str(yields) if chosen is not None else "expected")),
+            product_form=form(step.product), limiting_form=form(step.limiting),
             charges=tuple(charges)))
     tgt = route.materials[route.target.material]
     if tgt.molar_mass is None:  # the loader forbids this; kept as a guard
         raise PlanError(f"target '{tgt.key}' has no molar mass")
-    M = quantity(magnitude(tgt.molar_mass, "kg/mol"), "kg/mol")
-    core = CoreRoute(tuple(steps), tgt.key, form(tgt.key), M / tgt.assay, route.target.overage)
+    M = quantity(magnitude(tgt.molar_mass, "kg/mol"), "kg/mol", ("molar_mass", tgt))
+    core = CoreRoute(tuple(steps), tgt.key, form(tgt.key), M / quantity(tgt.assay, "", ("assay", tgt)),
+                     quantity(route.target.overage, "", ("overage", route.target)))
     if cache is not None:
         cache[yields] = core
     return core
@@ -225,7 +235,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
 # ------------------------------------------------------------------ the expressions
 
 
-def target_amount(amount_kg: Number, overage: float, kg_per_mol_pure: Number) -> Number:
+def target_amount(amount_kg: Number, overage: Number, kg_per_mol_pure: Number) -> Number:
     """Moles of pure target to make [mol]: ``amount * (1 + overage) * assay / M``.
 
     ``amount_kg`` [kg] as isolated, ``overage`` [-], ``kg_per_mol_pure = M / assay``
@@ -239,7 +249,7 @@ def target_amount(amount_kg: Number, overage: float, kg_per_mol_pure: Number) ->
     return amount_kg * (1 + overage) / kg_per_mol_pure
 
 
-def limiting_amount(n_product_mol: Number, yield_: Number, nu_ratio: float) -> Number:
+def limiting_amount(n_product_mol: Number, yield_: Number, nu_ratio: Number) -> Number:
     """Moles of limiting reagent [mol]: ``n_lim = n_p / (yield * nu_p / nu_lim)``.
 
     Examples

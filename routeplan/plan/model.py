@@ -21,6 +21,7 @@ if TYPE_CHECKING:  # pragma: no cover
 
     from routeplan.plan.cost_of_goods import CostOfGoods
     from routeplan.plan.metrics import Metrics
+    from routeplan.plan.derivation import Derivation
     from routeplan.plan.schedule import Schedule
     from routeplan.plan.uncertainty import Uncertainty
     from routeplan.plan.waste import Waste
@@ -511,6 +512,9 @@ class Plan:
         Stock comparison, when a stock list was given.
     yield_basis : str
         Which step yields the walk used: ``"expected"``, ``"low"`` or ``"high"``.
+    yields_without_range : tuple of str
+        Ids of the steps without the ``low`` (or ``high``) yield asked for, planned at
+        their expected yield instead; empty at the expected yields.
     schedule : Schedule or None
         Every batch on its vessel in time (:mod:`routeplan.plan.schedule`); None unless
         every step has a ``cycle_time``.
@@ -526,6 +530,9 @@ class Plan:
         With a campaign record: lots and their actual yields, what is in hand, the
         projected target and what closes the gap (:class:`routeplan.plan.record.RecordPlan`);
         the steps are then the rest of the campaign.
+    derivation : Derivation or None
+        Every named amount with the chain of factors that made it
+        (:mod:`routeplan.plan.derivation`), when an explanation was asked for.
     """
 
     route: "Route"
@@ -539,11 +546,13 @@ class Plan:
     warnings: tuple[Problem, ...] = ()
     stock: StockPlan | None = None
     yield_basis: str = "expected"
+    yields_without_range: tuple[str, ...] = ()
     schedule: "Schedule | None" = None
     waste: "Waste | None" = None
     cost_of_goods: "CostOfGoods | None" = None
     uncertainty: "Uncertainty | None" = None
     record: Any = None
+    derivation: "Derivation | None" = None
 
     @property
     def target_mass(self) -> "pint.Quantity":

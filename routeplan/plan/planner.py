@@ -76,7 +76,8 @@ def _amount_kg(route: "Route", target) -> float:
 
 def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None,
                yields: str = "expected", confidence: float | None = None, draws: int | None = None,
-               seed: int | None = None, record=None, record_yields: str = "expected") -> "Plan":
+               seed: int | None = None, record=None, record_yields: str = "expected",
+               explain: bool = False) -> "Plan":
     """Plan a campaign: every charge of every step for a target mass.
 
     Parameters
@@ -114,6 +115,9 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     record_yields : {"expected", "actual"}
         With a record, the yield at which the remaining batches of a step with lots are
         planned: the route's, or the assay-corrected mean of its recorded lots.
+    explain : bool
+        With it, the plan's ``derivation`` holds the chain of factors of every amount
+        (:func:`routeplan.plan.derivation.derive`: the same core, run on recording numbers).
 
     Returns
     -------
@@ -125,6 +129,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     PlanError
         When the route cannot be planned (e.g. a non-positive target).
     """
+    from routeplan.plan import guards
     from routeplan.plan.campaign import size_steps
     from routeplan.plan.charges import step_plans
     from routeplan.plan.metrics import compute_metrics
@@ -149,6 +154,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     if yields not in YIELD_BASES:
         raise PlanError(f"unknown yield basis '{yields}'", hint="use expected, low or high")
     amount_kg = _amount_kg(route, target)
+    guards.check_target(amount_kg, route.target.overage, route.target.location)
     on_hand, source, shelf_kg = None, None, None
     if stock is not None:
         from routeplan.inputs.stock import load_stock
@@ -161,6 +167,8 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     account, shelf_kg, yield_of = _record_inputs(route, record, shelf_kg, yields, record_yields)
     shelf_name = "the stock" if account is None else "what is in hand" if stock is None else "the stock and what is in hand"
     walked = walk_route(route, amount_kg, yields=yields, shelf_kg=shelf_kg, yield_of=yield_of, shelf_name=shelf_name)
+    guards.check_amounts(route, walked)
+    no_range = guards.steps_without_range(route, yields)
     sized, batch_warnings = size_steps(route, walked)
     steps = step_plans(route, walked, sized)
     draft = Draft(route=route, target_material=route.target.material,
@@ -168,6 +176,8 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
                   steps=steps, raw_materials=with_packs(route, raw_material_totals(route, steps)),
                   overall_yield=overall_yield(route, steps, walked.n_target_mol), yield_basis=yields)
     warnings: list[Problem] = [*route.warnings, *batch_warnings, *(() if account is None else account.warnings)]
+    if no_range:
+        warnings.append(guards.range_warning(route, yields, no_range))
     stock_plan = None
     if stock is not None:
         from routeplan.plan.stock import stock_plan as compare_stock
@@ -187,13 +197,23 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         from routeplan.plan.record import record_plan as plan_record
 
         record_plan = plan_record(draft, account, amount_kg=amount_kg, stock=stock_plan)
+    derivation = None
+    if explain:
+        from routeplan.plan.derivation import derive
+
+        derivation = derive(route, amount_kg, yields=yields, shelf_kg=shelf_kg,
+                            target_source=None if target is None else "--target",
+                            stock_source=None if source is None else str(source), yield_of=yield_of,
+                            record=record)
     return Plan(
         route=route, target_material=draft.target_material, target_kg=draft.target_kg,
         target_n_mol=draft.target_n_mol, steps=steps, raw_materials=draft.raw_materials,
         overall_yield=draft.overall_yield, metrics=compute_metrics(draft),
         warnings=tuple(warnings), stock=stock_plan, yield_basis=yields, uncertainty=uncertainty,
+        yields_without_range=no_range,
         schedule=schedule, waste=waste, cost_of_goods=cost_of_goods,
         record=record_plan,
+        derivation=derivation,
     )
 
 

@@ -24,8 +24,8 @@ from typing import Annotated, Any
 
 from pydantic import TypeAdapter, ValidationError
 
-from routeplan.errors import Location, Problem, RouteError
-from routeplan.route.checks import Facts, Parts, check_parts
+from routeplan.errors import Location, Problem, RouteError, not_a_regular_file
+from routeplan.route.checks import Facts, Parts, _default_role, check_parts
 from routeplan.route.model import (DEFAULT_CHARGE_TOLERANCE, Charge, Control, Material, Route, Solution, Source, Step,
                                    Target, Vessel, WastePrices, Yield)
 from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepModel, TargetModel, VesselModel,
@@ -60,6 +60,9 @@ def load_route(path: str | os.PathLike) -> Route:
         Listing every problem found, each with file, line, column and key path.
     """
     name = os.fspath(path)
+    odd = not_a_regular_file(name)
+    if odd is not None and not os.path.isdir(name):
+        raise _one(name, odd, "give the route file itself (YAML text)")
     try:
         size = os.path.getsize(name)
         if size > MAX_BYTES:
@@ -280,12 +283,6 @@ def _pack_unit(q):
     if q is None:
         return None
     return q.to("kg") if q.check("[mass]") else q.to("L")
-
-
-def _default_role(basis: Basis | None, reactant: bool) -> Role:
-    if reactant:
-        return Role.REACTANT
-    return {Basis.MOL_PERCENT: Role.CATALYST, Basis.VOLUMES: Role.SOLVENT}.get(basis, Role.REAGENT)
 
 
 def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:

@@ -186,11 +186,41 @@ def _fraction(*, allow_zero: bool, allow_above_one: bool = False):
     return check
 
 
+#: Letters of other scripts that look like Latin ones, and the Latin letter each stands for
+#: (Cyrillic and Greek capitals and small letters drawn alike in common fonts).
+_LOOKALIKES = dict(zip(
+    "АВЕКМНОРСТХаеорсухіјѕԁԛԝΑΒΕΖΗΙΚΜΝΟΡΤΥΧον",
+    "ABEKMHOPCTXaeopcyxijsdqwABEZHIKMNOPTYXov"))
+
+
+def lookalike_hint(text: str) -> str | None:
+    """Name the characters of ``text`` that are not ASCII and suggest the key in Latin
+    letters where each is a look-alike; None for plain ASCII.
+
+    Examples
+    --------
+    >>> lookalike_hint("\u0410c2O")
+    "the key holds 'А' (U+0410 CYRILLIC CAPITAL LETTER A), which looks like the Latin 'A': write 'Ac2O'"
+    """
+    import unicodedata
+
+    odd = [ch for ch in dict.fromkeys(text) if ord(ch) > 127]
+    if not odd:
+        return None
+    named = ", ".join(f"'{ch}' (U+{ord(ch):04X} {unicodedata.name(ch, 'unnamed character')})" for ch in odd)
+    if all(ch in _LOOKALIKES for ch in odd):
+        latin = "".join(_LOOKALIKES.get(ch, ch) for ch in text)
+        like = ", ".join(f"'{_LOOKALIKES[ch]}'" for ch in odd)
+        return f"the key holds {named}, which looks like the Latin {like}: write '{latin}'"
+    return f"the key holds {named}; keys use Latin letters, digits, '-', '_' and '.'"
+
+
 def _material_key(value: Any) -> str:
     if isinstance(value, str) and MATERIAL_KEY.match(value):
         return value
+    hint = lookalike_hint(value) if isinstance(value, str) else None
     raise _fail(f"{describe_value(value)} is not a valid material key",
-                "use letters, digits, '-', '_' and '.', starting with a letter or digit, "
+                hint or "use letters, digits, '-', '_' and '.', starting with a letter or digit, "
                 "without spaces or '+'")
 
 
@@ -546,6 +576,9 @@ def validation_problems(error: ValidationError, positions: Positions) -> list[Pr
                 [v for v in valid if len(key) >= 2 and v.startswith(key.lower())][:1]
             message = f"unknown key '{key}'"
             hint = f"did you mean '{near[0]}'?" if near else "valid keys here: " + ", ".join(valid)
+            odd = lookalike_hint(key)
+            if odd:
+                hint = odd + ("" if near or not valid else "; valid keys here: " + ", ".join(valid))
         else:
             where = positions.at(loc, show=positions.known(loc))
             if kind == "routeplan":
