@@ -13,6 +13,7 @@ from rich.console import Console
 from rich.markup import escape
 from rich.table import Table
 
+from routeplan.views.safety_text import step_safety_lines
 from routeplan.views.tables import column_unit, raw_material_rows, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -165,6 +166,8 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
         if sp.runs:
             con.print(_step_table(sp, plan.route))
             con.print(escape(_step_footer(sp)))
+            for line in step_safety_lines(sp):
+                con.print(escape("  " + line))
         stock_line = _stock_line(sp)
         if stock_line:
             con.print(escape(stock_line))

@@ -90,10 +90,14 @@ def reaction_masses(route: "Route", steps: "tuple[StepPlan, ...]") -> dict[str, 
 
     Every charge except ``role: workup`` counts at its mass as charged (a catalyst and
     a gas taken up included); the product of a telescoped step comes in as its whole
-    mixture: the reaction mass of the step that made it plus its work-up charges (all
-    that was charged there), in proportion to the share of that step's product taken.
+    mixture: everything charged to the step that made it (its work-up charges included)
+    less the gas that step evolved (``phase: gas`` products at full conversion,
+    :func:`routeplan.plan.safety.evolved_gas_mass_kg`), in proportion to the share of
+    that step's product taken (ROUTE-FORMAT.md, "Readings fixed for the extensions").
     Divided by the batches, this is the ``m`` of the adiabatic temperature rise.
     """
+    from routeplan.plan.safety import evolved_gas_mass_kg
+
     kg, mol = unit("kg"), unit("mol")
     by_id = {sp.id: sp for sp in steps}
     maker = route.maker
@@ -112,7 +116,8 @@ def reaction_masses(route: "Route", steps: "tuple[StepPlan, ...]") -> dict[str, 
             m_all += m
             if c.role != "workup":
                 m_rxn += m
-        charged[sp.id], out[sp.id] = m_all, m_rxn
+        m_gas = evolved_gas_mass_kg(route, sp.id, sp.limiting_mol.m_as(mol))
+        charged[sp.id], out[sp.id] = m_all - m_gas, m_rxn
     return out
 
 

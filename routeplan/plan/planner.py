@@ -89,6 +89,10 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
 
     steps, batch_warnings = campaign.size_batches(route, steps)
     warnings.extend(batch_warnings)
+    from routeplan.plan.safety import assess_safety
+
+    steps, safety_warnings = assess_safety(route, steps)
+    warnings.extend(safety_warnings)
     raws = raw_material_totals(route, steps)
     plan = Plan(
         route=route,

@@ -26,7 +26,8 @@ from pydantic import TypeAdapter, ValidationError
 
 from routeplan.errors import Location, Problem, RouteError
 from routeplan.route.checks import Facts, Parts, check_parts
-from routeplan.route.model import Charge, Material, Route, Solution, Source, Step, Target, Vessel, Yield
+from routeplan.route.model import (Charge, Conditions, Dosing, Material, Route, Solution, Source, Step, Target, Thermal,
+                                   Vessel, Yield)
 from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepModel, TargetModel, VesselModel, describe_value,
                                     keys_of, validation_problems)
 from routeplan.route.yamlpos import Positions, read_yaml
@@ -260,7 +261,7 @@ def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Mater
         key=key, name=m.name if m.name is not None else key, formula=facts.formulas.get(key, m.formula),
         smiles=m.smiles, molar_mass=facts.molar_masses.get(key), assay=m.assay if m.assay is not None else 1.0,
         density=density, solution=solution, price=m.price, hazards=tuple(m.hazards or ()), notes=m.notes,
-        location=pos.at(("materials", key), key=True))
+        location=pos.at(("materials", key), key=True), phase=m.phase)
 
 
 def _default_role(basis: str | None, reactant: bool) -> str:
@@ -297,4 +298,31 @@ def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
         limiting=limiting, product=facts.product[i], yield_=Yield(y.expected, y.low, y.high),
         charges=tuple(lines), isolated=s.isolated, vessel=s.vessel,
         demonstrated_batch=s.demonstrated_batch.to("kg") if s.demonstrated_batch is not None else None,
-        notes=s.notes, location=pos.at(("steps", i)))
+        notes=s.notes, location=pos.at(("steps", i)), **_safety_parts(i, s, pos))
+
+
+def _kelvin(q):
+    return None if q is None else q.to("K")
+
+
+def _safety_parts(i: int, s: StepModel, pos: Positions) -> dict:
+    """The step's conditions, dosing and thermal data as domain objects (None where not given)."""
+    here = ("steps", i)
+    out: dict = {}
+    if s.conditions is not None:
+        c = s.conditions
+        out["conditions"] = Conditions(temperature=_kelvin(c.temperature),
+                                       pressure=None if c.pressure is None else c.pressure.to("bar"),
+                                       location=pos.at(here + ("conditions",)))
+    if s.dosing is not None:
+        out["dosing"] = Dosing(material=s.dosing.material, time=s.dosing.time.to("h"),
+                               location=pos.at(here + ("dosing",)))
+    if s.thermal is not None:
+        t = s.thermal
+        out["thermal"] = Thermal(
+            reaction_enthalpy=t.reaction_enthalpy.to("kJ/mol"), heat_capacity=t.heat_capacity.to("kJ/(kg*K)"),
+            process_temperature=_kelvin(t.process_temperature),
+            max_technical_temperature=_kelvin(t.max_technical_temperature),
+            decomposition_temperature_24h=_kelvin(t.decomposition_temperature_24h),
+            accumulation=t.accumulation, location=pos.at(here + ("thermal",)))
+    return out
