@@ -82,7 +82,7 @@ SEVERITY_HIGH_K = 200.0
 GAS_FREE_VOLUME_RATIO = 10.0
 
 #: The words every heat and gas warning ends with.
-SCREENING = ("a screening estimate; it never replaces calorimetry and a hazard assessment by qualified people")
+SCREENING = "a screening estimate that never replaces calorimetry and a hazard assessment by qualified people"
 
 #: Words in a gas's hazards that call for a vent or scrubber note.
 _VENT_WORDS = re.compile(r"\b(toxic|flammable)\b", re.I)
@@ -416,7 +416,7 @@ def _warnings(route: "Route", sp: "StepPlan", s: StepSafety) -> list[Problem]:
     out = []
 
     def warn(message: str, hint: str) -> None:
-        out.append(Problem("warning", f"step {sp.id}: {message} ({SCREENING})", location=step.location,
+        out.append(Problem("warning", f"step {sp.id}: {message}; {SCREENING}", location=step.location,
                            step=sp.id, hint=hint))
 
     t = s.thermal

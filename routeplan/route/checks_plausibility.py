@@ -19,8 +19,9 @@ from __future__ import annotations
 
 import math
 import re
-from dataclasses import dataclass
 from typing import Any, Mapping
+
+from routeplan.route.findings import Finding
 
 __all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "density_findings", "molar_mass_findings",
            "solution_findings", "mass_balance_finding"]
@@ -40,26 +41,6 @@ MASS_BALANCE_TOLERANCE = 5e-3
 #: A solute's mass per litre this close below the solution's still counts as equal [-]
 #: (absorbs the rounding of unit conversions).
 _EQUAL = 1e-9
-
-
-@dataclass(frozen=True)
-class Finding:
-    """One plausibility problem, to be located by the caller.
-
-    Parameters
-    ----------
-    severity : str
-        ``"error"`` or ``"warning"``.
-    path : tuple
-        Key path in the route file, e.g. ``("materials", "HCl6M", "solution", "molarity")``.
-    message, hint : str
-        What is wrong, and what would be right.
-    """
-
-    severity: str
-    path: tuple
-    message: str
-    hint: str | None = None
 
 
 def _g(x: float) -> str:

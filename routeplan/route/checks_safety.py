@@ -13,7 +13,7 @@ The schema reads each of ``phase``, ``conditions``, ``dosing`` and ``thermal`` o
 - a material with ``phase: gas`` needs a molar mass (``formula``, ``smiles`` or
   ``molar_mass``), for its mass in the batch.
 
-Each function returns :class:`~routeplan.route.checks_plausibility.Finding` objects;
+Each function returns :class:`~routeplan.route.findings.Finding` objects;
 :mod:`routeplan.route.checks` places them in the file.
 """
 
@@ -21,7 +21,7 @@ from __future__ import annotations
 
 from typing import Any, Iterable
 
-from routeplan.route.checks_plausibility import Finding
+from routeplan.route.findings import Finding
 
 __all__ = ["DEFAULT_TEMPERATURE_C", "DEFAULT_PRESSURE_BAR", "gas_findings", "step_safety_findings"]
 
@@ -79,8 +79,8 @@ def step_safety_findings(i: int, s, reactants: Iterable[str] | None) -> list[Fin
     dosing = getattr(s, "dosing", None)
     thermal = getattr(s, "thermal", None)
     if dosing is not None and dosing.material is not None and reactants is not None and "charges" not in _bad(s):
-        charged = [c.material for c in (s.charges or ()) if c is not None]
-        charged += [r for r in reactants if r not in charged]
+        charged = [r for r in reactants if r not in [c.material for c in (s.charges or ()) if c is not None]]
+        charged = list(dict.fromkeys([*charged, *(c.material for c in (s.charges or ()) if c is not None)]))
         if dosing.material not in charged:
             out.append(Finding("error", here + ("dosing", "material"),
                                f"the dosed material '{dosing.material}' is not charged in step {s.id}",

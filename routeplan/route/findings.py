@@ -1,0 +1,32 @@
+"""One finding of a cross-check, before the caller places it in the file.
+
+Shared by :mod:`routeplan.route.checks_plausibility` and
+:mod:`routeplan.route.checks_safety`; :mod:`routeplan.route.checks` turns each into a
+located :class:`~routeplan.errors.Problem`.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+__all__ = ["Finding"]
+
+
+@dataclass(frozen=True)
+class Finding:
+    """One plausibility problem, to be located by the caller.
+
+    Parameters
+    ----------
+    severity : str
+        ``"error"`` or ``"warning"``.
+    path : tuple
+        Key path in the route file, e.g. ``("materials", "HCl6M", "solution", "molarity")``.
+    message, hint : str
+        What is wrong, and what would be right.
+    """
+
+    severity: str
+    path: tuple
+    message: str
+    hint: str | None = None
