@@ -4,11 +4,32 @@ Every error carries where it happened (file, line, column, key path, step) and b
 one sentence: what is wrong, where, and what would be right.  The command line turns a
 :class:`RouteplanError` into a message on standard error and exit code 2; anything
 else is an internal error (exit code 1).
+
+Each error also derives from the builtin it is a kind of (``ValueError`` for bad input,
+``OSError`` for a file that cannot be written), so a caller may catch either; it keeps
+its fields as attributes (listed in the class's ``FIELDS``) and survives pickling, so an
+error raised in a worker process arrives whole.
+
+Examples
+--------
+>>> import pickle
+>>> err = QuantityError("'3 kgs' is not a mass", location=Location("r.yaml", 4, 9, "target.amount"),
+...                     hint="write e.g. '3 kg'", text="3 kgs", dimension="mass")
+>>> str(err)
+"r.yaml:4:9: target.amount: '3 kgs' is not a mass (write e.g. '3 kg')"
+>>> isinstance(err, ValueError), err.key, err.text
+(True, 'target.amount', '3 kgs')
+>>> back = pickle.loads(pickle.dumps(err))
+>>> type(back) is QuantityError and str(back) == str(err) and back.location == err.location
+True
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Any, ClassVar
+
+from routeplan.vocab import Severity
 
 __all__ = [
     "Location",
@@ -65,6 +86,20 @@ class Location:
         return Location(self.file, self.line, self.column, key)
 
 
+def _unpickle(cls: type, args: tuple, state: dict, builtin: dict) -> "RouteplanError":
+    """Rebuild a pickled error without calling its ``__init__`` (whose signature varies)."""
+    obj = cls.__new__(cls, *args)
+    obj.args = args
+    obj.__dict__.update(state)
+    for name, value in builtin.items():
+        setattr(obj, name, value)
+    return obj
+
+
+#: Attributes an ``OSError`` keeps outside ``__dict__`` (in its C structure).
+_OSERROR_SLOTS = ("errno", "strerror", "filename", "filename2")
+
+
 class RouteplanError(Exception):
     """Base class of every error routeplan raises on bad input.
 
@@ -76,11 +111,21 @@ class RouteplanError(Exception):
         Where it is.
     step : str, optional
         Id of the step concerned.
+    key : str, optional
+        Key path concerned, e.g. ``steps[2].charges[1].equiv``; by default the key of
+        ``location``.
     hint : str, optional
         What would be right.
+
+    Attributes
+    ----------
+    FIELDS : tuple of str
+        Names of the attributes that describe the error (the class's own ones after the
+        common ``message, location, step, key, hint``).
     """
 
     exit_code = 2
+    FIELDS: ClassVar[tuple[str, ...]] = ("message", "location", "step", "key", "hint")
 
     def __init__(
         self,
@@ -88,13 +133,26 @@ class RouteplanError(Exception):
         *,
         location: Location | None = None,
         step: str | None = None,
+        key: str | None = None,
         hint: str | None = None,
     ) -> None:
         self.message = message
         self.location = location
         self.step = step
+        self._key = key
         self.hint = hint
         super().__init__(self.render())
+
+    @property
+    def key(self) -> str | None:
+        """The key path concerned: as given, else the key of :attr:`location`."""
+        if self._key is not None:
+            return self._key
+        return self.location.key if self.location is not None else None
+
+    def fields(self) -> dict[str, Any]:
+        """Every field of :data:`FIELDS` by name."""
+        return {name: getattr(self, name) for name in self.FIELDS}
 
     def render(self) -> str:
         """The whole message: location prefix, message, hint."""
@@ -103,23 +161,46 @@ class RouteplanError(Exception):
             text += f" ({self.hint})"
         return text
 
+    def _builtin_state(self) -> dict[str, Any]:
+        if isinstance(self, OSError):
+            return {name: getattr(self, name) for name in _OSERROR_SLOTS}
+        return {}
+
+    def __reduce__(self):
+        return (_unpickle, (type(self), self.args, dict(self.__dict__), self._builtin_state()))
+
     def located(self, location: Location) -> "RouteplanError":
         """Return the same error placed at ``location`` (keeps the class and fields)."""
-        clone = self.__class__.__new__(self.__class__)
-        clone.__dict__.update(self.__dict__)
+        clone = _unpickle(type(self), self.args, dict(self.__dict__), self._builtin_state())
         clone.location = location
-        Exception.__init__(clone, clone.render())
+        clone.args = (clone.render(),)
         return clone
 
-    def __str__(self) -> str:  # pragma: no cover - trivial
+    def __str__(self) -> str:
         return self.render()
 
 
-class QuantityError(RouteplanError):
-    """A quantity or percent string that cannot be read, or has the wrong dimension."""
+class QuantityError(RouteplanError, ValueError):
+    """A quantity or percent string that cannot be read, or has the wrong dimension.
+
+    Attributes
+    ----------
+    text : object
+        The value as written (usually a string), or None.
+    dimension : str or None
+        The dimension expected (a key of :data:`routeplan.units.DIMENSIONS`), when one was.
+    """
+
+    FIELDS = RouteplanError.FIELDS + ("text", "dimension")
+
+    def __init__(self, message: str, *, text: Any = None, dimension: str | None = None,
+                 **kw) -> None:
+        self.text = text
+        self.dimension = dimension
+        super().__init__(message, **kw)
 
 
-class FormulaError(RouteplanError):
+class FormulaError(RouteplanError, ValueError):
     """A molecular formula that cannot be parsed.
 
     Attributes
@@ -132,6 +213,8 @@ class FormulaError(RouteplanError):
         1-based position of the token in the formula.
     """
 
+    FIELDS = RouteplanError.FIELDS + ("formula", "token", "position")
+
     def __init__(self, message: str, *, formula: str = "", token: str | None = None,
                  position: int | None = None, **kw) -> None:
         self.formula = formula
@@ -140,22 +223,48 @@ class FormulaError(RouteplanError):
         super().__init__(message, **kw)
 
 
-class EquationError(RouteplanError):
-    """A stoichiometric equation that cannot be parsed."""
+class EquationError(RouteplanError, ValueError):
+    """A stoichiometric equation that cannot be parsed or balanced.
+
+    Attributes
+    ----------
+    equation : str or None
+        The equation as written.
+    """
+
+    FIELDS = RouteplanError.FIELDS + ("equation",)
+
+    def __init__(self, message: str, *, equation: str | None = None, **kw) -> None:
+        self.equation = equation
+        super().__init__(message, **kw)
 
 
 @dataclass(frozen=True)
 class Problem:
     """One finding about a route file: an error or a warning.
 
-    ``severity`` is ``"error"`` or ``"warning"``.
+    ``severity`` is a :class:`routeplan.vocab.Severity` (given as the member or its word,
+    ``"error"`` or ``"warning"``; another word raises ``ValueError``).
+
+    >>> p = Problem("warning", "price missing", Location("r.yaml", 3, 5, "materials.nacl"))
+    >>> p.severity is Severity.WARNING, p.severity == "warning", p.key
+    (True, True, 'materials.nacl')
     """
 
-    severity: str
+    severity: Severity
     message: str
     location: Location | None = None
     step: str | None = None
     hint: str | None = None
+
+    def __post_init__(self) -> None:
+        if not isinstance(self.severity, Severity):
+            object.__setattr__(self, "severity", Severity(self.severity))
+
+    @property
+    def key(self) -> str | None:
+        """Key path of the finding (the key of its location), or None."""
+        return self.location.key if self.location is not None else None
 
     def render(self) -> str:
         text = (self.location.prefix() if self.location else "") + self.message
@@ -164,8 +273,21 @@ class Problem:
         return text
 
 
-class RouteError(RouteplanError):
-    """A route file with one or more errors; ``problems`` lists all of them."""
+class RouteError(RouteplanError, ValueError):
+    """A route file with one or more errors; ``problems`` lists all of them.
+
+    Attributes
+    ----------
+    problems : tuple of Problem
+        Every error found, in file order.
+    file : str or None
+        The route file's name as given.
+
+    With one problem, ``location``, ``step`` and ``hint`` are that problem's; with several,
+    ``location`` names the file only.
+    """
+
+    FIELDS = RouteplanError.FIELDS + ("problems", "file")
 
     def __init__(self, problems: list[Problem] | tuple[Problem, ...], *, file: str | None = None) -> None:
         self.problems = tuple(problems)
@@ -174,25 +296,64 @@ class RouteError(RouteplanError):
         head = f"{file}: " if file else ""
         if n == 1:
             msg = self.problems[0].render()
+            first = self.problems[0]
+            where = dict(location=first.location, step=first.step, hint=first.hint)
         else:
             msg = f"{head}{n} errors:\n" + "\n".join("  " + p.render() for p in self.problems)
-        super().__init__(msg)
+            where = dict(location=Location(file) if file else None)
+        super().__init__(msg, **where)
 
     def render(self) -> str:
         return self.message
 
 
-class PlanError(RouteplanError):
+class PlanError(RouteplanError, ValueError):
     """A route that is valid but cannot be planned (e.g. a zero yield)."""
 
 
-class StockError(RouteplanError):
-    """A stock file that cannot be read."""
+class StockError(RouteplanError, ValueError):
+    """A stock file that cannot be read.
+
+    Attributes
+    ----------
+    material : str or None
+        Key of the material whose line is wrong, when one is.
+    """
+
+    FIELDS = RouteplanError.FIELDS + ("material",)
+
+    def __init__(self, message: str, *, material: str | None = None, **kw) -> None:
+        self.material = material
+        super().__init__(message, **kw)
 
 
-class OutputError(RouteplanError):
-    """An output file that cannot be written."""
+class OutputError(RouteplanError, OSError):
+    """An output file that cannot be written.
+
+    It is an ``OSError`` too: ``errno`` and ``strerror`` are those of the failed system
+    call when there was one, ``filename`` (also ``path``) the file or folder concerned.
+    ``args`` is ``(message,)`` as for every routeplan error, and ``str()`` the message.
+
+    >>> err = OutputError("cannot write 'out.json': Permission denied", path="out.json",
+    ...                   errno=13, strerror="Permission denied")
+    >>> str(err), err.args == (str(err),), err.filename, err.errno
+    ("cannot write 'out.json': Permission denied", True, 'out.json', 13)
+    """
+
+    FIELDS = RouteplanError.FIELDS + ("path", "errno", "strerror")
+
+    def __init__(self, message: str, *, path: str | None = None, errno: int | None = None,
+                 strerror: str | None = None, **kw) -> None:
+        super().__init__(message, **kw)
+        self.errno = errno
+        self.strerror = strerror
+        self.filename = None if path is None else str(path)
+
+    @property
+    def path(self) -> str | None:
+        """The file or folder that could not be written (``filename``)."""
+        return self.filename
 
 
-class CompareError(RouteplanError):
+class CompareError(RouteplanError, ValueError):
     """Routes that cannot be compared (different targets, fewer than two routes)."""

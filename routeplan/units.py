@@ -147,51 +147,56 @@ def parse_quantity(text: Any, dimension: str, *, where: Location | None = None) 
     spec, example = DIMENSIONS[dimension]
     expect = f"{_article(dimension)} such as '{example}'"
     if isinstance(text, bool) or not isinstance(text, (str, int, float)):
-        raise QuantityError(f"expected {expect}, got {text!r}", location=where)
+        raise QuantityError(f"expected {expect}, got {text!r}", location=where, text=text, dimension=dimension)
     if isinstance(text, (int, float)):
         raise QuantityError(
             f"{text!r} has no unit; {_article(dimension)} needs one",
-            location=where,
+            location=where, text=text, dimension=dimension,
             hint=f"write it with its unit, e.g. '{text} {example.split()[1]}'",
         )
     if _DECIMAL_COMMA_RE.match(text):
         raise QuantityError(
             f"'{text}' uses a decimal comma; expected {expect}",
-            location=where,
+            location=where, text=text, dimension=dimension,
             hint=f"write '{text.replace(',', '.', 1).strip()}' with a decimal point",
         )
     m = _QUANTITY_RE.match(text)
     if not m:
-        raise QuantityError(f"'{text}' is not a number followed by a unit; expected {expect}", location=where)
+        raise QuantityError(f"'{text}' is not a number followed by a unit; expected {expect}",
+                            location=where, text=text, dimension=dimension)
     unit = m.group("unit")
     if not unit:
         raise QuantityError(
             f"'{text}' has no unit; {_article(dimension)} needs one",
-            location=where,
+            location=where, text=text, dimension=dimension,
             hint=f"write it with its unit, e.g. '{m.group('num')} {example.split()[1]}'",
         )
     bad = _NOT_IN_A_QUANTITY.search(unit)
     if bad:
         raise QuantityError(f"'{text}': '{bad.group(0)}' does not belong in {_article(dimension)}",
-                            location=where, hint=f"write {expect}")
+                            location=where, text=text, dimension=dimension, hint=f"write {expect}")
     if _TON.search(unit):
         raise QuantityError(f"'{text}': 'ton' is ambiguous (a US ton is 907.18 kg, a metric one 1000 kg)",
-                            location=where, hint="write 't' or 'tonne' for 1000 kg, or 'short_ton' / 'long_ton'")
+                            location=where, text=text, dimension=dimension,
+                            hint="write 't' or 'tonne' for 1000 kg, or 'short_ton' / 'long_ton'")
     unit = _POWER.sub(r"\1**\2", unit)  # cm3 and m3 as chemists write them
     ureg = registry()
     try:
         units = ureg.parse_units(unit)
     except Exception:
-        raise QuantityError(f"'{text}': unknown unit '{unit}'; expected {expect}", location=where) from None
+        raise QuantityError(f"'{text}': unknown unit '{unit}'; expected {expect}",
+                            location=where, text=text, dimension=dimension) from None
     value = float(m.group("num"))
     if not math.isfinite(value) or (value != 0 and not 1e-30 < abs(value) < 1e30):
-        raise QuantityError(f"'{text}': {m.group('num')} is out of any sensible range", location=where,
+        raise QuantityError(f"'{text}': {m.group('num')} is out of any sensible range",
+                            location=where, text=text, dimension=dimension,
                             hint=f"write {expect}")
     q = ureg.Quantity(value, units)
     if q.dimensionality != ureg.get_dimensionality(spec):
         found = dimension_name(q)
         found = found if found.startswith(("a ", "[")) else _article(found)
-        raise QuantityError(f"'{text}' is {found}, but {expect} is needed", location=where)
+        raise QuantityError(f"'{text}' is {found}, but {expect} is needed",
+                            location=where, text=text, dimension=dimension)
     return q
 
 
@@ -228,11 +233,11 @@ def parse_fraction(value: Any, *, where: Location | None = None, allow_zero: boo
     """
     if isinstance(value, bool):
         raise QuantityError(f"expected a percent such as '85 %' or a fraction such as 0.85, got {value!r}",
-                            location=where)
+                            location=where, text=value)
     if isinstance(value, (int, float)):
         frac = float(value)
         if frac != frac or frac in (float("inf"), float("-inf")):
-            raise QuantityError(f"expected a percent such as '85 %', got {value!r}", location=where)
+            raise QuantityError(f"expected a percent such as '85 %', got {value!r}", location=where, text=value)
         if frac > 1:
             if frac > 100 and not allow_above_one:
                 hint = "a percent here is at most 100 %"
@@ -241,10 +246,10 @@ def parse_fraction(value: Any, *, where: Location | None = None, allow_zero: boo
             else:
                 hint = f"write '{value:g} %' for percent, or {frac / 100:g} as a fraction"
             raise QuantityError(f"{value!r} is above 1; a plain number here is a fraction",
-                                location=where, hint=hint)
+                                location=where, text=value, hint=hint)
     elif isinstance(value, str):
         if _DECIMAL_COMMA_RE.match(value):
-            raise QuantityError(f"'{value}' uses a decimal comma", location=where,
+            raise QuantityError(f"'{value}' uses a decimal comma", location=where, text=value,
                                 hint=f"write '{value.replace(',', '.', 1).strip()}' with a decimal point")
         m = _PERCENT_RE.match(value)
         if m:
@@ -255,17 +260,18 @@ def parse_fraction(value: Any, *, where: Location | None = None, allow_zero: boo
             except ValueError:
                 raise QuantityError(
                     f"'{value}' is not a percent; expected e.g. '85 %' or a fraction such as 0.85",
-                    location=where) from None
+                    location=where, text=value) from None
             return parse_fraction(frac, where=where, allow_zero=allow_zero, allow_above_one=allow_above_one)
         if frac > 1 and not allow_above_one:
-            raise QuantityError(f"'{value}' is above 100 %", location=where)
+            raise QuantityError(f"'{value}' is above 100 %", location=where, text=value)
     else:
         raise QuantityError(f"expected a percent such as '85 %' or a fraction such as 0.85, got {value!r}",
-                            location=where)
+                            location=where, text=value)
     if frac < 0:
-        raise QuantityError(f"{value!r} is negative; expected a percent between 0 and 100 %", location=where)
+        raise QuantityError(f"{value!r} is negative; expected a percent between 0 and 100 %",
+                            location=where, text=value)
     if frac == 0 and not allow_zero:
-        raise QuantityError(f"{value!r} is zero; expected a percent above 0", location=where)
+        raise QuantityError(f"{value!r} is zero; expected a percent above 0", location=where, text=value)
     return frac
 
 

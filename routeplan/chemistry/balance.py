@@ -30,7 +30,7 @@ def _side_totals(terms: tuple[Term, ...], formulas: Mapping[str, Union[str, Form
         if term.key not in formulas or formulas[term.key] is None:
             raise EquationError(
                 f"equation '{eq.text or eq}': no formula for '{term.key}', so its atoms "
-                f"cannot be counted", hint=f"give '{term.key}' a formula")
+                f"cannot be counted", equation=eq.text or str(eq), hint=f"give '{term.key}' a formula")
         f = parse_formula(formulas[term.key])
         for sym, k in f.counts.items():
             totals.setdefault(sym, []).append(term.coefficient * k)

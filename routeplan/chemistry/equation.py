@@ -113,7 +113,7 @@ class Equation:
 
 
 def _fail(text: str, what: str, hint: str | None = None) -> EquationError:
-    return EquationError(f"equation '{text}': {what}", hint=hint)
+    return EquationError(f"equation '{text}': {what}", equation=text, hint=hint)
 
 
 def _split_arrow(text: str) -> tuple[str, str]:

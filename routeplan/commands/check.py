@@ -5,6 +5,7 @@ from __future__ import annotations
 import click
 
 from routeplan.commands.common import caution_line, echo_err, echo_warnings
+from routeplan.vocab import Severity
 
 
 def _pct(x: float) -> str:
@@ -87,13 +88,13 @@ def check_cmd(ctx: click.Context, routes: tuple[str, ...], strict: bool) -> None
             route = load_route(path)
         except RouteError as exc:
             for p in exc.problems:
-                echo_err("error: " + p.render())
+                echo_err(f"{Severity.ERROR}: {p.render()}")
             n = len(exc.problems)
             echo_err(f"{path}: {n} error{'s' if n != 1 else ''}, not a valid route")
             failed += 1
             continue
         except RouteplanError as exc:
-            echo_err("error: " + exc.render())
+            echo_err(f"{Severity.ERROR}: {exc.render()}")
             failed += 1
             continue
         valid += 1

@@ -5,6 +5,7 @@ from __future__ import annotations
 import click
 
 from routeplan import CAUTION
+from routeplan.vocab import Severity
 
 
 def echo_err(text: str) -> None:
@@ -15,7 +16,7 @@ def echo_err(text: str) -> None:
 def echo_warnings(problems, *, strict: bool = False) -> None:
     """Print warnings to standard error, one per line."""
     for p in problems:
-        echo_err(("error" if strict else "warning") + ": " + p.render())
+        echo_err(f"{Severity.ERROR if strict else Severity.WARNING}: {p.render()}")
 
 
 def caution_line() -> str:
@@ -79,3 +80,28 @@ def check_output_paths(*, json_out: str | None = None, xlsx_out: str | None = No
         if Path(csv_dir).exists() and not Path(csv_dir).is_dir():
             raise OutputError(f"'{csv_dir}' is a file, not a folder", location=Location(key="--csv"),
                               hint="give --csv a folder name")
+
+
+def confidence_option(confidence: str | None, draws: int | None, seed: int | None) -> float | None:
+    """``--confidence`` as a fraction [-], with ``--draws`` and ``--seed`` checked beside it.
+
+    Raises
+    ------
+    RouteplanError
+        A confidence that is not a percent above 0 and below 100 %, draws or a seed out
+        of range, or ``--draws`` / ``--seed`` without ``--confidence``; located at the option.
+    """
+    from routeplan.errors import Location, PlanError
+
+    if confidence is None:
+        for option, value in (("--draws", draws), ("--seed", seed)):
+            if value is not None:
+                raise PlanError("this option works only with --confidence", location=Location(key=option),
+                                hint="add e.g. --confidence '90 %'")
+        return None
+    from routeplan.plan.uncertainty import DEFAULT_DRAWS, DEFAULT_SEED, check_options
+    from routeplan.units import parse_fraction
+
+    level = parse_fraction(confidence, where=Location(key="--confidence"))
+    check_options(level, DEFAULT_DRAWS if draws is None else draws, DEFAULT_SEED if seed is None else seed)
+    return level

@@ -4,8 +4,9 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import (caution_line, check_output_paths, echo_err, echo_warnings,
-                                       write_text_output)
+from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
+                                       echo_warnings, write_text_output)
+from routeplan.vocab import YieldCase
 
 
 @click.command("compare")
@@ -17,10 +18,16 @@ from routeplan.commands.common import (caution_line, check_output_paths, echo_er
               help="Write the comparison as JSON to FILE ('-' for standard output).")
 @click.option("--xlsx", "xlsx_out", metavar="FILE",
               help="Write the comparison as a workbook to FILE.")
-@click.option("--yields", "yields", type=click.Choice(["expected", "low", "high"]), default="expected",
+@click.option("--yields", "yields", type=click.Choice([str(y) for y in YieldCase]), default=str(YieldCase.EXPECTED),
               show_default=True, help="Which yield of each step every route is planned with.")
+@click.option("--confidence", "confidence", metavar="PERCENT",
+              help='Draw every route\'s step yields from their ranges and compare the probability of delivering '
+                   'and the target to plan for PERCENT confidence, e.g. "90 %".')
+@click.option("--draws", "draws", type=int, metavar="N", help="Number of yield draws with --confidence (default 100000).")
+@click.option("--seed", "seed", type=int, metavar="S", help="Seed of the yield draws with --confidence (default 1).")
 def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | None,
-                xlsx_out: str | None, yields: str) -> None:
+                xlsx_out: str | None, yields: str, confidence: str | None, draws: int | None,
+                seed: int | None) -> None:
     """Compare two or more ROUTES to the same target, side by side.
 
     Every route is planned for the same mass of target: --target if given, else the
@@ -30,8 +37,9 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
 
     Rows: steps, longest linear sequence, overall yield, process mass intensity,
     complete and simple E-factor, raw-material cost per kg, batches and the largest
-    single raw material.  The best value of each row is marked (lower is better,
-    except overall yield), and one sentence sums up the trade-off.
+    single raw material; with --confidence, the probability of delivering and the
+    target to plan for that confidence.  The best value of each row is marked (lower is better,
+    except overall yield and probability of delivering), and one sentence sums up the trade-off.
     """
     if len(routes) < 2:
         raise click.UsageError("give at least two route files to compare")
@@ -44,8 +52,9 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
+    level = confidence_option(confidence, draws, seed)
     loaded = [load_route(path) for path in routes]
-    plans, notes = plan_for_comparison(loaded, amount, yields=yields)
+    plans, notes = plan_for_comparison(loaded, amount, yields=YieldCase(yields), confidence=level, draws=draws, seed=seed)
     cmp = compare_plans(plans, notes)
     for label, plan in zip(cmp.labels, plans):
         # a warning without a file in its location would not say which route it is about

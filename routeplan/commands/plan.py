@@ -4,8 +4,9 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import (caution_line, check_output_paths, echo_err, echo_warnings,
-                                       write_text_output)
+from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
+                                       echo_warnings, write_text_output)
+from routeplan.vocab import YieldCase
 
 
 @click.command("plan")
@@ -20,18 +21,26 @@ from routeplan.commands.common import (caution_line, check_output_paths, echo_er
               help="Write the plan's tables as CSV files into folder DIR (made if missing).")
 @click.option("--stock", "stock_file", metavar="FILE",
               help="Stock on hand (YAML, CSV or xlsx: material, amount, unit): say what it allows and what to buy.")
-@click.option("--yields", "yields", type=click.Choice(["expected", "low", "high"]), default="expected",
+@click.option("--yields", "yields", type=click.Choice([str(y) for y in YieldCase]), default=str(YieldCase.EXPECTED),
               show_default=True,
               help="Which yield of each step to plan with; 'low' sizes charges and purchases for the worst "
                    "case the yield ranges allow (a step without a range uses its expected yield).")
+@click.option("--confidence", "confidence", metavar="PERCENT",
+              help='Draw every step\'s yield from its range (beta-PERT) and run the campaign forward in each draw: '
+                   'report how sure the delivery is, and the target and purchases to be PERCENT sure, e.g. "90 %".')
+@click.option("--draws", "draws", type=int, metavar="N",
+              help="Number of yield draws with --confidence (default 100000).")
+@click.option("--seed", "seed", type=int, metavar="S", help="Seed of the yield draws with --confidence (default 1).")
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
-             csv_dir: str | None, stock_file: str | None, yields: str, strict: bool, quiet: bool) -> None:
+             csv_dir: str | None, stock_file: str | None, yields: str, confidence: str | None, draws: int | None,
+             seed: int | None, strict: bool, quiet: bool) -> None:
     """Plan every charge of every step of ROUTE for the target mass.
 
     Prints one table per step in execution order (mol, kg, L), the raw materials to
-    charge over the whole campaign, and the overall yield.
+    charge over the whole campaign, and the overall yield.  With --confidence, also how
+    sure the delivery is when the step yields vary within their ranges.
     """
     from routeplan.errors import Location
     from routeplan.plan.planner import plan_route
@@ -42,8 +51,10 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
+    level = confidence_option(confidence, draws, seed)
     r = load_route(route)
-    plan = plan_route(r, amount, stock=stock_file, yields=yields)
+    plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), confidence=level, draws=draws,
+                      seed=seed)
     if strict and plan.warnings:
         echo_warnings(plan.warnings, strict=True)
         n = len(plan.warnings)

@@ -25,11 +25,12 @@ def atomic_path(target: str | os.PathLike, *, suffix: str = "") -> Iterator[Path
     target = Path(target)
     folder = target.parent if str(target.parent) else Path(".")
     if not folder.is_dir():
-        raise OutputError(f"cannot write '{target}': folder '{folder}' does not exist")
+        raise OutputError(f"cannot write '{target}': folder '{folder}' does not exist", path=str(target))
     try:
         fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", suffix=suffix or ".tmp", dir=folder)
     except OSError as exc:
-        raise OutputError(f"cannot write '{target}': {exc.strerror}") from None
+        raise OutputError(f"cannot write '{target}': {exc.strerror}", path=str(target),
+                          errno=exc.errno, strerror=exc.strerror) from None
     os.close(fd)
     tmp_path = Path(tmp)
     umask = os.umask(0)
@@ -40,7 +41,8 @@ def atomic_path(target: str | os.PathLike, *, suffix: str = "") -> Iterator[Path
         try:
             os.replace(tmp_path, target)
         except OSError as exc:
-            raise OutputError(f"cannot write '{target}': {exc.strerror}") from None
+            raise OutputError(f"cannot write '{target}': {exc.strerror}", path=str(target),
+                              errno=exc.errno, strerror=exc.strerror) from None
     finally:
         if tmp_path.exists():
             tmp_path.unlink()

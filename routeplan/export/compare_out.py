@@ -156,7 +156,8 @@ def print_comparison(cmp: "Comparison", *, console: "Console | None" = None) -> 
             cells.append(text)
         t.add_row(*cells)
     con.print(t)
-    con.print(f"{BEST_MARK} best in its row: lower is better, except overall yield.")
+    higher = [r.short for r in cmp.rows if r.better == "higher"]
+    con.print(f"{BEST_MARK} best in its row: lower is better, except {' and '.join(higher) or 'none'}.")
     for row in cmp.rows:
         if row.note:
             con.print(f"  {escape(row.short)}: {escape(row.note)}")

@@ -160,11 +160,13 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
 
     out_dir = Path(folder)
     if out_dir.exists() and not out_dir.is_dir():
-        raise OutputError(f"'{out_dir}' is a file, not a folder", hint="give --csv a folder name")
+        raise OutputError(f"'{out_dir}' is a file, not a folder", path=str(out_dir),
+                          hint="give --csv a folder name")
     try:
         out_dir.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
-        raise OutputError(f"cannot make folder '{out_dir}': {exc.strerror}") from None
+        raise OutputError(f"cannot make folder '{out_dir}': {exc.strerror}", path=str(out_dir),
+                          errno=exc.errno, strerror=exc.strerror) from None
     when = written or datetime.now().astimezone()
     facts = summary_rows(plan, written_text(when))
     at = next((i for i, row in enumerate(facts) if row["key"] == "caution"), len(facts))

@@ -14,7 +14,7 @@ from routeplan.units import magnitude
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
 
-__all__ = ["plan_to_dict", "plan_to_json"]
+__all__ = ["plan_to_dict", "plan_to_json", "uncertainty_to_dict"]
 
 
 def _per(value: float | None, batches: int) -> float | None:
@@ -146,7 +146,32 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
             ],
             "file": s.source,
         }
+    if plan.uncertainty is not None:
+        out["uncertainty"] = uncertainty_to_dict(plan.uncertainty)
     return out
+
+
+def uncertainty_to_dict(u) -> dict[str, Any]:
+    """The ``uncertainty`` block of the route format's "Yield uncertainty", plus
+    ``contributions``, ``contribution_method``, ``ranged_steps`` and ``notes``."""
+    from routeplan.plan.uncertainty import CONTRIBUTION_METHOD
+
+    return {
+        "draws": u.draws,
+        "seed": u.seed,
+        "distribution": u.distribution,
+        "delivered_kg": {"p10": u.p10_kg, "p50": u.p50_kg, "p90": u.p90_kg, "mean": u.mean_kg},
+        "probability_of_target": u.probability_of_target,
+        "for_confidence": {
+            "confidence": u.confidence,
+            "target_kg": u.target_kg,
+            "raw_materials": [{"material": k, "mass_kg": kg} for k, kg in u.raw_materials],
+        },
+        "contributions": [{"step": sid, "share": share} for sid, share in u.contributions],
+        "contribution_method": CONTRIBUTION_METHOD,
+        "ranged_steps": list(u.ranged_steps),
+        "notes": list(u.notes),
+    }
 
 
 def plan_to_json(plan: "Plan", *, indent: int = 2) -> str:

@@ -188,6 +188,12 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
 
         for line in stock_lines(plan):
             con.print(escape(line))
+    if plan.uncertainty is not None:
+        from routeplan.views.uncertainty_text import uncertainty_lines
+
+        con.print()
+        for line in uncertainty_lines(plan):
+            con.print(escape(line))
     con.print()
     if caution:
         con.print(f"[bold]CAUTION[/bold]: {CAUTION}")

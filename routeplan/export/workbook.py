@@ -203,5 +203,5 @@ def write_workbook(plan: "Plan", path: str | os.PathLike, *, written: datetime |
         try:
             wb.close()
         except FileCreateError as exc:
-            raise OutputError(f"cannot write '{target}': {exc}") from None
+            raise OutputError(f"cannot write '{target}': {exc}", path=str(target)) from None
     return target

@@ -3,7 +3,9 @@
 Summary (columns A to L): title, caution, the plan's key facts (route, route file and
 SHA-256, date, target, overall yield, cost), the route metrics read from
 ``plan.metrics`` (process mass intensity, complete and simple E-factor, raw-material
-cost per kg of target and the raw materials without a price), a line per step with the
+cost per kg of target and the raw materials without a price), the yield uncertainty
+when ``plan.uncertainty`` is set (percentiles of the delivery, its probability, the
+target and purchases for the confidence, the step shares of the spread), a line per step with the
 names of its charge sheets and the step metrics (step and cumulative PMI, atom economy,
 reaction mass efficiency) and, under a step that takes its product from stock or does
 not run, a line that says so (a step that does not run has no charge sheet), the
@@ -20,6 +22,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 from routeplan.views.tables import Column
+from routeplan.views.uncertainty_text import uncertainty_fact_rows
 from routeplan.views.sheet_rows import STEP_METRIC_COLUMNS, STOCK_COLUMNS, material_columns, material_rows, metric_rows, raw_export_columns, raw_export_rows, step_metric_rows, step_rows, stock_rows, stock_summary_rows, summary_rows
 from routeplan.export.workbook_styles import Styles, fit_widths, lines_height, put, sheet_title, wrapped_lines
 
@@ -210,7 +213,8 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
     dict
         0-based rows: ``facts`` (first fact line), ``metrics`` (first metric line, -1
         without metrics), ``steps`` and ``raw`` (heading rows of the two tables),
-        ``raw_total`` (the total cost line, -1 without one), ``stock`` (heading row of
+        ``raw_total`` (the total cost line, -1 without one), ``uncertainty`` (first
+        line of the yield-uncertainty block, -1 without ``--confidence``), ``stock`` (heading row of
         the stock table, -1 without stock) and ``warnings`` (first warning line, -1
         without one).
     """
@@ -238,6 +242,17 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
         put(ws, r, 0, "Mass efficiency and cost, per kg of target as delivered", st.subtitle)
         out["metrics"] = r + 1
         for row in metrics:
+            r += 1
+            sh.fact(r, row)
+
+    out["uncertainty"] = -1
+    drawn = uncertainty_fact_rows(plan)
+    if drawn:
+        r += 1
+        put(ws, r, 0, "Yield uncertainty: step yields drawn within their ranges, plan at expected yields",
+            st.subtitle)
+        out["uncertainty"] = r + 1
+        for row in drawn:
             r += 1
             sh.fact(r, row)
 

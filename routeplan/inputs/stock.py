@@ -41,7 +41,7 @@ def _mass(route: "Route", key: str, text: str, where: Location) -> "pint.Quantit
     from routeplan.units import parse_quantity
 
     if key not in route.materials:
-        raise StockError(f"unknown material '{key}'", location=where,
+        raise StockError(f"unknown material '{key}'", location=where, material=str(key) or None,
                          hint=_suggest(key, route.materials))
     if route.is_intermediate(key):
         _check_intermediate(route, key, where)
@@ -52,16 +52,18 @@ def _mass(route: "Route", key: str, text: str, where: Location) -> "pint.Quantit
         try:
             q = parse_quantity(text, "volume", where=where)
         except QuantityError:
-            raise StockError(exc.message, location=where, hint=exc.hint or "give a mass such as '30 kg', "
+            raise StockError(exc.message, location=where, material=str(key) or None,
+                             hint=exc.hint or "give a mass such as '30 kg', "
                              "or a volume such as '20 L' for a material with a density") from None
         density = mat.solution.density if mat.solution is not None else mat.density
         if density is None:
             raise StockError(f"'{text}' is a volume, but material '{key}' has no density",
-                             location=where, hint="give the stock as a mass, or a density in the route file")
+                             location=where, material=str(key) or None,
+                             hint="give the stock as a mass, or a density in the route file")
         q = q * density
     q = q.to(unit("kg"))
     if q.magnitude < 0:
-        raise StockError(f"amount '{text}' of '{key}' is negative", location=where,
+        raise StockError(f"amount '{text}' of '{key}' is negative", location=where, material=str(key) or None,
                          hint="give the amount on the shelf, 0 or more")
     return q
 
@@ -75,13 +77,13 @@ def _check_intermediate(route: "Route", key: str, where: Location | None) -> Non
     """
     if key == route.target.material:
         raise StockError(f"'{key}' is the target of the route; a stock list names raw materials and "
-                         "intermediates", location=where,
+                         "intermediates", location=where, material=str(key) or None,
                          hint="plan the amount still to make with --target instead")
     maker = next(s for s in route.steps if s.product == key)
     if not maker.isolated:
         raise StockError(f"'{key}' is made in the route by telescoped step {maker.id} (isolated: false) and "
                          "goes on in solution; only an isolated intermediate can be taken from stock",
-                         location=where,
+                         location=where, material=str(key) or None,
                          hint=f"remove '{key}' from the stock list, or isolate it in step {maker.id}")
 
 
@@ -107,9 +109,11 @@ def _read_yaml(route, path: Path, data: bytes) -> dict[str, Any]:
         line, col = doc.lc.key(key)
         where = Location(str(path), line + 1, col + 1, str(key))
         if value is None:
-            raise StockError(f"'{key}' has no amount", location=where, hint="write e.g. '30 kg'")
+            raise StockError(f"'{key}' has no amount", location=where, material=str(key) or None,
+                             hint="write e.g. '30 kg'")
         if not isinstance(value, str):
-            raise StockError(f"amount {value!r} has no unit", location=where, hint=f"write e.g. '{value} kg'")
+            raise StockError(f"amount {value!r} has no unit", location=where, material=str(key) or None,
+                             hint=f"write e.g. '{value} kg'")
         out[str(key)] = _mass(route, str(key), value, where)
     return out
 
@@ -143,13 +147,15 @@ def _table(route, path: Path, rows: list[list[Any]], cell) -> dict[str, Any]:
         amount, unit = get("amount"), str(get("unit") or "").strip()
         where = Location(str(path), r, None, cell(r, idx["material"]))
         if not key:
-            raise StockError("row has no material", location=where)
+            raise StockError("row has no material", location=where, material=str(key) or None)
         if amount is None or str(amount).strip() == "":
-            raise StockError(f"row of '{key}' has no amount", location=where)
+            raise StockError(f"row of '{key}' has no amount", location=where, material=str(key) or None)
         if not unit:
-            raise StockError(f"row of '{key}' has no unit", location=where, hint="e.g. kg, lb or L")
+            raise StockError(f"row of '{key}' has no unit", location=where, material=str(key) or None,
+                             hint="e.g. kg, lb or L")
         if key in out:
-            raise StockError(f"'{key}' is listed twice", location=where, hint="give one row per material")
+            raise StockError(f"'{key}' is listed twice", location=where, material=str(key) or None,
+                             hint="give one row per material")
         text = f"{amount} {unit}" if not isinstance(amount, str) else f"{amount.strip()} {unit}"
         out[key] = _mass(route, key, text, where)
     return out
@@ -228,7 +234,7 @@ def load_stock(route: "Route", stock: "str | Path | Mapping[str, pint.Quantity]"
             where = Location(key=key)
             _check_intermediate(route, key, where)
             if mass.magnitude < 0:
-                raise StockError(f"amount {mass:~P} of '{key}' is negative", location=where,
+                raise StockError(f"amount {mass:~P} of '{key}' is negative", location=where, material=str(key) or None,
                                  hint="give the amount on the shelf, 0 or more")
     return on_hand, None
 

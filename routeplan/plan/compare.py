@@ -16,6 +16,7 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any, Sequence
 
 from routeplan.errors import CompareError, RouteplanError
+from routeplan.vocab import BetterIs, YieldCase
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -39,8 +40,9 @@ __all__ = [
     "tradeoff_sentence",
 ]
 
-LOWER = "lower"
-HIGHER = "higher"
+#: A row whose lowest value is best / whose highest value is best.
+LOWER = BetterIs.LOWER
+HIGHER = BetterIs.HIGHER
 
 #: Largest relative difference of two molar masses still taken as the same target [-]
 #: (the route format's tolerance between a formula and an explicit molar mass, 0.1 %).
@@ -68,7 +70,7 @@ class CompareRow:
     kind : str
         How to show a value: ``"count"``, ``"fraction"`` (shown as %), ``"ratio"``,
         ``"money"`` or ``"mass"``.
-    better : str or None
+    better : BetterIs or None
         :data:`LOWER`, :data:`HIGHER`, or None for a row that is not ranked by nature.
     values : tuple
         One value per route, in route order; None where there is none.
@@ -87,7 +89,7 @@ class CompareRow:
     short: str
     unit: str
     kind: str
-    better: str | None
+    better: BetterIs | None
     values: tuple[Any, ...]
     labels: tuple[str | None, ...] = ()
     best: tuple[int, ...] = ()
@@ -260,11 +262,14 @@ def comparison_amount(routes: Sequence["Route"], target: "pint.Quantity | str | 
 
 
 def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str | None" = None, *,
-                        yields: str = "expected"):
+                        yields: YieldCase | str = YieldCase.EXPECTED, confidence: float | None = None,
+                        draws: int | None = None, seed: int | None = None):
     """Check the routes share a target, then plan each for the same target mass.
 
-    ``yields`` (``"expected"``, ``"low"`` or ``"high"``) is the step-yield basis every
-    route is planned at (see :func:`routeplan.plan.planner.plan_route`).
+    ``yields`` (a :class:`~routeplan.vocab.YieldCase` or its word) is the step-yield basis every
+    route is planned at (see :func:`routeplan.plan.planner.plan_route`).  With
+    ``confidence`` [-], every route's yields are drawn (``draws``, ``seed``) and the
+    comparison gains the probability of delivering and the target for that confidence.
 
     Returns
     -------
@@ -277,16 +282,20 @@ def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str 
 
     check_same_target(routes)
     amount, notes = comparison_amount(routes, target)
-    plans = tuple(plan_route(r, amount, yields=yields) for r in routes)
-    if yields != "expected":
+    plans = tuple(plan_route(r, amount, yields=yields, confidence=confidence, draws=draws, seed=seed)
+                  for r in routes)
+    if yields != YieldCase.EXPECTED:
         notes = [*notes, f"every route is planned at its steps' {yields} yields"]
+    if confidence is not None:
+        u = plans[0].uncertainty
+        notes = [*notes, f"every route's step yields are drawn {u.draws} times ({u.distribution}, seed {u.seed})"]
     return plans, notes
 
 
 # --------------------------------------------------------------------- ranking
 
 
-def best_indices(values: Sequence[float | None], better: str | None) -> tuple[int, ...]:
+def best_indices(values: Sequence[float | None], better: BetterIs | str | None) -> tuple[int, ...]:
     """Indices of the best values: the lowest, or the highest for :data:`HIGHER`.
 
     Values within a relative 1e-9 of the best tie.  Empty when ``better`` is None,
@@ -401,6 +410,34 @@ def _cost_row(plans: Sequence["Plan"]) -> CompareRow:
                 LOWER, values, labels, note)
 
 
+def _uncertainty_rows(plans: Sequence["Plan"]) -> tuple[CompareRow, ...]:
+    """Probability of delivering and the confidence target, when the yields were drawn.
+
+    A route whose steps give no yield range carries no uncertainty: it has no value in
+    these rows (never a probability of 1), and the rows are then not ranked.
+    """
+    us = [p.uncertainty for p in plans]
+    if any(u is None for u in us):
+        return ()
+    flat = [p.route.name for p, u in zip(plans, us) if not u.carries_uncertainty]
+    note = None
+    if flat:
+        note = (f"not ranked: {_join(flat)} {'carries' if len(flat) == 1 else 'carry'} no uncertainty "
+                "(no step gives a yield range)")
+    labels = [None if u.carries_uncertainty else "no yield ranges: carries no uncertainty" for u in us]
+    if not flat:
+        labels = []
+    level = f"{100 * us[0].confidence:g} %"
+    return (
+        _row("probability_of_target", "probability of delivering the target (yields drawn)",
+             "probability of delivering", "-", "fraction", HIGHER,
+             [u.probability_of_target if u.carries_uncertainty else None for u in us], labels, note),
+        _row("confidence_target", f"target to plan for {level} confidence, before overage",
+             "confidence target", "kg", "mass", LOWER,
+             [u.target_kg if u.carries_uncertainty else None for u in us], labels, note),
+    )
+
+
 def _rows(plans: Sequence["Plan"]) -> tuple[CompareRow, ...]:
     ms = [p.metrics for p in plans]
     largest = [m.largest_raw_material for m in ms]
@@ -424,7 +461,7 @@ def _rows(plans: Sequence["Plan"]) -> tuple[CompareRow, ...]:
         _row("largest_raw_material", "largest single raw material", "largest single raw material", "kg",
              "mass", LOWER, [None if x is None else x[1] for x in largest],
              [None if x is None else x[0] for x in largest]),
-    )
+    ) + _uncertainty_rows(plans)
 
 
 def compare_plans(plans: Sequence["Plan"], notes: Sequence[str] = ()) -> Comparison:

@@ -327,6 +327,9 @@ class Plan:
         Stock comparison, when a stock list was given.
     yield_basis : str
         Which step yields the walk used: ``"expected"``, ``"low"`` or ``"high"``.
+    uncertainty : Uncertainty or None
+        Yield draws around the plan (:mod:`routeplan.plan.uncertainty`), when a
+        confidence was asked for.
     """
 
     route: "Route"
@@ -340,6 +343,7 @@ class Plan:
     metrics: Any = None
     stock: StockPlan | None = None
     yield_basis: str = "expected"
+    uncertainty: Any = None
 
     def __hash__(self) -> int:
         return id(self)

@@ -11,7 +11,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from routeplan.errors import PlanError, Problem
+from routeplan.errors import Location, PlanError, Problem
 from routeplan.plan.walk import YIELD_BASES, target_moles, walk_steps
 from routeplan.units import unit
 
@@ -25,7 +25,8 @@ __all__ = ["plan_route"]
 
 
 def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None,
-               yields: str = "expected") -> "Plan":
+               yields: str = "expected", confidence: float | None = None, draws: int | None = None,
+               seed: int | None = None) -> "Plan":
     """Plan a campaign: every charge of every step for a target mass.
 
     Parameters
@@ -45,6 +46,15 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         Which yield of each step the walk uses; a step without a ``low`` or ``high``
         uses its expected yield.  Planning at the low yields sizes charges and purchases
         for a campaign in which every step does as badly as its range allows.
+    confidence : float, optional
+        With it, the step yields are drawn and the campaign run forward in every draw
+        (:func:`routeplan.plan.uncertainty.yield_uncertainty`): the plan's
+        ``uncertainty`` holds the spread of the delivery, its probability, and the target
+        and purchases for this confidence [-] (e.g. 0.9).  Needs ``yields="expected"``.
+    draws : int, optional
+        Number of draws (default 100 000).
+    seed : int, optional
+        Seed of the draws (default 1).
 
     Returns
     -------
@@ -60,6 +70,15 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     from routeplan.plan.totals import overall_yield, raw_material_totals
     from routeplan.units import parse_quantity
 
+    if confidence is not None:
+        from routeplan.plan.uncertainty import DEFAULT_DRAWS, DEFAULT_SEED, check_options
+
+        draws = DEFAULT_DRAWS if draws is None else draws
+        seed = DEFAULT_SEED if seed is None else seed
+        check_options(confidence, draws, seed)
+        if yields != "expected":
+            raise PlanError(f"yield uncertainty is drawn around the plan at the expected yields, not the {yields} ones",
+                            location=Location(key="--yields"), hint="leave out --yields with --confidence")
     if yields not in YIELD_BASES:
         raise PlanError(f"unknown yield basis '{yields}'", hint="use expected, low or high")
     if target is None:
@@ -114,6 +133,10 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         from routeplan.plan.stock import stock_plan
 
         plan = replace(plan, stock=stock_plan(plan, on_hand, source=source))
+    if confidence is not None:
+        from routeplan.plan.uncertainty import yield_uncertainty
+
+        plan = replace(plan, uncertainty=yield_uncertainty(plan, confidence=confidence, draws=draws, seed=seed))
     return plan
 
 

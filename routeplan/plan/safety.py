@@ -34,6 +34,7 @@ from typing import TYPE_CHECKING
 from routeplan.errors import Problem
 from routeplan.route.checks_safety import DEFAULT_PRESSURE_BAR, DEFAULT_TEMPERATURE_C
 from routeplan.units import unit
+from routeplan.vocab import Severity
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import StepPlan
@@ -416,7 +417,7 @@ def _warnings(route: "Route", sp: "StepPlan", s: StepSafety) -> list[Problem]:
     out = []
 
     def warn(message: str, hint: str) -> None:
-        out.append(Problem("warning", f"step {sp.id}: {message}; {SCREENING}", location=step.location,
+        out.append(Problem(Severity.WARNING, f"step {sp.id}: {message}; {SCREENING}", location=step.location,
                            step=sp.id, hint=hint))
 
     t = s.thermal

@@ -29,6 +29,7 @@ from routeplan.route import checks_plausibility as plausible
 from routeplan.route import checks_safety
 from routeplan.route.schema import CHARGE_BASES, MaterialModel, StepModel, TargetModel, VesselModel
 from routeplan.route.yamlpos import Positions
+from routeplan.vocab import Basis, Severity
 
 __all__ = ["Parts", "Facts", "check_parts", "suggest", "MOLAR_MASS_TOLERANCE"]
 
@@ -128,13 +129,13 @@ class _Checker:
         self.molar_use: dict[str, tuple] = {}  # material -> path of its first molar use
 
     # -- helpers
-    def add(self, severity: str, path: tuple, message: str, hint: str | None = None, *,
+    def add(self, severity: Severity, path: tuple, message: str, hint: str | None = None, *,
             key: bool = False, step: str | None = None, show: tuple | None = None) -> None:
         self.problems.append(Problem(severity, message, self.pos.at(path, key=key, show=show), step, hint))
 
     def unknown_material(self, name: str, path: tuple, what: str, step: str | None = None) -> None:
         hint = suggest(name, self.parts.material_keys, formulas=self.facts.formulas)
-        self.add("error", path, f"{what} '{name}' is not a material of this route", hint or
+        self.add(Severity.ERROR, path, f"{what} '{name}' is not a material of this route", hint or
                  "add it under 'materials'", step=step)
 
     def known(self, name: str) -> bool:
@@ -154,7 +155,7 @@ class _Checker:
                     computed, source = molar_mass(m.formula).to("g/mol"), "formula"
                     self.facts.formulas[key] = m.formula
                 except FormulaError as exc:
-                    self.add("error", here + ("formula",), exc.message, exc.hint)
+                    self.add(Severity.ERROR, here + ("formula",), exc.message, exc.hint)
             if m.smiles is not None:
                 needed = m.formula is None and m.molar_mass is None
                 smiles_mass = self.from_smiles(key, m, needed=needed)
@@ -187,7 +188,7 @@ class _Checker:
         a, b = value.magnitude, reference.magnitude
         rel = abs(a - b) / b
         if rel > MOLAR_MASS_TOLERANCE:
-            self.add("error", path, f"the molar mass {what}, {a:.6g} g/mol, disagrees with {b:.6g} g/mol from the "
+            self.add(Severity.ERROR, path, f"the molar mass {what}, {a:.6g} g/mol, disagrees with {b:.6g} g/mol from the "
                      f"{source} by {_pct(rel)} (more than {_pct(MOLAR_MASS_TOLERANCE)})",
                      "correct one of them" + (", or leave molar_mass out" if path[-1] == "molar_mass" else ""))
 
@@ -198,7 +199,7 @@ class _Checker:
             from rdkit.Chem import rdMolDescriptors
         except ImportError:
             if needed:
-                self.add("error", ("materials", key, "smiles"),
+                self.add(Severity.ERROR, ("materials", key, "smiles"),
                          "reading a SMILES needs RDKit, which is not installed",
                          "install the 'smiles' extra (pip install 'routeplan[smiles]') or give a formula")
             return None
@@ -216,14 +217,14 @@ class _Checker:
                     found = [p.Message() for p in Chem.DetectChemistryProblems(raw)]
                     detail = "; ".join(found) if found else "RDKit cannot sanitise it"
         if mol is None:
-            self.add("error", ("materials", key, "smiles"), f"'{m.smiles}' is not a valid SMILES: {detail}",
+            self.add(Severity.ERROR, ("materials", key, "smiles"), f"'{m.smiles}' is not a valid SMILES: {detail}",
                      "correct the SMILES, or give a formula instead")
             return None
         formula = rdMolDescriptors.CalcMolFormula(mol)
         try:
             mass = molar_mass(formula).to("g/mol")
         except FormulaError as exc:  # pragma: no cover - RDKit writes formulas we read
-            self.add("error", ("materials", key, "smiles"), exc.message, exc.hint)
+            self.add(Severity.ERROR, ("materials", key, "smiles"), exc.message, exc.hint)
             return None
         self.facts.formulas.setdefault(key, formula)
         return mass
@@ -233,16 +234,16 @@ class _Checker:
         s = m.solution
         if (s.molarity is None) == (s.mass_fraction is None):
             both = s.molarity is not None
-            self.add("error", here + ("solution",),
+            self.add(Severity.ERROR, here + ("solution",),
                      "gives both molarity and mass_fraction" if both else "gives neither molarity nor mass_fraction",
                      "a solution takes exactly one of them, e.g. {molarity: 2.5 mol/L, density: 0.69 g/mL}")
         if m.assay is not None:
-            self.add("error", here + ("assay",), "assay does not apply to a solution",
+            self.add(Severity.ERROR, here + ("assay",), "assay does not apply to a solution",
                      "give the strength as solution.molarity or solution.mass_fraction and remove assay")
         if m.density is not None:
             a, b = m.density.to("g/mL").magnitude, s.density.to("g/mL").magnitude
             if abs(a - b) > _DENSITY_TOLERANCE * b:
-                self.add("error", here + ("density",),
+                self.add(Severity.ERROR, here + ("density",),
                          f"density {a:g} g/mL differs from solution.density {b:g} g/mL",
                          "a solution's density goes in solution.density only; remove this one")
         if s.density is not None:
@@ -262,19 +263,19 @@ class _Checker:
                 try:
                     eq = parse_equation(s.equation)
                 except EquationError as exc:
-                    self.add("error", here + ("equation",), exc.message, exc.hint, step=s.id)
+                    self.add(Severity.ERROR, here + ("equation",), exc.message, exc.hint, step=s.id)
             if eq is not None:
                 self.equation(i, s, eq)
             if s.vessel is not None and s.vessel not in self.parts.equipment:
                 hint = suggest(s.vessel, self.parts.equipment) if self.parts.equipment else \
                     "the route has no 'equipment'; add the vessel there"
-                self.add("error", here + ("vessel",), f"vessel '{s.vessel}' is not in equipment",
+                self.add(Severity.ERROR, here + ("vessel",), f"vessel '{s.vessel}' is not in equipment",
                          hint or "valid vessels: " + ", ".join(self.parts.equipment), step=s.id)
             y = s.yield_
             for bound, ok in (("low", y is None or y.low is None or y.low <= y.expected),
                               ("high", y is None or y.high is None or y.expected <= y.high)):
                 if not ok:
-                    self.add("error", here + ("yield", bound),
+                    self.add(Severity.ERROR, here + ("yield", bound),
                              f"the expected yield {_pct(y.expected)} is outside low..high "
                              f"({_pct(y.low)} to {_pct(y.high)})", "low <= expected <= high", step=s.id)
             self.charges(i, s, eq)
@@ -307,7 +308,7 @@ class _Checker:
                 continue
             else:
                 msg = f"'{value}' is not in the equation"
-            self.add("error", here + (name,), msg, f"the {word}s are: " + ", ".join(side), step=s.id)
+            self.add(Severity.ERROR, here + (name,), msg, f"the {word}s are: " + ", ".join(side), step=s.id)
         if limiting in reactants and product in products:
             self.facts.limiting[i] = limiting
             self.facts.product[i] = product
@@ -332,34 +333,34 @@ class _Checker:
                 continue
             bases = [b for b in CHARGE_BASES if getattr(c, b) is not None]
             if len(bases) > 1:
-                self.add("error", at + (bases[1],), f"the line gives both {bases[0]} and {bases[1]}",
+                self.add(Severity.ERROR, at + (bases[1],), f"the line gives both {bases[0]} and {bases[1]}",
                          "a charge line takes at most one basis", key=True, step=s.id)
             basis = bases[0] if bases else None
-            if basis in ("equiv", "mol_percent"):
+            if basis in (Basis.EQUIV, Basis.MOL_PERCENT):
                 self.molar_use.setdefault(c.material, at + (basis,))
-            if basis == "volumes":
+            if basis == Basis.VOLUMES:
                 m = self.parts.materials.get(c.material)
                 if m is not None and _absent(m, "density") and _absent(m, "solution"):
-                    self.add("error", at + ("volumes",),
+                    self.add(Severity.ERROR, at + ("volumes",),
                              f"'{c.material}' is charged by volumes but has no density",
                              f"add density (e.g. 'density: 0.889 g/mL') to materials.{c.material}, "
                              "or charge it by mass_ratio", step=s.id)
             if not eq_ok:
                 continue
             if c.material == product:
-                self.add("error", at + ("material",), f"'{c.material}' is the product of this step; "
+                self.add(Severity.ERROR, at + ("material",), f"'{c.material}' is the product of this step; "
                          "a step cannot charge its own product", step=s.id)
             elif c.material == limiting:
                 if seen_limiting:
-                    self.add("error", at + ("material",), f"the limiting reagent '{limiting}' is charged "
+                    self.add(Severity.ERROR, at + ("material",), f"the limiting reagent '{limiting}' is charged "
                              "twice", "charge it on one line; it is the basis of every other line", step=s.id)
                 seen_limiting = True
-                if basis is not None and not (basis == "equiv" and c.equiv == 1):
-                    self.add("error", at + (basis,), f"the limiting reagent '{limiting}' is charged at 1 equiv "
+                if basis is not None and not (basis == Basis.EQUIV and c.equiv == 1):
+                    self.add(Severity.ERROR, at + (basis,), f"the limiting reagent '{limiting}' is charged at 1 equiv "
                              f"by definition; it cannot take {basis}: {getattr(c, basis):g}",
                              "remove the basis, or make another reactant 'limiting'", step=s.id)
             elif basis is None and c.material not in reactants:
-                self.add("error", at, f"'{c.material}' is not a reactant of the equation, so its line needs "
+                self.add(Severity.ERROR, at, f"'{c.material}' is not a reactant of the equation, so its line needs "
                          "a basis", "give one of equiv, mol_percent, volumes or mass_ratio", step=s.id)
         if eq_ok:
             self.stoichiometry(i, s, eq)
@@ -386,7 +387,7 @@ class _Checker:
             else:
                 if total < ratio * (1 - _STOICH_TOLERANCE) - 1e-12:
                     j = lines[0][0]
-                    self.add("warning", ("steps", i, "charges", j),
+                    self.add(Severity.WARNING, ("steps", i, "charges", j),
                              f"'{t.key}' is charged at {total:.4g} equiv, below its stoichiometric ratio "
                              f"{ratio:.4g} from the equation; it would be the real limiting reagent",
                              f"charge at least {ratio:.4g} equiv, or make '{t.key}' the limiting reagent",
@@ -427,14 +428,14 @@ class _Checker:
                 continue  # a material with a schema error: its molar mass may be what is wrong
             if m.formula is not None or (m.smiles is not None and m.molar_mass is None):
                 continue  # its formula or SMILES could not be read: reported already
-            self.add("error", ("materials", key),
+            self.add(Severity.ERROR, ("materials", key),
                      f"'{key}' is used on a molar basis ({_fmt(path)}) but has no molar mass",
                      "give formula, smiles or molar_mass", key=True)
 
     def currency(self) -> None:
         priced = [k for k, m in self.parts.materials.items() if m is not None and m.price is not None]
         if priced and self.parts.currency is None:
-            self.add("warning", ("materials", priced[0], "price"),
+            self.add(Severity.WARNING, ("materials", priced[0], "price"),
                      f"{len(priced)} material(s) have a price but the route has no currency; "
                      "no cost will be computed", "add e.g. 'currency: EUR' at the top level")
 
@@ -454,7 +455,7 @@ class _Checker:
         first_id: dict[str, int] = {}
         for i, s in enumerate(steps):
             if s.id in first_id:
-                self.add("error", ("steps", i, "id"), f"duplicate step id '{s.id}'",
+                self.add(Severity.ERROR, ("steps", i, "id"), f"duplicate step id '{s.id}'",
                          f"steps[{first_id[s.id]}] has the same id; step ids must be unique", step=s.id)
             else:
                 first_id[s.id] = i
@@ -464,7 +465,7 @@ class _Checker:
             if p in made_by:
                 k = made_by[p]
                 path = ("steps", i, "product") if s.product is not None else ("steps", i, "equation")
-                self.add("error", path, f"'{p}' is the main product of two steps: {steps[k].id} and {s.id}",
+                self.add(Severity.ERROR, path, f"'{p}' is the main product of two steps: {steps[k].id} and {s.id}",
                          "each material is made by at most one step; give them different keys", step=s.id)
             else:
                 made_by[p] = i
@@ -474,7 +475,7 @@ class _Checker:
         if t is not None and t.material is not None and self.known(t.material) and t.material not in made_by:
             byproduct = [s.id for i, s in enumerate(steps) if i in self.facts.equations
                          and t.material in [x.key for x in self.facts.equations[i].products]]
-            self.add("error", ("target", "material"), f"no step makes the target '{t.material}' as its product",
+            self.add(Severity.ERROR, ("target", "material"), f"no step makes the target '{t.material}' as its product",
                      (f"it is only a by-product of {', '.join(byproduct)}; set that step's 'product'"
                       if byproduct else "add the step that makes it"))
         self.graph(steps, made_by)
@@ -493,7 +494,7 @@ class _Checker:
         cycle = find_step_cycle(stand_ins)
         if cycle:
             i = next(k for k, s in enumerate(steps) if s.id == cycle[0])
-            self.add("error", ("steps", i, "id"), "the steps form a cycle: " + " -> ".join(cycle),
+            self.add(Severity.ERROR, ("steps", i, "id"), "the steps form a cycle: " + " -> ".join(cycle),
                      "a step cannot use, directly or through other steps, what it makes itself", step=cycle[0])
             return
         t = self.parts.target
@@ -506,7 +507,7 @@ class _Checker:
         keep = nx.ancestors(g, final) | {final}
         for i, s in enumerate(steps):
             if s.id not in keep:
-                self.add("warning", ("steps", i, "id"),
+                self.add(Severity.WARNING, ("steps", i, "id"),
                          f"step {s.id} does not lead to the target '{t.material}'; its product "
                          f"'{self.facts.product[i]}' is used by no step on the way",
                          "remove the step or charge its product where it is needed", step=s.id)
@@ -529,7 +530,7 @@ class _Checker:
             diff = {el: d for el, d in diff.items() if abs(d) > 1e-9}
             if diff:
                 s = self.parts.steps[i]
-                self.add("warning", ("steps", i, "equation"), describe_imbalance(diff, s.id),
+                self.add(Severity.WARNING, ("steps", i, "equation"), describe_imbalance(diff, s.id),
                          "check the coefficients and the formulas", step=s.id)
 
 

@@ -22,6 +22,7 @@ import re
 from typing import Any, Mapping
 
 from routeplan.route.findings import Finding
+from routeplan.vocab import Severity
 
 __all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "density_findings", "molar_mass_findings",
            "solution_findings", "mass_balance_finding"]
@@ -97,7 +98,7 @@ def density_findings(path: tuple, density) -> list[Finding]:
         hint = f"was {_g(fixed)} g/mL meant? {unit_words}"
     elif rho < low:
         hint += "; a gas charged by mass needs no density"
-    return [Finding("error", path, message, hint)]
+    return [Finding(Severity.ERROR, path, message, hint)]
 
 
 def molar_mass_findings(path: tuple, molar_mass) -> list[Finding]:
@@ -136,7 +137,7 @@ def molar_mass_findings(path: tuple, molar_mass) -> list[Finding]:
     hint = "check the unit and the decimal point"
     if m * 1000 >= h:
         hint = f"was {_g(m * 1000)} g/mol meant? " + hint
-    return [Finding("error", path, f"molar mass {shown} is less than that of a hydrogen atom, "
+    return [Finding(Severity.ERROR, path, f"molar mass {shown} is less than that of a hydrogen atom, "
                                    f"{h:.4g} g/mol, the lightest of all", hint)]
 
 
@@ -169,7 +170,7 @@ def solution_findings(key: str, solution, molar_mass) -> list[Finding]:
     rho = float(density.m_as("g/mL"))              # = kg of solution per litre
     out = []
     if solution.mass_fraction is not None and solution.mass_fraction >= 1 - _EQUAL:
-        out.append(Finding("error", here + ("mass_fraction",),
+        out.append(Finding(Severity.ERROR, here + ("mass_fraction",),
                            "a mass fraction of 100 % leaves no solvent: this is the neat compound, not a solution",
                            f"describe the neat material with 'density: {_g(rho)} g/mL' and no solution, "
                            f"or give the real mass fraction"))
@@ -179,7 +180,7 @@ def solution_findings(key: str, solution, molar_mass) -> list[Finding]:
         solute = c * m / 1000                       # kg of solute per litre
         if solute >= rho * (1 - _EQUAL):
             limit = rho * 1000 / m                  # mol/L at which the solute would be all the mass
-            out.append(Finding("error", here + ("molarity",),
+            out.append(Finding(Severity.ERROR, here + ("molarity",),
                                f"{_g(c)} mol/L × {_g(m)} g/mol is {_g(solute)} kg of solute per litre, but a litre "
                                f"of this solution, at {_g(rho)} g/mL, weighs only {_g(rho)} kg",
                                _molarity_hint(c, limit, rho)))
@@ -235,7 +236,7 @@ def mass_balance_finding(path: tuple, step_id: str | None, equation,
         return None
     who = f"step {step_id}" if step_id is not None else "the equation"
     how = "more" if diff > 0 else "less"
-    return Finding("warning", path,
+    return Finding(Severity.WARNING, path,
                    f"{who} does not balance by mass: the products weigh {_g(abs(diff))} g/mol {how} than the "
                    f"reactants ({_g(products)} vs {_g(reactants)} g/mol)",
                    "check the coefficients and the molar masses; atom economy would be wrong")

@@ -22,6 +22,7 @@ from __future__ import annotations
 from typing import Any, Iterable
 
 from routeplan.route.findings import Finding
+from routeplan.vocab import Severity
 
 __all__ = ["DEFAULT_TEMPERATURE_C", "DEFAULT_PRESSURE_BAR", "gas_findings", "step_safety_findings"]
 
@@ -45,7 +46,7 @@ def gas_findings(materials: dict[str, Any]) -> list[Finding]:
             continue
         if any(getattr(m, k) is not None or k in _bad(m) for k in ("formula", "smiles", "molar_mass")):
             continue
-        out.append(Finding("error", ("materials", key, "phase"),
+        out.append(Finding(Severity.ERROR, ("materials", key, "phase"),
                            f"'{key}' is a gas (phase: gas) but has no formula or molar mass",
                            "give its formula (e.g. 'formula: CO2'): the moles and the mass of a gas per batch "
                            "need its molar mass"))
@@ -82,13 +83,13 @@ def step_safety_findings(i: int, s, reactants: Iterable[str] | None) -> list[Fin
         charged = [r for r in reactants if r not in [c.material for c in (s.charges or ()) if c is not None]]
         charged = list(dict.fromkeys([*charged, *(c.material for c in (s.charges or ()) if c is not None)]))
         if dosing.material not in charged:
-            out.append(Finding("error", here + ("dosing", "material"),
+            out.append(Finding(Severity.ERROR, here + ("dosing", "material"),
                                f"the dosed material '{dosing.material}' is not charged in step {s.id}",
                                "dose one of its charges: " + ", ".join(charged)))
     if thermal is None:
         return out
     if thermal.accumulation is not None and dosing is None and "dosing" not in _bad(s):
-        out.append(Finding("error", here + ("thermal", "accumulation"),
+        out.append(Finding(Severity.ERROR, here + ("thermal", "accumulation"),
                            "accumulation applies to a dosed step only, and this step has no dosing",
                            "add 'dosing: {material: KEY, time: 2 h}' to the step, or remove accumulation "
                            "(a batch step accumulates everything)"))
@@ -102,7 +103,7 @@ def step_safety_findings(i: int, s, reactants: Iterable[str] | None) -> list[Fin
             tp, tp_from = DEFAULT_TEMPERATURE_C + 273.15, "the default 20 degC"
     mtt = _kelvin(thermal.max_technical_temperature)
     if tp is not None and mtt is not None and mtt < tp:
-        out.append(Finding("error", here + ("thermal", "max_technical_temperature"),
+        out.append(Finding(Severity.ERROR, here + ("thermal", "max_technical_temperature"),
                            f"the MTT {_celsius(mtt)} is below the process temperature Tp {_celsius(tp)} "
                            f"({tp_from})",
                            "the MTT is the boiling point of the mixture or the relief's set temperature, "

@@ -8,6 +8,10 @@ located :class:`~routeplan.errors.Problem`.
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.vocab import Severity
 
 __all__ = ["Finding"]
 
@@ -18,15 +22,16 @@ class Finding:
 
     Parameters
     ----------
-    severity : str
-        ``"error"`` or ``"warning"``.
+    severity : Severity
+        :attr:`Severity.ERROR` or :attr:`Severity.WARNING` (equal to ``"error"`` and
+        ``"warning"``).
     path : tuple
         Key path in the route file, e.g. ``("materials", "HCl6M", "solution", "molarity")``.
     message, hint : str
         What is wrong, and what would be right.
     """
 
-    severity: str
+    severity: "Severity"
     path: tuple
     message: str
     hint: str | None = None

@@ -31,6 +31,7 @@ from routeplan.route.model import (Charge, Conditions, Dosing, Material, Route, 
 from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepModel, TargetModel, VesselModel, describe_value,
                                     keys_of, validation_problems)
 from routeplan.route.yamlpos import Positions, read_yaml
+from routeplan.vocab import GIVEN_BASES, Basis, Role, Severity
 
 __all__ = ["load_route", "load_route_text", "MAX_BYTES"]
 
@@ -109,7 +110,7 @@ def load_route_text(text: str, filename: str = "<route>") -> Route:
 
 
 def _one(file: str, message: str, hint: str | None = None) -> RouteError:
-    return RouteError([Problem("error", message, Location(file), hint=hint)], file=file)
+    return RouteError([Problem(Severity.ERROR, message, Location(file), hint=hint)], file=file)
 
 
 def _load_bytes(data: bytes, file: str) -> Route:
@@ -122,7 +123,7 @@ def _load_bytes(data: bytes, file: str) -> Route:
         text = data.decode("utf-8")
     except UnicodeDecodeError as exc:
         line = data[: exc.start].count(b"\n") + 1
-        raise RouteError([Problem("error", f"the file is not UTF-8 text (byte 0x{data[exc.start]:02x} at "
+        raise RouteError([Problem(Severity.ERROR, f"the file is not UTF-8 text (byte 0x{data[exc.start]:02x} at "
                                   f"line {line})", Location(file, line), hint="save it as UTF-8")],
                          file=file) from None
     text = text.removeprefix("\ufeff")
@@ -133,10 +134,10 @@ def _load_bytes(data: bytes, file: str) -> Route:
         raise _one(file, "the file is empty",
                    "a route file needs at least route, target, materials and steps; see docs/route-file.md")
     if not isinstance(doc, dict):
-        raise RouteError([Problem("error", f"a route file must be a mapping of keys (route, target, materials, "
+        raise RouteError([Problem(Severity.ERROR, f"a route file must be a mapping of keys (route, target, materials, "
                                   f"steps, ...), but this one is {describe_value(doc)}", pos.at(()))], file=file)
     if not set(doc) & set(keys_of(RouteFile)):
-        raise RouteError([Problem("error", "this is not a route file: it has none of the keys route, target, "
+        raise RouteError([Problem(Severity.ERROR, "this is not a route file: it has none of the keys route, target, "
                                   "materials, steps", pos.at(()), hint="see docs/route-file.md")], file=file)
     try:
         model = RouteFile.model_validate(doc)
@@ -148,10 +149,10 @@ def _load_bytes(data: bytes, file: str) -> Route:
         parts = _salvage(doc)
     found, facts = check_parts(parts, pos)
     problems += found
-    errors = [p for p in problems if p.severity == "error"]
+    errors = [p for p in problems if p.severity == Severity.ERROR]
     if errors:
         raise RouteError(_sorted(errors), file=file)
-    warnings = tuple(_sorted([p for p in problems if p.severity == "warning"]))
+    warnings = tuple(_sorted([p for p in problems if p.severity == Severity.WARNING]))
     return _build(model, facts, pos, Source(file, sha), warnings)
 
 
@@ -264,10 +265,10 @@ def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Mater
         location=pos.at(("materials", key), key=True), phase=m.phase)
 
 
-def _default_role(basis: str | None, reactant: bool) -> str:
+def _default_role(basis: Basis | None, reactant: bool) -> Role:
     if reactant:
-        return "reactant"
-    return {"mol_percent": "catalyst", "volumes": "solvent"}.get(basis, "reagent")
+        return Role.REACTANT
+    return {Basis.MOL_PERCENT: Role.CATALYST, Basis.VOLUMES: Role.SOLVENT}.get(basis, Role.REAGENT)
 
 
 def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
@@ -279,14 +280,13 @@ def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
     charged = {c.material for c in listed}
     # reactants without a line come first, the limiting reagent before the others
     order = sorted(reactants, key=lambda key: key != limiting)
-    lines = [Charge(material=key, basis="stoichiometric", value=reactants[key], role="reactant", implicit=True,
+    lines = [Charge(material=key, basis=Basis.STOICHIOMETRIC, value=reactants[key], role=Role.REACTANT, implicit=True,
                     location=pos.at(("steps", i, "equation")))
              for key in order if key not in charged]
     for j, c in enumerate(listed):
-        basis = next((b for b in ("equiv", "mol_percent", "volumes", "mass_ratio") if getattr(c, b) is not None),
-                     None)
+        basis = next((b for b in GIVEN_BASES if getattr(c, b) is not None), None)
         if basis is None:  # a reactant of the equation (the checks made sure)
-            basis, value = "stoichiometric", reactants[c.material]
+            basis, value = Basis.STOICHIOMETRIC, reactants[c.material]
         else:
             value = getattr(c, basis)
         role = c.role if c.role is not None else _default_role(basis, c.material in reactants)

@@ -14,6 +14,7 @@ from types import MappingProxyType
 from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Location, Problem
+from routeplan.vocab import Basis, Role
 
 if TYPE_CHECKING:  # pragma: no cover
     import networkx as nx
@@ -38,12 +39,13 @@ __all__ = [
     "Route",
 ]
 
-#: Charge bases of the route format, plus the two the loader fills in itself:
-#: ``"stoichiometric"`` (a reactant with no basis: its coefficient ratio).
-BASES = ("equiv", "mol_percent", "volumes", "mass_ratio", "stoichiometric")
+#: Charge bases of the route format, plus the one the loader fills in itself:
+#: ``"stoichiometric"`` (a reactant with no basis: its coefficient ratio).  The members of
+#: :class:`routeplan.vocab.Basis`, which compare equal to these words.
+BASES: tuple[Basis, ...] = tuple(Basis)
 
-#: Roles a charge line may have.
-ROLES = ("reactant", "reagent", "catalyst", "solvent", "workup")
+#: Roles a charge line may have: the members of :class:`routeplan.vocab.Role`.
+ROLES: tuple[Role, ...] = tuple(Role)
 
 
 @dataclass(frozen=True)
@@ -145,13 +147,13 @@ class Charge:
     ----------
     material : str
         Key of the material charged.
-    basis : str
-        One of :data:`BASES`.
+    basis : Basis
+        One of :data:`BASES` (a plain word is turned into its member).
     value : float
         The number for the basis: equiv [-], mol % [-], volumes [L/kg] or mass ratio
         [kg/kg]; for ``"stoichiometric"`` the coefficient ratio nu_i / nu_limiting [-].
-    role : str
-        One of :data:`ROLES`.
+    role : Role
+        One of :data:`ROLES` (a plain word is turned into its member).
     implicit : bool
         True when the loader added the line (a reactant of the equation with no line).
     location : Location or None
@@ -159,18 +161,24 @@ class Charge:
     """
 
     material: str
-    basis: str
+    basis: Basis
     value: float
-    role: str
+    role: Role
     implicit: bool = False
     location: Location | None = None
+
+    def __post_init__(self) -> None:
+        if not isinstance(self.basis, Basis):
+            object.__setattr__(self, "basis", Basis(self.basis))
+        if not isinstance(self.role, Role):
+            object.__setattr__(self, "role", Role(self.role))
 
     @property
     def equiv(self) -> float | None:
         """Moles per mole of limiting reagent [-], for the molar bases; else None."""
-        if self.basis in ("equiv", "stoichiometric"):
+        if self.basis in (Basis.EQUIV, Basis.STOICHIOMETRIC):
             return self.value
-        if self.basis == "mol_percent":
+        if self.basis is Basis.MOL_PERCENT:
             return self.value / 100.0
         return None
 
@@ -341,9 +349,13 @@ class Source:
     sha256: str
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class Route:
     """A whole, checked route.
+
+    Two routes are equal only when they are the same object (identity equality and
+    hash): a route holds mappings and cached derived data, and two loads of one file are
+    two routes.
 
     Attributes
     ----------
@@ -382,9 +394,6 @@ class Route:
             object.__setattr__(self, "materials", MappingProxyType(dict(self.materials)))
         if not isinstance(self.equipment, MappingProxyType):
             object.__setattr__(self, "equipment", MappingProxyType(dict(self.equipment)))
-
-    def __hash__(self) -> int:
-        return id(self)
 
     @functools.cached_property
     def _steps_by_id(self) -> Mapping[str, Step]:

@@ -26,6 +26,7 @@ from routeplan.errors import Problem, QuantityError
 from routeplan.route.model import ROLES
 from routeplan.route.yamlpos import Positions
 from routeplan.units import DIMENSIONS, parse_fraction, parse_quantity
+from routeplan.vocab import GIVEN_BASES, Role, Severity
 
 __all__ = [
     "FORMAT_VERSION",
@@ -59,7 +60,7 @@ MATERIAL_KEY = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.\-]*$")
 PHASES = ("solid", "liquid", "gas")
 
 #: The bases a charge line may give (at most one).
-CHARGE_BASES = ("equiv", "mol_percent", "volumes", "mass_ratio")
+CHARGE_BASES = GIVEN_BASES
 
 _NUMBER_PATTERN = r"(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
 #: JSON-schema pattern of a quantity string: a non-negative number, then a unit (no decimal comma).
@@ -220,9 +221,9 @@ def _material_key(value: Any) -> str:
                 "without spaces or '+'")
 
 
-def _role(value: Any) -> str:
+def _role(value: Any) -> Role:
     if isinstance(value, str) and value in ROLES:
-        return value
+        return Role(value)
     near = difflib.get_close_matches(str(value).lower(), ROLES, n=1, cutoff=0.6)
     hint = f"did you mean '{near[0]}'?" if near else None
     raise _fail(f"must be one of {', '.join(ROLES)}; got {describe_value(value)}", hint)
@@ -383,7 +384,7 @@ class ChargeModel(_Model):
     volumes: Number("litres per kg of limiting reagent as charged (mL/g)") = None
     mass_ratio: Number("kg per kg of limiting reagent as charged") = None
     role: Annotated[Any, PlainValidator(_role),
-                    WithJsonSchema({"enum": list(ROLES), "description": "role of the charge"})] = None
+                    WithJsonSchema({"enum": [str(r) for r in ROLES], "description": "role of the charge"})] = None
 
 
 class ConditionsModel(_Model):
@@ -583,5 +584,5 @@ def validation_problems(error: ValidationError, positions: Positions) -> list[Pr
                     hint = "leave the key out if there is nothing to list"
             else:  # pragma: no cover - every model field goes through the cases above
                 message = f"{err['msg']}, got {describe_value(value)}"
-        out.append(Problem("error", message, where, hint=hint))
+        out.append(Problem(Severity.ERROR, message, where, hint=hint))
     return out

@@ -27,6 +27,7 @@ from ruamel.yaml.error import MarkedYAMLError, YAMLError
 from ruamel.yaml.nodes import MappingNode, Node, ScalarNode, SequenceNode
 
 from routeplan.errors import Location, Problem
+from routeplan.vocab import Severity
 
 __all__ = ["Path", "Positions", "read_yaml", "format_path", "MAX_NODES"]
 
@@ -124,7 +125,7 @@ class _Builder:
     def problem(self, node: Node, path: Path, message: str, hint: str | None = None) -> None:
         line, column = _mark(node)
         loc = Location(self.pos.file, line, column, format_path(path) or None)
-        self.problems.append(Problem("error", message, loc, hint=hint))
+        self.problems.append(Problem(Severity.ERROR, message, loc, hint=hint))
 
     def build(self, node: Node, path: Path, depth: int = 0) -> Any:
         self.count += 1
@@ -227,7 +228,7 @@ def read_yaml(text: str, file: str) -> tuple[Any, Positions, list[Problem]]:
         mark = exc.problem_mark or exc.context_mark
         line, column = (mark.line + 1, mark.column + 1) if mark else (None, None)
         what = " ".join(p for p in (exc.context, exc.problem) if p) or "malformed YAML"
-        return None, Positions(file), [Problem("error", f"this is not valid YAML: {what}",
+        return None, Positions(file), [Problem(Severity.ERROR, f"this is not valid YAML: {what}",
                                                Location(file, line, column))]
     except YAMLError as exc:
         position = getattr(exc, "position", None)
@@ -236,10 +237,10 @@ def read_yaml(text: str, file: str) -> tuple[Any, Positions, list[Problem]]:
         if isinstance(char, int):  # the C parser reports the code point
             char = chr(char)
         what = f"the character {char!r} is not allowed in YAML" if char is not None else str(exc)
-        return None, Positions(file), [Problem("error", f"this is not valid YAML: {what}",
+        return None, Positions(file), [Problem(Severity.ERROR, f"this is not valid YAML: {what}",
                                                Location(file, line, column))]
     except RecursionError:
-        return None, Positions(file), [Problem("error", "the document is nested too deeply",
+        return None, Positions(file), [Problem(Severity.ERROR, "the document is nested too deeply",
                                                Location(file))]
     if node is None:
         return None, Positions(file), []
@@ -248,6 +249,6 @@ def read_yaml(text: str, file: str) -> tuple[Any, Positions, list[Problem]]:
         data = builder.build(node, ())
     except _TooLarge:
         return None, builder.pos, [Problem(
-            "error", f"the document expands to more than {MAX_NODES} values (anchors and aliases "
+            Severity.ERROR, f"the document expands to more than {MAX_NODES} values (anchors and aliases "
             "included); a route file is far smaller", Location(file))]
     return data, builder.pos, builder.problems
