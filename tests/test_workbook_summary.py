@@ -24,6 +24,7 @@ from routeplan.export.workbook_styles import px_width, sheet_title
 from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 from routeplan.units import Q
+from routeplan.views.safety_text import sheet_safety_pairs
 from test_workbook import ROUTE_NAME, ROUTE_TEXT, WRITTEN, charge_table, close, make_plan
 
 #: Stock on hand for :data:`test_workbook.ROUTE_TEXT` (invented numbers): enough
@@ -272,7 +273,8 @@ def test_charge_sheets_print_the_plant_columns_readably(plan, book):
         h, col, rows = charge_table(ws)
         last_letter = openpyxl.utils.get_column_letter(len(printed))
         area = ws.print_area.split("!")[1].replace("$", "")
-        assert area == f"A1:{last_letter}{rows[-1] + 7}"  # down to the sign-off block
+        safety = len(sheet_safety_pairs(sp)) + 2  # the safety block between the table and the sign-off
+        assert area == f"A1:{last_letter}{rows[-1] + 7 + safety}"  # down to the sign-off block
         assert [ws.cell(h, c).value for c in range(1, len(printed) + 1)] == printed
         assert [ws.cell(h, c).value for c in range(len(printed) + 1, len(printed) + 1 + len(reference))] == reference
         assert ws.page_setup.orientation == "landscape"

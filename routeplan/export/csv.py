@@ -16,6 +16,11 @@ Files written into ``DIR`` (made if missing), each atomically:
     bought materials totalled over the route, with price and cost.
 ``materials.csv``
     every material of the route.
+``safety.csv``
+    heat and gas of one batch of each step that runs, screening estimates (see
+    docs/safety.md): one row per gas evolved (at the step's conditions) or taken up (at
+    normal conditions), or one row without gas; a step without thermal data says "no:
+    not screened" and leaves the heat fields empty.
 ``stock.csv``
     only when the plan has a stock comparison (``plan.stock``): per raw material, the
     need, the mass on hand (empty when not in stock) and the mass to buy [kg], and
@@ -181,6 +186,9 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
         paths.append(write_table(out_dir / step_file_name(i, sp.id), CHARGE_COLUMNS, step_charge_rows(sp)))
     paths.append(write_table(out_dir / "raw-materials.csv", raw_export_columns(plan), raw_export_rows(plan)))
     paths.append(write_table(out_dir / "materials.csv", material_columns(plan), material_rows(plan)))
+    from routeplan.views.safety_text import SAFETY_COLUMNS, safety_rows
+
+    paths.append(write_table(out_dir / "safety.csv", SAFETY_COLUMNS, safety_rows(plan)))
     if plan.stock is not None:
         paths.append(write_table(out_dir / "stock.csv", STOCK_COLUMNS, stock_rows(plan)))
     return paths
