@@ -26,6 +26,8 @@ __all__ = [
     "element_counts",
     "load_route",
     "plan_route",
+    "plan_to_dict",
+    "plan_frame",
 ]
 
 #: The caution every human-facing output carries.
@@ -41,6 +43,8 @@ _LAZY = {
     "element_counts": ("routeplan.chemistry.formula", "element_counts"),
     "load_route": ("routeplan.route.load", "load_route"),
     "plan_route": ("routeplan.plan.planner", "plan_route"),
+    "plan_to_dict": ("routeplan.export.json", "plan_to_dict"),
+    "plan_frame": ("routeplan.views.tables", "charges_frame"),
 }
 
 

@@ -87,18 +87,35 @@ def unit(name: str) -> "pint.Unit":
     return registry().Unit(name)
 
 
+@functools.lru_cache(maxsize=1024)
+def _factor(units: "pint.Unit", name: str) -> float | None:
+    """The factor from ``units`` to the unit ``name`` [-], or None for an offset unit (degC)."""
+    reg = registry()
+    one = reg.Quantity(1.0, units)
+    if not one._is_multiplicative:
+        return None
+    return float(one.m_as(unit(name)))
+
+
 def magnitude(quantity: "pint.Quantity | None", name: str) -> float | None:
     """The magnitude of ``quantity`` in unit ``name`` as a float, or None for None.
 
-    Where a plan's numbers are written out (JSON, tables, metrics), this is the one
-    conversion, through the cached unit objects.
+    Where a plan's numbers are written out (JSON, tables, metrics) and where the planner
+    reads a route's quantities, this is the one conversion: a factor from the quantity's
+    unit to ``name`` is computed once per pair of units and cached, so a conversion in a
+    loop is one multiplication (an offset unit such as degC goes through pint each time).
 
     Examples
     --------
     >>> magnitude(Q(1.5, "kg"), "g")
     1500.0
     """
-    return None if quantity is None else float(quantity.m_as(unit(name)))
+    if quantity is None:
+        return None
+    factor = _factor(quantity.units, name)
+    if factor is None:
+        return float(quantity.m_as(unit(name)))
+    return float(quantity.magnitude) * factor
 
 
 def dimension_name(quantity: "pint.Quantity") -> str:

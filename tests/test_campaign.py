@@ -4,6 +4,8 @@ import math
 
 import pytest
 
+import routeplan
+
 from conftest import run_cli, write_route
 from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
@@ -67,7 +69,7 @@ def test_telescoped_volume_is_carried_in(plan):
 
 
 def test_per_batch_charges_in_json(plan):
-    doc = plan.to_dict()
+    doc = routeplan.plan_to_dict(plan)
     s2 = doc["steps"][1]
     assert s2["batches"] == 2 and s2["batch_volume_L"] == pytest.approx(40.0)
     assert s2["fill_fraction"] == pytest.approx(0.8)

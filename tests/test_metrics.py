@@ -25,6 +25,7 @@ from routeplan.plan.metrics import (
     route_pmi,
     step_pmi,
 )
+from routeplan.views.metrics_text import metrics_lines
 from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route, load_route_text
 from routeplan.route.model import Material, Solution
@@ -149,7 +150,7 @@ def test_cost_over_priced_materials_only_names_the_unpriced():
     assert m.unpriced == ("solv",) and not m.cost_complete
     d = m.to_dict()
     assert d["unpriced"] == ["solv"] and d["cost_complete"] is False
-    text_lines = "\n".join(m.summary_lines(plan))
+    text_lines = "\n".join(metrics_lines(m, plan.target_material))
     assert "priced materials only" in text_lines and "solv" in text_lines
 
 
@@ -157,7 +158,7 @@ def test_no_currency_no_cost():
     plan = plan_route(load_route_text(TWO_STEP.replace("currency: EUR\n", ""), "nocur.yaml"))
     assert plan.metrics.cost_per_kg is None and plan.metrics.currency is None
     assert plan.metrics.to_dict()["cost_per_kg"] is None
-    assert any("no currency" in line for line in plan.metrics.summary_lines(plan))
+    assert any("no currency" in line for line in metrics_lines(plan.metrics, plan.target_material))
 
 
 # Convergent: two branches meet in S3.  Every molar mass 100 g/mol (1 kg = 10 mol).

@@ -6,6 +6,8 @@ from pathlib import Path
 
 import pytest
 
+import routeplan
+
 from routeplan.cli import cli
 from click.testing import CliRunner
 
@@ -73,7 +75,7 @@ def test_json_to_file_and_to_dict_agree(tmp_path):
     result = CliRunner().invoke(cli, ["plan", str(LINEAR), "--json", str(out), "--quiet"])
     assert result.exit_code == 0, result.output
     from_file = json.loads(out.read_text())
-    from_api = routeplan.plan_route(routeplan.load_route(LINEAR)).to_dict()
+    from_api = routeplan.plan_to_dict(routeplan.plan_route(routeplan.load_route(LINEAR)))
     from_file.pop("source"), from_api.pop("source")
     assert from_file == json.loads(json.dumps(from_api))
 
@@ -82,7 +84,7 @@ def test_to_frame_has_every_charge():
     import routeplan
 
     plan = routeplan.plan_route(routeplan.load_route(LINEAR))
-    frame = plan.to_frame()
+    frame = routeplan.plan_frame(plan)
     assert len(frame) == sum(len(s.charges) for s in plan.steps)
     assert "mass [kg]" in frame.columns
     assert frame["mass [kg]"].sum() == pytest.approx(sum(c.mass.m_as("kg") for s in plan.steps for c in s.charges))

@@ -5,6 +5,8 @@ import math
 import openpyxl
 import pytest
 
+import routeplan
+
 from conftest import run_cli, write_route
 from routeplan.errors import StockError
 from routeplan.plan.planner import plan_route
@@ -135,7 +137,7 @@ def test_bad_stock_on_the_command_line(tmp_path):
 
 def test_stock_json_lists_on_hand_and_missing(tmp_path, route):
     stock = _write(tmp_path, "yaml", [("A", 5, "kg"), ("solv1", 10, "L")])
-    doc = plan_route(route, stock=stock).to_dict()["stock"]
+    doc = routeplan.plan_to_dict(plan_route(route, stock=stock))["stock"]
     # 10 L of solv1 at 0.8 kg/L is 8 kg on hand
     assert doc["on_hand"] == [{"material": "A", "mass_kg": pytest.approx(5.0)},
                               {"material": "solv1", "mass_kg": pytest.approx(8.0)}]

@@ -291,3 +291,17 @@ def test_step_shares_of_the_spread_follow_the_yield_variances_on_a_linear_route(
     for k, c in enumerate(cv2, start=1):
         assert share[f"S{k}"] == pytest.approx(c / sum(cv2), abs=0.03)
     assert sum(share.values()) == pytest.approx(1.0, abs=0.02)
+
+
+def test_doubling_the_target_doubles_every_mass_and_keeps_the_probability():
+    text = convergent((0.9, 0.8, 0.95), (0.85, 0.75, 0.9), (0.8, 0.7, 0.85))
+    route = load_route_text(text)
+    one = plan_route(route, Q(10, "kg"), confidence=0.9, draws=DRAWS, seed=8).uncertainty
+    two = plan_route(route, Q(20, "kg"), confidence=0.9, draws=DRAWS, seed=8).uncertainty
+    assert two.probability_of_target == one.probability_of_target
+    assert [s for s, _ in two.contributions] == [s for s, _ in one.contributions]
+    assert [x for _, x in two.contributions] == pytest.approx([x for _, x in one.contributions], rel=1e-9)
+    for name in ("p10_kg", "p50_kg", "p90_kg", "mean_kg", "target_kg"):
+        assert getattr(two, name) == pytest.approx(2 * getattr(one, name), rel=1e-12), name
+    for (k1, m1), (k2, m2) in zip(one.raw_materials, two.raw_materials):
+        assert k1 == k2 and m2 == pytest.approx(2 * m1, rel=1e-12)

@@ -13,6 +13,7 @@ from rich.console import Console
 from rich.markup import escape
 from rich.table import Table
 
+from routeplan.views.metrics_text import metrics_lines
 from routeplan.views.safety_text import step_safety_lines
 from routeplan.views.tables import column_unit, raw_material_rows, step_charge_rows
 
@@ -181,7 +182,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
     for key, y in oy.by_raw_material.items():
         con.print(escape(f"  from {key}: {y:.1%}"))
     if plan.metrics is not None:
-        for line in plan.metrics.summary_lines(plan):
+        for line in metrics_lines(plan.metrics, plan.target_material):
             con.print(line)
     if plan.stock is not None:
         from routeplan.views.stock_text import stock_lines

@@ -23,17 +23,16 @@ Batches
 from __future__ import annotations
 
 import math
-from dataclasses import replace
-from typing import TYPE_CHECKING
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Mapping
 
-from routeplan.units import unit
 from routeplan.errors import Problem
 
 if TYPE_CHECKING:  # pragma: no cover
-    from routeplan.plan.model import StepPlan
+    from routeplan.plan.walk import Walked
     from routeplan.route.model import Route
 
-__all__ = ["MIN_FILL", "MAX_SCALE_UP", "MANY_BATCHES", "step_volumes", "reaction_masses", "size_batches"]
+__all__ = ["MIN_FILL", "MAX_SCALE_UP", "MANY_BATCHES", "MAX_BATCHES", "Sized", "size_steps"]
 
 #: Smallest batch volume over nominal vessel volume that can still be stirred [-]
 #: (common practice, no source).
@@ -47,149 +46,134 @@ MAX_SCALE_UP = 10.0
 #: vessel (often a unit slip such as 630 mL for 630 L) [-] (common practice, no source).
 MANY_BATCHES = 12
 
+#: More batches of one step than this cannot be a campaign: the numbers are refused [-]
+#: (a guard against runaway inputs, not a rule of the trade).
+MAX_BATCHES = 1_000_000
 
-def step_volumes(route: "Route", steps: "tuple[StepPlan, ...]"):
-    """Volume in the vessel of each step over the whole campaign [L], and notes.
 
-    Returns
-    -------
-    dict
-        Step id -> (volume [L] as a pint Quantity, tuple of notes, mapping of charge
-        order -> (id of the telescoped step, volume carried in [L]) for the charges that
-        come in solution).
+@dataclass(frozen=True)
+class Sized:
+    """The vessel side of one step over the campaign.
+
+    Attributes
+    ----------
+    V_L : float
+        Largest volume in the vessel over the campaign [L].
+    notes : tuple of str
+        What was left out of the volume and why, what came in solution.
+    carried_in : Mapping[int, tuple[str, float]]
+        Charge index (0-based) -> (id of the telescoped step, volume of its mixture
+        carried in [L]).
+    batches : int
+        Number of batches [-] (0 for a step that does not run).
+    fill : float or None
+        Volume per batch over the vessel's nominal volume [-]; None without a vessel.
+    reaction_m_kg : float
+        Mass that takes part in the reaction over the campaign [kg]: every charge but
+        ``role: workup`` (a catalyst and a gas taken up included); a telescoped mixture
+        at everything charged to the step that made it less the gas that step evolved
+        (``phase: gas`` products at full conversion,
+        :func:`routeplan.plan.safety.evolved_gas_mass_kg`), in proportion to the share
+        of its product taken (ROUTE-FORMAT.md, "Readings fixed for the extensions").
     """
-    from routeplan.units import Q
 
-    by_id = {sp.id: sp for sp in steps}
-    maker = route.maker
-    out: dict[str, tuple] = {}
-    for sp in steps:  # execution order: a telescoped step is sized before its user
-        total = Q(0.0, "L")
-        notes: list[str] = []
-        carried_in: dict[int, tuple] = {}
-        for c in sp.charges:
-            src = maker.get(c.material) if c.intermediate else None
-            if src is not None and not by_id[src].isolated:
-                carried = out[src][0]
-                made = by_id[src].product_mol.m_as(unit("mol"))
-                share = (c.mol.m_as(unit("mol")) / made) if made > 0 and c.mol is not None else 1.0
-                total = total + carried * share
-                carried_in[c.order] = (src, (carried * share).to(unit("L")))
-                notes.append(f"{c.material} comes in solution from {src}: "
-                             f"{carried.m_as(unit('L')) * share:.4g} L of its mixture carried in")
-            elif c.volume is not None:
-                total = total + c.volume
-            else:
-                notes.append(f"{c.material} has no density, so its volume is left out")
-        out[sp.id] = (total.to(unit("L")), tuple(notes), carried_in)
-    return out
+    V_L: float
+    notes: tuple[str, ...]
+    carried_in: Mapping[int, tuple[str, float]]
+    batches: int
+    fill: float | None
+    reaction_m_kg: float
 
 
-def reaction_masses(route: "Route", steps: "tuple[StepPlan, ...]") -> dict[str, float]:
-    """Mass that takes part in the reaction of each step over the campaign [kg].
+def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list[Problem]]:
+    """Volumes, reaction masses and batches of every step, and the warnings.
 
-    Every charge except ``role: workup`` counts at its mass as charged (a catalyst and
-    a gas taken up included); the product of a telescoped step comes in as its whole
-    mixture: everything charged to the step that made it (its work-up charges included)
-    less the gas that step evolved (``phase: gas`` products at full conversion,
-    :func:`routeplan.plan.safety.evolved_gas_mass_kg`), in proportion to the share of
-    that step's product taken (ROUTE-FORMAT.md, "Readings fixed for the extensions").
-    Divided by the batches, this is the ``m`` of the adiabatic temperature rise.
+    In execution order, so a telescoped step is sized before the step that takes its
+    mixture.  A step that does not run gets 0 batches, no fill and no warning.
     """
+    from routeplan.units import unit
+
     from routeplan.plan.safety import evolved_gas_mass_kg
 
-    kg, mol = unit("kg"), unit("mol")
-    by_id = {sp.id: sp for sp in steps}
+    L = unit("L")
     maker = route.maker
+    nominal_L = {k: float(v.volume.m_as(L)) for k, v in route.equipment.items()}
+    out: dict[str, Sized] = {}
     charged: dict[str, float] = {}  # everything charged to a step [kg]
-    out: dict[str, float] = {}
-    for sp in steps:  # execution order: a telescoped step comes before its user
-        m_rxn = m_all = 0.0
-        for c in sp.charges:
-            src = maker.get(c.material) if c.intermediate else None
-            if src is not None and not by_id[src].isolated:
-                made = by_id[src].product_mol.m_as(mol)
-                share = c.mol.m_as(mol) / made if made > 0 and c.mol is not None else 1.0
-                m = charged[src] * share
-            else:
-                m = c.mass.m_as(kg)
-            m_all += m
-            if c.role != "workup":
-                m_rxn += m
-        m_gas = evolved_gas_mass_kg(route, sp.id, sp.limiting_mol.m_as(mol))
-        charged[sp.id], out[sp.id] = m_all - m_gas, m_rxn
-    return out
-
-
-def _per_batch_charge(c, batches: int):
-    if batches == 0:
-        return replace(c, mol_per_batch=None, mass_per_batch=None, volume_per_batch=None)
-    return replace(c, mol_per_batch=None if c.mol is None else c.mol / batches,
-                   mass_per_batch=c.mass / batches,
-                   volume_per_batch=None if c.volume is None else c.volume / batches)
-
-
-def size_batches(route: "Route", steps: "tuple[StepPlan, ...]"):
-    """Give every step its batches; return the new steps and the warnings.
-
-    Returns
-    -------
-    tuple
-        (tuple of StepPlan with ``batch`` set, list of Problem).  A step that does not
-        run (``StepPlan.not_run``) gets 0 batches, a volume of 0 L and no warning.
-    """
-    from routeplan.plan.model import BatchPlan
-
-    from routeplan.units import Q
-
-    volumes = step_volumes(route, steps)
-    masses = reaction_masses(route, steps)
     warnings: list[Problem] = []
-    out = []
-    for sp in steps:
-        volume, notes, carried_in = volumes[sp.id]
-        charges = tuple(replace(c, carried_from=carried_in[c.order][0], volume=carried_in[c.order][1])
-                        if c.order in carried_in else c for c in sp.charges)
-        if sp.not_run is not None:  # no batch at all: nothing to size, warn about or divide
-            out.append(replace(sp, charges=tuple(_per_batch_charge(c, 0) for c in charges), batch=BatchPlan(
-                batches=0, step_volume=volume, batch_volume=volume * 0, fill_fraction=None, vessel=sp.vessel)))
+    for sid, w in walked.steps.items():
+        step = route.step(sid)
+        V_total, m_rxn, m_all = 0.0, 0.0, 0.0
+        notes: list[str] = []
+        carried_in: dict[int, tuple[str, float]] = {}
+        for i, (c, (n, m, V)) in enumerate(zip(w.step.charges, w.charges)):
+            src = maker.get(c.material) if c.intermediate else None
+            if src is not None and not route.step(src).isolated:
+                made = walked.steps[src].n_product
+                share = n / made if made > 0 and n is not None else 1.0
+                V_in = out[src].V_L * share
+                V_total += V_in
+                carried_in[i] = (src, V_in)
+                m = charged[src] * share  # the whole mixture comes in
+                notes.append(f"{c.material} comes in solution from {src}: "
+                             f"{out[src].V_L * share:.4g} L of its mixture carried in")
+            elif V is not None:
+                V_total += V
+            else:
+                notes.append(f"{c.material} has no density, so its volume is left out")
+            m_all += m
+            if step.charges[i].role != "workup":
+                m_rxn += m
+        charged[sid] = m_all - evolved_gas_mass_kg(route, sid, w.n_lim)  # the gas leaves the mixture
+        if sid in walked.not_run:
+            out[sid] = Sized(V_total, (), carried_in, 0, None, m_rxn)
             continue
-        step = route.step(sp.id)
-        vessel = route.equipment.get(sp.vessel) if sp.vessel else None
+        vessel = route.equipment.get(step.vessel) if step.vessel else None
         if vessel is None:
             batches, fill = 1, None
         else:
-            usable = (vessel.volume * vessel.max_fill).to(unit("L"))
-            batches = max(1, math.ceil(volume.m_as(unit("L")) / usable.m_as(unit("L")) - 1e-9))
-            fill = volume.m_as(unit("L")) / batches / vessel.volume.m_as(unit("L"))
-            if batches > MANY_BATCHES:
-                warnings.append(Problem(
-                    "warning",
-                    f"step {sp.id} needs {batches} batches in vessel {vessel.key} "
-                    f"({vessel.volume.m_as(unit('L')):g} L): check the vessel's volume and its unit",
-                    location=vessel.location or step.location, step=sp.id,
-                    hint="use a larger vessel or split the campaign"))
-            if 0 < fill < MIN_FILL:
-                warnings.append(Problem(
-                    "warning",
-                    f"step {sp.id}: each batch fills {fill:.0%} of vessel {vessel.key} "
-                    f"({vessel.volume.m_as(unit('L')):g} L), below {MIN_FILL:.0%}: too little to stir",
-                    location=step.location, step=sp.id,
-                    hint="use a smaller vessel or a larger target"))
+            nominal = nominal_L[vessel.key]
+            usable = nominal * vessel.max_fill
+            needed = V_total / usable
+            if not needed <= MAX_BATCHES:
+                from routeplan.errors import PlanError
+
+                raise PlanError(f"step {sid} would need {needed:.3g} batches in vessel {vessel.key} "
+                                f"({nominal:g} L); no campaign runs that many",
+                                location=vessel.location or step.location, step=sid,
+                                hint="check the vessel's volume and its unit, and the target amount")
+            batches = max(1, math.ceil(needed - 1e-9))
+            fill = V_total / batches / nominal
+            warnings.extend(_vessel_warnings(step, vessel, nominal, batches, fill))
         if step.demonstrated_batch is not None:
-            per_batch = sp.limiting_mass.m_as(unit("kg")) / batches
-            shown = step.demonstrated_batch.m_as(unit("kg"))
+            per_batch = w.m_lim / batches
+            shown = float(step.demonstrated_batch.m_as(unit("kg")))
             if shown > 0 and per_batch > MAX_SCALE_UP * shown:
                 warnings.append(Problem(
                     "warning",
-                    f"step {sp.id}: a batch charges {per_batch:.4g} kg of {sp.limiting}, "
+                    f"step {sid}: a batch charges {per_batch:.4g} kg of {step.limiting}, "
                     f"{per_batch / shown:.3g} times the largest batch run so far ({shown:.4g} kg)",
-                    location=step.location, step=sp.id,
+                    location=step.location, step=sid,
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
-        bp = BatchPlan(batches=batches, step_volume=volume, batch_volume=volume / batches,
-                       fill_fraction=fill, vessel=sp.vessel, notes=notes,
-                       limiting_mol=sp.limiting_mol / batches, limiting_mass=sp.limiting_mass / batches,
-                       product_mol=sp.product_mol / batches, product_mass=sp.product_mass / batches,
-                       reaction_mass=Q(masses[sp.id] / batches, unit("kg")))
-        out.append(replace(sp, batch=bp, charges=tuple(_per_batch_charge(c, batches) for c in charges)))
-    return tuple(out), warnings
+        out[sid] = Sized(V_total, tuple(notes), carried_in, batches, fill, m_rxn)
+    return out, warnings
+
+
+def _vessel_warnings(step, vessel, nominal: float, batches: int, fill: float) -> list[Problem]:
+    """Too many batches, or a batch too small to stir, in ``vessel`` (``nominal`` [L])."""
+    out = []
+    if batches > MANY_BATCHES:
+        out.append(Problem(
+            "warning",
+            f"step {step.id} needs {batches} batches in vessel {vessel.key} "
+            f"({nominal:g} L): check the vessel's volume and its unit",
+            location=vessel.location or step.location, step=step.id,
+            hint="use a larger vessel or split the campaign"))
+    if 0 < fill < MIN_FILL:
+        out.append(Problem(
+            "warning",
+            f"step {step.id}: each batch fills {fill:.0%} of vessel {vessel.key} "
+            f"({nominal:g} L), below {MIN_FILL:.0%}: too little to stir",
+            location=step.location, step=step.id,
+            hint="use a smaller vessel or a larger target"))
+    return out

@@ -22,7 +22,6 @@ from dataclasses import dataclass, field
 from types import MappingProxyType
 from typing import TYPE_CHECKING, Any, Mapping
 
-from routeplan.units import magnitude, unit
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import ChargePlan, Plan, StepPlan
@@ -49,10 +48,6 @@ __all__ = [
 SOLVENT_ROLES = ("solvent", "workup")
 
 
-def _kg(q) -> float:
-    return magnitude(q, "kg")
-
-
 def _ratio(num: float, den: float) -> float | None:
     return num / den if den > 0 else None
 
@@ -62,8 +57,8 @@ def _ratio(num: float, den: float) -> float | None:
 
 def stock_input_kg(plan: "Plan") -> dict[str, float]:
     """Mass of each intermediate taken from stock [kg], as isolated; empty without any."""
-    return {sp.product: _kg(sp.from_stock_mass) for sp in plan.steps
-            if sp.from_stock_mass is not None and sp.from_stock_mass.magnitude > 0}
+    return {sp.product: sp.stock_m_kg for sp in plan.steps
+            if sp.stock_m_kg is not None and sp.stock_m_kg > 0}
 
 
 def route_pmi(plan: "Plan") -> float:
@@ -90,11 +85,11 @@ def route_pmi(plan: "Plan") -> float:
     float
         Route PMI [kg/kg].
     """
-    raw = sum(_kg(c.mass) for sp in plan.steps for c in sp.charges if not c.intermediate)
+    raw = sum(c.m_kg for sp in plan.steps for c in sp.charges if not c.intermediate)
     shelf = stock_input_kg(plan)
     if shelf:
         raw += sum(shelf.values())
-    return raw / _kg(plan.target_mass)
+    return raw / plan.target_kg
 
 
 def step_pmi(sp: "StepPlan") -> float | None:
@@ -112,15 +107,15 @@ def step_pmi(sp: "StepPlan") -> float | None:
     float or None
         Step PMI [kg/kg]; None when the step makes nothing (it does not lead to the target).
     """
-    return _ratio(sum(_kg(c.mass) for c in sp.charges), _kg(sp.product_mass))
+    return _ratio(sum(c.m_kg for c in sp.charges), sp.product_m_kg)
 
 
 def _share(c: "ChargePlan", maker: "StepPlan") -> float:
     """Fraction of ``maker``'s product that charge ``c`` takes [-]."""
-    if c.mol is not None and maker.product_mol.m_as(unit("mol")) > 0:
-        return float(c.mol.m_as(unit("mol")) / maker.product_mol.m_as(unit("mol")))
-    made = _kg(maker.product_mass)
-    return _kg(c.mass) / made if made > 0 else 0.0
+    if c.n_mol is not None and maker.product_n_mol > 0:
+        return c.n_mol / maker.product_n_mol
+    made = maker.product_m_kg
+    return c.m_kg / made if made > 0 else 0.0
 
 
 def _cumulative_raw_mass(plan: "Plan") -> dict[str, float]:
@@ -137,24 +132,23 @@ def _cumulative_raw_mass(plan: "Plan") -> dict[str, float]:
             maker = plan.step_making(c.material) if c.intermediate else None
             if maker is None:
                 if not c.intermediate:
-                    total += _kg(c.mass)
+                    total += c.m_kg
                 continue
-            if maker.from_stock_mol is None:
+            if maker.stock_n_mol is None:
                 total += _share(c, maker) * out[maker.id]
             else:
-                total += _stock_share(c, maker) * (out[maker.id] + _kg(maker.from_stock_mass))
+                total += _stock_share(c, maker) * (out[maker.id] + maker.stock_m_kg)
         out[sp.id] = total
     return out
 
 
 def _stock_share(c: "ChargePlan", maker: "StepPlan") -> float:
     """Fraction of ``maker``'s product made and taken from stock that charge ``c`` takes [-]."""
-    mol = unit("mol")
-    supply = maker.product_mol.m_as(mol) + maker.from_stock_mol.m_as(mol)
-    if c.mol is not None and supply > 0:
-        return float(c.mol.m_as(mol) / supply)
-    made = _kg(maker.product_mass) + _kg(maker.from_stock_mass)
-    return _kg(c.mass) / made if made > 0 else 0.0
+    supply = maker.product_n_mol + maker.stock_n_mol
+    if c.n_mol is not None and supply > 0:
+        return c.n_mol / supply
+    made = maker.product_m_kg + maker.stock_m_kg
+    return c.m_kg / made if made > 0 else 0.0
 
 
 def cumulative_pmi(plan: "Plan") -> dict[str, float | None]:
@@ -178,7 +172,7 @@ def cumulative_pmi(plan: "Plan") -> dict[str, float | None]:
         makes nothing.
     """
     raw = _cumulative_raw_mass(plan)
-    return {sp.id: _ratio(raw[sp.id], _kg(sp.product_mass)) for sp in plan.steps}
+    return {sp.id: _ratio(raw[sp.id], sp.product_m_kg) for sp in plan.steps}
 
 
 # --------------------------------------------------------------------- E-factors
@@ -230,11 +224,11 @@ def simple_e_factor(plan: "Plan") -> float:
         for c in sp.charges:
             if c.intermediate or c.role in SOLVENT_ROLES or is_water(materials[c.material]):
                 continue
-            kept += _kg(c.mass)
+            kept += c.m_kg
     shelf = stock_input_kg(plan)
     if shelf:
         kept += sum(shelf.values())
-    target = _kg(plan.target_mass)
+    target = plan.target_kg
     return (kept - target) / target
 
 
@@ -255,18 +249,20 @@ def atom_economy(route: "Route", step_id: str) -> float | None:
     float or None
         AE [-]; None when a molar mass is missing.
     """
+    from routeplan.plan.core import molar_masses
+
     step = route.step(step_id)
-    mats = route.materials
-    prod = mats[step.product].molar_mass
+    M = molar_masses(route)  # [kg/mol]
+    prod = M[step.product]
     if prod is None:
         return None
     den = 0.0
     for t in step.equation.reactants:
-        m = mats[t.key].molar_mass
+        m = M[t.key]
         if m is None:
             return None
-        den += t.coefficient * float(m.m_as(unit("g/mol")))
-    num = step.equation.coefficient(step.product) * float(prod.m_as(unit("g/mol")))
+        den += t.coefficient * m
+    num = step.equation.coefficient(step.product) * prod
     return _ratio(num, den)
 
 
@@ -290,9 +286,11 @@ def reaction_mass_efficiency(route: "Route", sp: "StepPlan") -> float | None:
     float or None
         RME [-]; None when a molar mass is missing or the step makes nothing.
     """
+    from routeplan.plan.core import molar_masses
+
     step = route.step(sp.id)
-    mats = route.materials
-    prod = mats[sp.product].molar_mass
+    M = molar_masses(route)  # [kg/mol]
+    prod = M[sp.product]
     if prod is None:
         return None
     reactants = {t.key for t in step.equation.reactants}
@@ -300,11 +298,11 @@ def reaction_mass_efficiency(route: "Route", sp: "StepPlan") -> float | None:
     for c in sp.charges:
         if c.material not in reactants:
             continue
-        m = mats[c.material].molar_mass
-        if m is None or c.mol is None:
+        m = M[c.material]
+        if m is None or c.n_mol is None:
             return None
-        den += float((c.mol * m).m_as(unit("kg")))
-    num = float((sp.product_mol * prod).m_as(unit("kg")))
+        den += c.n_mol * m  # [mol] * [kg/mol]
+    num = sp.product_n_mol * prod
     return _ratio(num, den) if num > 0 else None
 
 
@@ -333,7 +331,7 @@ def raw_material_cost(plan: "Plan") -> tuple[float | None, tuple[str, ...]]:
     unpriced = tuple(r.material for r in plan.raw_materials if r.cost is None)
     if not priced:
         return None, unpriced
-    return sum(priced) / _kg(plan.target_mass), unpriced
+    return sum(priced) / plan.target_kg, unpriced
 
 
 # --------------------------------------------------------------------- Metrics
@@ -437,23 +435,6 @@ class Metrics:
             "from_stock_per_kg_target": dict(self.from_stock_per_kg_target),
         }
 
-    def summary_lines(self, plan: "Plan") -> list[str]:
-        """Short lines for the terminal, with rich markup; numbers rounded for reading.
-
-        Parameters
-        ----------
-        plan : Plan
-            The plan these metrics belong to (for the target's key).
-
-        Returns
-        -------
-        list of str
-            One line per metric, the first a heading.
-        """
-        from routeplan.views.metrics_text import metrics_lines
-
-        return metrics_lines(self, plan.target_material)
-
 
 def compute_metrics(plan: "Plan") -> Metrics:
     """All metrics of a finished plan.
@@ -469,13 +450,13 @@ def compute_metrics(plan: "Plan") -> Metrics:
         Frozen metrics; ``plan.metrics`` once :func:`~routeplan.plan.planner.plan_route` is done.
     """
     route = plan.route
-    target = _kg(plan.target_mass)
+    target = plan.target_kg
     pmi = route_pmi(plan)
     cost, unpriced = raw_material_cost(plan)
     largest = None
     if plan.raw_materials:
-        big = max(plan.raw_materials, key=lambda r: _kg(r.mass))
-        largest = (big.material, _kg(big.mass))
+        big = max(plan.raw_materials, key=lambda r: r.m_kg)
+        largest = (big.material, big.m_kg)
     runs = {sp.id for sp in plan.steps if sp.not_run is None}
 
     def ran(values: Mapping) -> Mapping:
@@ -496,7 +477,7 @@ def compute_metrics(plan: "Plan") -> Metrics:
         cost_per_kg=cost,
         currency=route.currency,
         unpriced=unpriced,
-        mass_per_kg_target=_frozen({r.material: _kg(r.mass) / target for r in plan.raw_materials}),
+        mass_per_kg_target=_frozen({r.material: r.m_kg / target for r in plan.raw_materials}),
         largest_raw_material=largest,
         step_count=len(plan.steps),
         longest_linear_sequence=tuple(plan.overall_yield.longest_linear_sequence),

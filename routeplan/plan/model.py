@@ -1,14 +1,17 @@
-"""Frozen results of planning: what every exporter reads and none recomputes.
+"""Frozen results of planning: what every view reads and none recomputes.
 
-Quantities carry pint units: moles in mol, masses in kg, volumes in L.  Fields that do
-not apply are None (no molar mass, no density, no vessel).
+Numbers are stored as magnitudes in fixed units named in the field (``n_mol`` [mol],
+``m_kg`` [kg], ``V_L`` [L]); attributes without a unit in their name (``mass``, ``mol``,
+``volume``, ``limiting_mass``, ...) give the same numbers as pint Quantities.  Fields
+that do not apply are None (no molar mass, no density, no vessel).  Per-batch amounts
+are set once, when batches are sized, and only read after.
 """
 
 from __future__ import annotations
 
 import functools
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Any, Mapping
+from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Problem
 
@@ -16,6 +19,8 @@ if TYPE_CHECKING:  # pragma: no cover
     import pandas as pd
     import pint
 
+    from routeplan.plan.metrics import Metrics
+    from routeplan.plan.uncertainty import Uncertainty
     from routeplan.route.model import Route
 
 __all__ = [
@@ -33,9 +38,22 @@ __all__ = [
 PlanFormat = "routeplan-plan/1"
 
 
+def _q(value: float | None, name: str) -> "pint.Quantity | None":
+    """``value`` [``name``] as a pint Quantity, or None for None."""
+    if value is None:
+        return None
+    from routeplan.units import Q, unit
+
+    return Q(value, unit(name))
+
+
 @dataclass(frozen=True)
 class ChargePlan:
-    """One charge of one step, for the whole campaign.
+    """One charge of one step, for the whole campaign and per batch.
+
+    The numbers are stored as magnitudes in fixed units (``n_mol`` [mol], ``m_kg`` [kg],
+    ``V_L`` [L]); the attributes ``mol``, ``mass`` and ``volume`` (and their per-batch
+    twins) give them as pint Quantities.
 
     Attributes
     ----------
@@ -46,19 +64,19 @@ class ChargePlan:
     name : str
         Material display name.
     role : str
-        reactant, reagent, catalyst, solvent or workup.
+        reactant, reagent, catalyst, solvent or workup (:class:`routeplan.vocab.Role`).
     basis : str
-        equiv, mol_percent, volumes, mass_ratio or stoichiometric.
+        equiv, mol_percent, volumes, mass_ratio or stoichiometric (:class:`routeplan.vocab.Basis`).
     basis_value : float
         The number of the basis as written (equiv [-], mol % [-], volumes [L/kg],
         mass ratio [kg/kg]).
     equiv : float or None
         Moles per mole of limiting reagent [-], for molar bases; else None.
-    mol : pint.Quantity or None
+    n_mol : float or None
         Moles of the named compound [mol]; None without a molar mass.
-    mass : pint.Quantity
+    m_kg : float
         Mass as charged [kg] (a solution's whole mass, a solid at its assay).
-    volume : pint.Quantity or None
+    V_L : float or None
         Volume as charged [L]; None where no density is known.
     intermediate : bool
         True when the material is made by an earlier step (not bought).
@@ -66,12 +84,13 @@ class ChargePlan:
         True when the line was added by the loader (reactant with no charge line).
     carried_from : str or None
         Id of the telescoped step whose reaction mixture brings this intermediate in
-        solution; ``volume`` is then the volume of mixture carried in [L] and ``mass`` the
+        solution; ``V_L`` is then the volume of mixture carried in [L] and ``m_kg`` the
         mass of the compound in it [kg] (the mixture is not weighed).
-    mol_per_batch, mass_per_batch, volume_per_batch : pint.Quantity or None
-        ``mol``, ``mass`` and ``volume`` divided by the step's batches [mol], [kg], [L],
-        set once when batches are sized; None where the total is None or the step does
-        not run (no batches).
+    batches : int
+        Batches of the step [-] (0 for a step that does not run).
+    leaves : bool
+        True for a charge that leaves the vessel before the product goes on (a wash
+        separated and discarded), so it is not carried into the next step.
     """
 
     order: int
@@ -81,15 +100,62 @@ class ChargePlan:
     basis: str
     basis_value: float
     equiv: float | None
-    mol: "pint.Quantity | None"
-    mass: "pint.Quantity"
-    volume: "pint.Quantity | None"
+    n_mol: float | None
+    m_kg: float
+    V_L: float | None
     intermediate: bool = False
     implicit: bool = False
     carried_from: str | None = None
-    mol_per_batch: "pint.Quantity | None" = None
-    mass_per_batch: "pint.Quantity | None" = None
-    volume_per_batch: "pint.Quantity | None" = None
+    batches: int = 1
+    leaves: bool = False
+
+    @property
+    def mol(self) -> "pint.Quantity | None":
+        """Moles of the named compound [mol]; None without a molar mass."""
+        return _q(self.n_mol, "mol")
+
+    @property
+    def mass(self) -> "pint.Quantity":
+        """Mass as charged [kg]."""
+        return _q(self.m_kg, "kg")
+
+    @property
+    def volume(self) -> "pint.Quantity | None":
+        """Volume as charged [L]; None without a density."""
+        return _q(self.V_L, "L")
+
+    def _per(self, value: float | None) -> float | None:
+        return None if value is None or self.batches == 0 else value / self.batches
+
+    @property
+    def n_mol_batch(self) -> float | None:
+        """Moles per batch [mol]; None without a molar mass or without batches."""
+        return self._per(self.n_mol)
+
+    @property
+    def m_kg_batch(self) -> float | None:
+        """Mass per batch [kg]; None without batches."""
+        return self._per(self.m_kg)
+
+    @property
+    def V_L_batch(self) -> float | None:
+        """Volume per batch [L]; None without a density or without batches."""
+        return self._per(self.V_L)
+
+    @property
+    def mol_per_batch(self) -> "pint.Quantity | None":
+        """``n_mol_batch`` as a Quantity [mol]."""
+        return _q(self.n_mol_batch, "mol")
+
+    @property
+    def mass_per_batch(self) -> "pint.Quantity | None":
+        """``m_kg_batch`` as a Quantity [kg]."""
+        return _q(self.m_kg_batch, "kg")
+
+    @property
+    def volume_per_batch(self) -> "pint.Quantity | None":
+        """``V_L_batch`` as a Quantity [L]."""
+        return _q(self.V_L_batch, "L")
 
 
 @dataclass(frozen=True)
@@ -99,38 +165,84 @@ class BatchPlan:
     Attributes
     ----------
     batches : int
-        Number of batches [-].
-    step_volume : pint.Quantity
+        Number of batches [-] (0 for a step that does not run).
+    step_V_L : float
         Largest volume in the vessel over the whole campaign [L].
-    batch_volume : pint.Quantity
-        ``step_volume / batches`` [L].
     fill_fraction : float or None
-        ``batch_volume`` over the vessel's nominal volume [-]; None without a vessel.
+        Volume per batch over the vessel's nominal volume [-]; None without a vessel.
     vessel : str or None
         Vessel key.
     notes : tuple of str
         What was left out of the volume (solids without density) and why.
-    limiting_mol, limiting_mass : pint.Quantity or None
-        Limiting reagent per batch [mol], as charged [kg]; None without batches.
-    product_mol, product_mass : pint.Quantity or None
-        Product per batch [mol], as isolated [kg]; None without batches.
-    reaction_mass : pint.Quantity or None
-        Mass in the vessel per batch that takes part in the reaction [kg]: every charge
+    limiting_n_mol, limiting_m_kg : float
+        Limiting reagent over the campaign [mol], as charged [kg].
+    product_n_mol, product_m_kg : float
+        Product over the campaign [mol], as isolated [kg].
+    reaction_m_kg : float
+        Mass that takes part in the reaction over the campaign [kg]: every charge
         except ``role: workup``, a telescoped mixture at the mass carried in
-        (:func:`routeplan.plan.campaign.reaction_masses`); None without batches.
+        (:func:`routeplan.plan.campaign.reaction_masses`).
+
+    The per-batch attributes (``batch_volume``, ``limiting_mol``, ``limiting_mass``,
+    ``product_mol``, ``product_mass``, ``reaction_mass``) are those totals divided by
+    ``batches``, as pint Quantities; None for a step without batches (``batch_volume``
+    is 0 L then).
     """
 
     batches: int
-    step_volume: "pint.Quantity"
-    batch_volume: "pint.Quantity"
+    step_V_L: float
     fill_fraction: float | None = None
     vessel: str | None = None
     notes: tuple[str, ...] = ()
-    limiting_mol: "pint.Quantity | None" = None
-    limiting_mass: "pint.Quantity | None" = None
-    product_mol: "pint.Quantity | None" = None
-    product_mass: "pint.Quantity | None" = None
-    reaction_mass: "pint.Quantity | None" = None
+    limiting_n_mol: float = 0.0
+    limiting_m_kg: float = 0.0
+    product_n_mol: float = 0.0
+    product_m_kg: float = 0.0
+    reaction_m_kg: float = 0.0
+
+    def per_batch(self, total: float) -> float | None:
+        """``total`` divided by the batches, or None for a step without batches."""
+        return None if self.batches == 0 else total / self.batches
+
+    @property
+    def batch_V_L(self) -> float:
+        """Volume per batch [L] (0 without batches)."""
+        return 0.0 if self.batches == 0 else self.step_V_L / self.batches
+
+    @property
+    def step_volume(self) -> "pint.Quantity":
+        """Largest volume in the vessel over the campaign [L]."""
+        return _q(self.step_V_L, "L")
+
+    @property
+    def batch_volume(self) -> "pint.Quantity":
+        """Volume per batch [L]."""
+        return _q(self.batch_V_L, "L")
+
+    @property
+    def limiting_mol(self) -> "pint.Quantity | None":
+        """Limiting reagent per batch [mol]."""
+        return _q(self.per_batch(self.limiting_n_mol), "mol")
+
+    @property
+    def limiting_mass(self) -> "pint.Quantity | None":
+        """Limiting reagent per batch, as charged [kg]."""
+        return _q(self.per_batch(self.limiting_m_kg), "kg")
+
+    @property
+    def product_mol(self) -> "pint.Quantity | None":
+        """Product per batch [mol]."""
+        return _q(self.per_batch(self.product_n_mol), "mol")
+
+    @property
+    def product_mass(self) -> "pint.Quantity | None":
+        """Product per batch, as isolated [kg]."""
+        return _q(self.per_batch(self.product_m_kg), "kg")
+
+    @property
+    def reaction_mass(self) -> "pint.Quantity | None":
+        """Reaction mass per batch [kg]."""
+        return _q(self.per_batch(self.reaction_m_kg), "kg")
 
 
 @dataclass(frozen=True)
@@ -145,33 +257,32 @@ class StepPlan:
         The equation as written.
     limiting : str
         Key of the limiting reagent.
-    limiting_mol : pint.Quantity
-        Moles of limiting reagent [mol].
-    limiting_mass : pint.Quantity
-        Mass of limiting reagent as charged [kg].
+    limiting_n_mol : float
+        Moles of limiting reagent [mol] (``limiting_mol`` as a Quantity).
+    limiting_m_kg : float
+        Mass of limiting reagent as charged [kg] (``limiting_mass``).
     product : str
         Key of the main product.
-    product_mol : pint.Quantity
-        Moles of product made [mol].
-    product_mass : pint.Quantity
-        Mass of product as isolated, at the product's assay [kg].
+    product_n_mol : float
+        Moles of product made [mol] (``product_mol``).
+    product_m_kg : float
+        Mass of product as isolated, at the product's assay [kg] (``product_mass``).
     yield_ : float
         Molar yield the walk used [-] (the expected one unless planned at low or high).
     isolated : bool
         False for a telescoped step.
     charges : tuple of ChargePlan
         In order of addition.
+    batch : BatchPlan
+        Batch sizing.
     vessel : str or None
         Vessel key.
-    batch : BatchPlan or None
-        Batch sizing, once computed.
     notes : str or None
         Free text from the route file.
-    from_stock_mol : pint.Quantity or None
-        Moles of the product taken from the stock on hand [mol] before the step is
-        planned for the rest; None when the stock list does not name the product.
-    from_stock_mass : pint.Quantity or None
-        The same as a mass as isolated, at the product's assay [kg]; None likewise.
+    stock_n_mol, stock_m_kg : float or None
+        Product taken from the stock on hand [mol], as isolated [kg], before the step
+        is planned for the rest (``from_stock_mol``, ``from_stock_mass``); None when the
+        stock list does not name the product.
     not_run : str or None
         Why the step does not run in this campaign (the stock of its product covers
         the demand, or it feeds only steps that do not run); None when it runs.  A step
@@ -184,26 +295,56 @@ class StepPlan:
     name: str
     equation: str
     limiting: str
-    limiting_mol: "pint.Quantity"
-    limiting_mass: "pint.Quantity"
+    limiting_n_mol: float
+    limiting_m_kg: float
     product: str
-    product_mol: "pint.Quantity"
-    product_mass: "pint.Quantity"
+    product_n_mol: float
+    product_m_kg: float
     yield_: float
     isolated: bool
     charges: tuple[ChargePlan, ...]
+    batch: BatchPlan
     vessel: str | None = None
-    batch: BatchPlan | None = None
     notes: str | None = None
-    from_stock_mol: "pint.Quantity | None" = None
-    from_stock_mass: "pint.Quantity | None" = None
+    stock_n_mol: float | None = None
+    stock_m_kg: float | None = None
     not_run: str | None = None
     safety: Any = None
 
     @property
     def batches(self) -> int:
-        """Number of batches [-] (1 until sized; 0 for a step that does not run)."""
-        return self.batch.batches if self.batch else 1
+        """Number of batches [-] (0 for a step that does not run)."""
+        return self.batch.batches
+
+    @property
+    def limiting_mol(self) -> "pint.Quantity":
+        """Moles of limiting reagent [mol]."""
+        return _q(self.limiting_n_mol, "mol")
+
+    @property
+    def limiting_mass(self) -> "pint.Quantity":
+        """Mass of limiting reagent as charged [kg]."""
+        return _q(self.limiting_m_kg, "kg")
+
+    @property
+    def product_mol(self) -> "pint.Quantity":
+        """Moles of product made [mol]."""
+        return _q(self.product_n_mol, "mol")
+
+    @property
+    def product_mass(self) -> "pint.Quantity":
+        """Mass of product as isolated [kg]."""
+        return _q(self.product_m_kg, "kg")
+
+    @property
+    def from_stock_mol(self) -> "pint.Quantity | None":
+        """Product taken from stock [mol], or None."""
+        return _q(self.stock_n_mol, "mol")
+
+    @property
+    def from_stock_mass(self) -> "pint.Quantity | None":
+        """Product taken from stock as isolated [kg], or None."""
+        return _q(self.stock_m_kg, "kg")
 
     @property
     def runs(self) -> bool:
@@ -213,7 +354,7 @@ class StepPlan:
     @property
     def covered_by_stock(self) -> bool:
         """True when the stock of the product covers the whole demand on the step."""
-        return self.not_run is not None and self.from_stock_mol is not None and self.from_stock_mol.magnitude > 0
+        return self.not_run is not None and self.stock_n_mol is not None and self.stock_n_mol > 0
 
 
 @dataclass(frozen=True)
@@ -224,12 +365,12 @@ class RawMaterialTotal:
     ----------
     material, name : str
         Key and display name.
-    mass : pint.Quantity
-        Mass as supplied [kg].
-    volume : pint.Quantity or None
-        Volume as supplied [L], where a density is known.
-    mol : pint.Quantity or None
-        Moles of the compound [mol], where a molar mass is known.
+    m_kg : float
+        Mass as supplied [kg] (``mass`` as a Quantity).
+    V_L : float or None
+        Volume as supplied [L], where a density is known (``volume``).
+    n_mol : float or None
+        Moles of the compound [mol], where a molar mass is known (``mol``).
     cost : float or None
         ``mass * price`` in the route's currency; None without a price or currency.
     steps : tuple of str
@@ -238,11 +379,26 @@ class RawMaterialTotal:
 
     material: str
     name: str
-    mass: "pint.Quantity"
-    volume: "pint.Quantity | None"
-    mol: "pint.Quantity | None"
+    m_kg: float
+    V_L: float | None
+    n_mol: float | None
     cost: float | None
     steps: tuple[str, ...]
+
+    @property
+    def mass(self) -> "pint.Quantity":
+        """Mass as supplied [kg]."""
+        return _q(self.m_kg, "kg")
+
+    @property
+    def volume(self) -> "pint.Quantity | None":
+        """Volume as supplied [L], or None."""
+        return _q(self.V_L, "L")
+
+    @property
+    def mol(self) -> "pint.Quantity | None":
+        """Moles of the compound [mol], or None."""
+        return _q(self.n_mol, "mol")
 
 
 @dataclass(frozen=True)
@@ -299,9 +455,11 @@ class StockPlan:
     source: str | None = None
 
 
-@dataclass(frozen=True)
+@dataclass(frozen=True, eq=False)
 class Plan:
-    """The plan of a whole campaign.
+    """The plan of a whole campaign, complete when built (:func:`routeplan.plan.planner.plan_route`).
+
+    Equality is identity: two plans are the same plan only if they are one object.
 
     Attributes
     ----------
@@ -309,20 +467,20 @@ class Plan:
         The route planned.
     target_material : str
         Key of the target.
-    target_mass : pint.Quantity
-        Mass delivered, as isolated, including overage [kg].
-    target_mol : pint.Quantity
-        Moles of pure target [mol].
+    target_kg : float
+        Mass delivered, as isolated, including overage [kg] (``target_mass``).
+    target_n_mol : float
+        Moles of pure target [mol] (``target_mol``).
     steps : tuple of StepPlan
         In execution order.
     raw_materials : tuple of RawMaterialTotal
         Every bought material, in order of first use.
     overall_yield : OverallYield
         Overall yield.
+    metrics : Metrics
+        Route metrics (:mod:`routeplan.plan.metrics`).
     warnings : tuple of Problem
         The route's warnings and the planner's.
-    metrics : object or None
-        Route metrics (see :mod:`routeplan.plan.metrics`), once computed.
     stock : StockPlan or None
         Stock comparison, when a stock list was given.
     yield_basis : str
@@ -334,19 +492,26 @@ class Plan:
 
     route: "Route"
     target_material: str
-    target_mass: "pint.Quantity"
-    target_mol: "pint.Quantity"
+    target_kg: float
+    target_n_mol: float
     steps: tuple[StepPlan, ...]
     raw_materials: tuple[RawMaterialTotal, ...]
     overall_yield: OverallYield
+    metrics: "Metrics"
     warnings: tuple[Problem, ...] = ()
-    metrics: Any = None
     stock: StockPlan | None = None
     yield_basis: str = "expected"
-    uncertainty: Any = None
+    uncertainty: "Uncertainty | None" = None
 
-    def __hash__(self) -> int:
-        return id(self)
+    @property
+    def target_mass(self) -> "pint.Quantity":
+        """Mass delivered, as isolated, including overage [kg]."""
+        return _q(self.target_kg, "kg")
+
+    @property
+    def target_mol(self) -> "pint.Quantity":
+        """Moles of pure target [mol]."""
+        return _q(self.target_n_mol, "mol")
 
     @functools.cached_property
     def _steps_by_id(self) -> Mapping[str, StepPlan]:
@@ -360,15 +525,3 @@ class Plan:
         """The plan of the step whose main product is ``material``, or None."""
         sid = self.route.maker.get(material)
         return None if sid is None else self._steps_by_id.get(sid)
-
-    def to_dict(self) -> dict[str, Any]:
-        """The plan as the JSON contract (``routeplan-plan/1``), plain Python values."""
-        from routeplan.export.json import plan_to_dict
-
-        return plan_to_dict(self)
-
-    def to_frame(self) -> "pd.DataFrame":
-        """Every charge of every step as a pandas DataFrame, one row per charge."""
-        from routeplan.views.tables import charges_frame
-
-        return charges_frame(self)

@@ -1,27 +1,77 @@
 """The planner: builds one complete, frozen Plan from a route and a target.
 
-It calls, in this order, the backward walk (:mod:`routeplan.plan.walk`), batch sizing
-(:mod:`routeplan.plan.campaign`), totals (:mod:`routeplan.plan.totals`), metrics
-(:mod:`routeplan.plan.metrics`) and the stock comparison (:mod:`routeplan.plan.stock`),
-and constructs the Plan once with every field final.  A new capability computed from a
-plan (safety, record, uncertainty, schedule, waste) is one more call here.
+In this order it calls the backward walk (:mod:`routeplan.plan.walk`, numbers from
+:mod:`routeplan.plan.core`), the batch sizing (:mod:`routeplan.plan.campaign`), the step
+plans (:mod:`routeplan.plan.charges`), the totals (:mod:`routeplan.plan.totals`), the
+metrics (:mod:`routeplan.plan.metrics`) and the stock comparison
+(:mod:`routeplan.plan.stock`), and constructs the Plan once, with every field final.  A
+new capability computed from a plan (safety, record, uncertainty, schedule, waste) is
+one more call here, on the draft, before the Plan is built.
 """
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
+import functools
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Location, PlanError, Problem
-from routeplan.plan.walk import YIELD_BASES, target_moles, walk_steps
-from routeplan.units import unit
+from routeplan.plan.walk import YIELD_BASES, walk_route
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
 
-    from routeplan.plan.model import Plan
+    from routeplan.plan.model import OverallYield, Plan, RawMaterialTotal, StepPlan
     from routeplan.route.model import Route
 
-__all__ = ["plan_route"]
+__all__ = ["plan_route", "Draft"]
+
+
+@dataclass(frozen=True, eq=False)
+class Draft:
+    """What the planner knows before the Plan is built: what the metrics, the stock and
+    every later computation read (the same names as on :class:`Plan`)."""
+
+    route: "Route"
+    target_material: str
+    target_kg: float
+    target_n_mol: float
+    steps: "tuple[StepPlan, ...]"
+    raw_materials: "tuple[RawMaterialTotal, ...]"
+    overall_yield: "OverallYield"
+    yield_basis: str
+
+    @functools.cached_property
+    def _by_product(self) -> Mapping[str, "StepPlan"]:
+        return {s.product: s for s in self.steps}
+
+    def step_making(self, material: str) -> "StepPlan | None":
+        """The plan of the step whose main product is ``material``, or None."""
+        return self._by_product.get(material) if material in self.route.maker else None
+
+    @property
+    def target_mass(self) -> "pint.Quantity":
+        """Mass delivered with overage [kg]."""
+        from routeplan.units import Q, unit
+
+        return Q(self.target_kg, unit("kg"))
+
+
+def _amount_kg(route: "Route", target) -> float:
+    """The target amount before overage [kg], from a Quantity, a string or the route."""
+    from routeplan.units import parse_quantity, unit
+
+    if target is None:
+        amount = route.target.amount
+    elif isinstance(target, str):
+        amount = parse_quantity(target, "mass")
+    else:
+        amount = target
+    value = float(amount.m_as(unit("kg")))
+    if not value > 0:
+        raise PlanError(f"the target mass must be positive, got {amount:~P}",
+                        hint="give a mass such as '25 kg'")
+    return value
 
 
 def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None,
@@ -37,11 +87,11 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         Mass to deliver as isolated [kg] (any mass unit, or a string such as
         ``"40 kg"``); default the route's ``target.amount``.
     stock : Mapping[str, pint.Quantity] or str or Path, optional
-        Materials on hand [kg], or a stock file (YAML, CSV or xlsx); when given, the
-        plan says the largest target the stock allows and what to buy.  Raw materials
-        are as supplied; an intermediate (the product of an isolated step) is as
-        isolated, at its assay, and is used first: the step that makes it is planned
-        for the rest of the demand only (see :func:`walk_steps`).
+        Materials on hand [kg], or a stock file (YAML, CSV or xlsx, read by
+        :mod:`routeplan.inputs.stock`); when given, the plan says the largest target the
+        stock allows and what to buy.  Raw materials are as supplied; an intermediate
+        (the product of an isolated step) is as isolated, at its assay, and is used
+        first: the step that makes it is planned for the rest of the demand only.
     yields : {"expected", "low", "high"}
         Which yield of each step the walk uses; a step without a ``low`` or ``high``
         uses its expected yield.  Planning at the low yields sizes charges and purchases
@@ -59,16 +109,20 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     Returns
     -------
     Plan
-        Frozen results, steps in execution order.
+        Frozen and complete, steps in execution order.
 
     Raises
     ------
     PlanError
         When the route cannot be planned (e.g. a non-positive target).
     """
+    from routeplan.plan.campaign import size_steps
+    from routeplan.plan.charges import step_plans
+    from routeplan.plan.metrics import compute_metrics
+    from routeplan.plan.safety import assess_safety
     from routeplan.plan.model import Plan
     from routeplan.plan.totals import overall_yield, raw_material_totals
-    from routeplan.units import parse_quantity
+    from routeplan.units import unit
 
     if confidence is not None:
         from routeplan.plan.uncertainty import DEFAULT_DRAWS, DEFAULT_SEED, check_options
@@ -81,62 +135,38 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
                             location=Location(key="--yields"), hint="leave out --yields with --confidence")
     if yields not in YIELD_BASES:
         raise PlanError(f"unknown yield basis '{yields}'", hint="use expected, low or high")
-    if target is None:
-        amount = route.target.amount
-    elif isinstance(target, str):
-        amount = parse_quantity(target, "mass")
-    else:
-        amount = target
-    amount = amount.to(unit("kg"))
-    if not amount.magnitude > 0:
-        raise PlanError(f"the target mass must be positive, got {amount:~P}",
-                        hint="give a mass such as '25 kg'")
-
-    on_hand, source, from_stock = None, None, None
+    amount_kg = _amount_kg(route, target)
+    on_hand, source, shelf_kg = None, None, None
     if stock is not None:
         from routeplan.inputs.stock import load_stock
         from routeplan.plan.stock import intermediate_stock
 
         on_hand, source = load_stock(route, stock)
-        from_stock = intermediate_stock(route, on_hand) or None
+        shelf = intermediate_stock(route, on_hand)
+        shelf_kg = {k: float(v.m_as(unit("kg"))) for k, v in shelf.items()} or None
 
-    warnings: list[Problem] = list(route.warnings)
-    n_target = target_moles(route, amount)
-    steps = walk_steps(route, n_target, yields=yields, from_stock=from_stock)
-
-    from routeplan.plan import campaign
-
-    steps, batch_warnings = campaign.size_batches(route, steps)
-    warnings.extend(batch_warnings)
-    from routeplan.plan.safety import assess_safety
-
+    walked = walk_route(route, amount_kg, yields=yields, shelf_kg=shelf_kg)
+    sized, batch_warnings = size_steps(route, walked)
+    steps = step_plans(route, walked, sized)
     steps, safety_warnings = assess_safety(route, steps)
-    warnings.extend(safety_warnings)
-    raws = raw_material_totals(route, steps)
-    plan = Plan(
-        route=route,
-        target_material=route.target.material,
-        target_mass=(amount * (1 + route.target.overage)).to(unit("kg")),
-        target_mol=n_target,
-        steps=steps,
-        raw_materials=raws,
-        overall_yield=overall_yield(route, steps, n_target),
-        warnings=tuple(warnings),
-        yield_basis=yields,
-    )
-    from dataclasses import replace
-
-    from routeplan.plan.metrics import compute_metrics
-
-    plan = replace(plan, metrics=compute_metrics(plan))
+    draft = Draft(route=route, target_material=route.target.material,
+                  target_kg=amount_kg * (1 + route.target.overage), target_n_mol=walked.n_target_mol,
+                  steps=steps, raw_materials=raw_material_totals(route, steps),
+                  overall_yield=overall_yield(route, steps, walked.n_target_mol), yield_basis=yields)
+    warnings: list[Problem] = [*route.warnings, *batch_warnings, *safety_warnings]
+    stock_plan = None
     if stock is not None:
-        from routeplan.plan.stock import stock_plan
+        from routeplan.plan.stock import stock_plan as compare_stock
 
-        plan = replace(plan, stock=stock_plan(plan, on_hand, source=source))
+        stock_plan = compare_stock(draft, on_hand, source=source)
+    uncertainty = None
     if confidence is not None:
         from routeplan.plan.uncertainty import yield_uncertainty
 
-        plan = replace(plan, uncertainty=yield_uncertainty(plan, confidence=confidence, draws=draws, seed=seed))
-    return plan
-
-
+        uncertainty = yield_uncertainty(draft, confidence=confidence, draws=draws, seed=seed)
+    return Plan(
+        route=route, target_material=draft.target_material, target_kg=draft.target_kg,
+        target_n_mol=draft.target_n_mol, steps=steps, raw_materials=draft.raw_materials,
+        overall_yield=draft.overall_yield, metrics=compute_metrics(draft),
+        warnings=tuple(warnings), stock=stock_plan, yield_basis=yields, uncertainty=uncertainty,
+    )

@@ -1,7 +1,7 @@
 """Heat and gas per batch: the screening estimates a safety review asks for first.
 
 Pure computation on plain floats in fixed units (mol, kg, L, K, kJ, Pa, min) from the
-per-batch numbers of the Plan (``StepPlan.batch``, ``ChargePlan.mol_per_batch``), by the
+per-batch numbers of the Plan (``BatchPlan.per_batch``, ``ChargePlan.n_mol_batch``), by the
 method of ROUTE-FORMAT.md, "Extensions" (Stoessel, *Thermal Safety of Chemical
 Processes*, Wiley-VCH 2008; criticality classes: Stoessel, Chem. Eng. Prog. 1993, 89(10),
 68):
@@ -363,9 +363,9 @@ def step_safety(route: "Route", sp: "StepPlan") -> StepSafety:
     dosing = step.dosing
     dosing_min = None if dosing is None else float(dosing.time.m_as(unit("min")))
     b = sp.batch
-    if not sp.runs or b is None or b.limiting_mol is None:
+    if not sp.runs or b is None or b.batches == 0:
         return StepSafety(dosed=None if dosing is None else dosing.material, dosing_time_min=dosing_min, runs=False)
-    n_lim_mol = float(b.limiting_mol.m_as(unit("mol")))
+    n_lim_mol = b.per_batch(b.limiting_n_mol)
     nu_lim = step.equation.coefficient(step.limiting)
     T_K, p_Pa = _conditions(step)
 
@@ -379,20 +379,19 @@ def step_safety(route: "Route", sp: "StepPlan") -> StepSafety:
                                   vent=_vent(route.materials[key].hazards)))
     taken = []
     for key, _nu in _gases(route, step, "reactants"):
-        n_mol = sum(float(c.mol_per_batch.m_as(unit("mol"))) for c in sp.charges
-                    if c.material == key and c.mol_per_batch is not None)
+        n_mol = sum(c.n_mol_batch for c in sp.charges if c.material == key and c.n_mol_batch is not None)
         taken.append(GasTakenUp(material=key, mol_per_batch=n_mol, normal_volume_L_per_batch=normal_volume_L(n_mol),
                                 vent=_vent(route.materials[key].hazards)))
 
     free_L = None
     vessel = route.equipment.get(b.vessel) if b.vessel else None
     if vessel is not None:
-        free_L = float(vessel.volume.m_as(unit("L")) - b.batch_volume.m_as(unit("L")))
+        free_L = float(vessel.volume.m_as(unit("L"))) - b.batch_V_L
 
     thermal = None
     t = step.thermal
     if t is not None:
-        m_kg = float(b.reaction_mass.m_as(unit("kg")))
+        m_kg = b.per_batch(b.reaction_m_kg)
         dT = delta_T_ad_K(float(t.reaction_enthalpy.m_as(unit("kJ/mol"))), n_lim_mol, m_kg,
                           float(t.heat_capacity.m_as(unit("kJ/(kg*K)"))))
         Tp_K = float(t.process_temperature.m_as(unit("K"))) if t.process_temperature is not None else T_K

@@ -36,16 +36,13 @@ REL_TOL = 1e-9
 MAX_WALKS = 80
 
 
-def raw_needs(steps) -> dict[str, float]:
-    """Mass of each bought material charged over ``steps`` [kg], steps that run only."""
-    kg = unit("kg")
+def raw_needs(walked) -> dict[str, float]:
+    """Mass of each bought material charged over a walk [kg] (a step that does not run charges nothing)."""
     out: dict[str, float] = {}
-    for sp in steps:
-        if sp.not_run is not None:
-            continue
-        for c in sp.charges:
+    for w in walked.steps.values():
+        for c, (_n, m, _V) in zip(w.step.charges, w.charges):
             if not c.intermediate:
-                out[c.material] = out.get(c.material, 0.0) + float(c.mass.m_as(kg))
+                out[c.material] = out.get(c.material, 0.0) + m
     return out
 
 
@@ -75,14 +72,15 @@ def largest_target(route: "Route", requested: "pint.Quantity", raw_on_hand: Mapp
         bracket: planning it needs no more of any listed raw material than is on hand
         (to the bracket's width).
     """
-    from routeplan.plan.walk import target_moles, walk_steps
+    from routeplan.plan.walk import walk_route
     from routeplan.units import Q
 
     kg = unit("kg")
     t0 = float(requested.m_as(kg))
+    shelf_kg = {k: float(v.m_as(kg)) for k, v in shelf.items()}
 
     def needs(t: float, stock) -> dict[str, float]:
-        return raw_needs(walk_steps(route, target_moles(route, Q(t, kg)), yields=yields, from_stock=stock))
+        return raw_needs(walk_route(route, t, yields=yields, shelf_kg=stock))
 
     free = needs(t0, None)
     have = {k: float(v.m_as(kg)) for k, v in raw_on_hand.items() if free.get(k, 0.0) > 0}
@@ -92,7 +90,7 @@ def largest_target(route: "Route", requested: "pint.Quantity", raw_on_hand: Mapp
 
     def excess(t: float) -> tuple[float, str]:
         """Largest need over on hand among the listed raw materials at target ``t``, and which."""
-        got = needs(t, shelf)
+        got = needs(t, shelf_kg)
         worst, key = 0.0, None
         for k, h in have.items():
             n = got.get(k, 0.0)

@@ -4,15 +4,11 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from routeplan.units import unit
-
 if TYPE_CHECKING:  # pragma: no cover
-    import pint
-
     from routeplan.plan.model import OverallYield, RawMaterialTotal, StepPlan
     from routeplan.route.model import Route
 
-__all__ = ["raw_material_totals", "overall_yield", "stoichiometric_factor", "made_fraction"]
+__all__ = ["raw_material_totals", "overall_yield", "downstream_factors", "stoichiometric_factor", "made_fraction"]
 
 
 def raw_material_totals(route: "Route", steps: "tuple[StepPlan, ...]") -> "tuple[RawMaterialTotal, ...]":
@@ -24,65 +20,77 @@ def raw_material_totals(route: "Route", steps: "tuple[StepPlan, ...]") -> "tuple
     """
     from routeplan.plan.model import RawMaterialTotal
 
-    acc: dict[str, dict] = {}
+    acc: dict[str, list] = {}
     for sp in steps:
         if sp.not_run is not None:
             continue
         for c in sp.charges:
             if c.intermediate:
                 continue
-            a = acc.setdefault(c.material, {"mass": None, "volume": None, "mol": None, "steps": []})
-            a["mass"] = c.mass if a["mass"] is None else a["mass"] + c.mass
-            if c.volume is not None:
-                a["volume"] = c.volume if a["volume"] is None else a["volume"] + c.volume
-            if c.mol is not None:
-                a["mol"] = c.mol if a["mol"] is None else a["mol"] + c.mol
-            if sp.id not in a["steps"]:
-                a["steps"].append(sp.id)
+            a = acc.setdefault(c.material, [0.0, None, None, []])
+            a[0] += c.m_kg
+            if c.V_L is not None:
+                a[1] = c.V_L if a[1] is None else a[1] + c.V_L
+            if c.n_mol is not None:
+                a[2] = c.n_mol if a[2] is None else a[2] + c.n_mol
+            if sp.id not in a[3]:
+                a[3].append(sp.id)
     out = []
-    for key, a in acc.items():
+    for key, (m, V, n, used) in acc.items():
         mat = route.materials[key]
-        cost = None
-        if mat.price is not None and route.currency:
-            cost = a["mass"].m_as(unit("kg")) * mat.price
-        out.append(RawMaterialTotal(
-            material=key, name=mat.name, mass=a["mass"], volume=a["volume"], mol=a["mol"],
-            cost=cost, steps=tuple(a["steps"]),
-        ))
+        cost = m * mat.price if mat.price is not None and route.currency else None
+        out.append(RawMaterialTotal(material=key, name=mat.name, m_kg=m, V_L=V, n_mol=n,
+                                    cost=cost, steps=tuple(used)))
     return tuple(out)
 
 
-def stoichiometric_factor(route: "Route", step_id: str, material: str, _memo: dict | None = None) -> float:
+def downstream_factors(route: "Route") -> dict[str, float]:
+    """Theoretical moles of target per mole of each step's product [-] (1 for the target).
+
+    The product over the steps from the product to the target of
+    ``nu_product / nu_entering``, ``nu_entering`` the coefficient of the material that
+    enters each step on the path.  Where an intermediate feeds several steps the most
+    favourable path is taken (the largest factor).  One pass in reverse execution order,
+    no recursion, so the cost is linear in the number of steps.
+    """
+    from routeplan.plan.core import step_order
+
+    out: dict[str, float] = {route.target.material: 1.0}
+    for sid in reversed(step_order(route)):
+        product = route.step(sid).product
+        if product == route.target.material:
+            continue
+        best = 0.0
+        for user in route.consumers.get(product, ()):
+            best = max(best, stoichiometric_factor(route, user, product, out))
+        out[product] = best
+    return out
+
+
+def stoichiometric_factor(route: "Route", step_id: str, material: str,
+                          downstream: dict[str, float] | None = None) -> float:
     """Theoretical moles of target per mole of ``material`` charged in ``step_id`` [-].
 
-    The product over the steps from ``step_id`` to the target of
-    ``nu_product / nu_entering``, where ``nu_entering`` is the coefficient of the
-    material that enters each step on the path.  Where an intermediate feeds several
-    steps the most favourable path is taken (the largest factor).  Each step's factor
-    from its product onward is computed once (``_memo``), so the cost is linear in the
-    number of steps.
+    ``nu_product / nu_material`` of the step times the factor of its product onward
+    (:func:`downstream_factors`, computed once and passed in ``downstream``).
     """
-    memo = {} if _memo is None else _memo
+    down = downstream_factors(route) if downstream is None else downstream
     step = route.step(step_id)
     factor = step.equation.coefficient(step.product) / step.equation.coefficient(material)
-    return factor * _downstream_factor(route, step.product, memo)
+    return factor * down.get(step.product, 0.0)
 
 
-def _downstream_factor(route: "Route", product: str, memo: dict) -> float:
-    """Theoretical moles of target per mole of ``product`` [-] (1 for the target)."""
-    if product == route.target.material:
-        return 1.0
-    if product in memo:
-        return memo[product]
-    memo[product] = 0.0  # guards against a cycle, which the loader forbids anyway
-    best = 0.0
-    for sid in route.consumers.get(product, ()):
-        best = max(best, stoichiometric_factor(route, sid, product, memo))
-    memo[product] = best
-    return best
+def linear_sequence(route: "Route") -> tuple[str, ...]:
+    """The longest linear sequence (:func:`routeplan.route.graph.longest_linear_sequence`), once per route."""
+    cached = route.__dict__.get("_lls")
+    if cached is None:
+        from routeplan.route.graph import longest_linear_sequence
+
+        cached = route.__dict__["_lls"] = tuple(longest_linear_sequence(route))
+    return cached
 
 
-def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: "pint.Quantity") -> "OverallYield":
+def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: float) -> "OverallYield":
     """Overall yield along the longest linear sequence, and from each raw reactant.
 
     The yield along the longest linear sequence is the product of its expected step
@@ -98,9 +106,8 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: "pint
     theory.
     """
     from routeplan.plan.model import OverallYield
-    from routeplan.route.graph import longest_linear_sequence
 
-    lls = tuple(longest_linear_sequence(route))
+    lls = linear_sequence(route)
     y = low = high = 1.0
     by_step = {sp.id: sp for sp in steps}
     for sid in lls:
@@ -108,20 +115,20 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: "pint
         step_yield = route.step(sid).yield_
         low *= step_yield.low if step_yield.low is not None else step_yield.expected
         high *= step_yield.high if step_yield.high is not None else step_yield.expected
-    made = made_fraction(steps) if any(sp.from_stock_mol is not None for sp in steps) else None
-    memo: dict = {}
+    made = made_fraction(steps) if any(sp.stock_n_mol is not None for sp in steps) else None
+    down = downstream_factors(route)
     sum_n: dict[str, float] = {}
     sum_inv_f: dict[str, float] = {}
-    n_t = n_target.m_as(unit("mol"))
+    n_t = n_target
     for sp in steps:
         step = route.step(sp.id)
         reactants = {t.key for t in step.equation.reactants}
         for c in sp.charges:
-            if c.intermediate or c.material not in reactants or c.mol is None:
+            if c.intermediate or c.material not in reactants or c.n_mol is None:
                 continue
-            f = stoichiometric_factor(route, sp.id, c.material, memo)
+            f = stoichiometric_factor(route, sp.id, c.material, down)
             if f > 0:
-                sum_n[c.material] = sum_n.get(c.material, 0.0) + c.mol.m_as(unit("mol"))
+                sum_n[c.material] = sum_n.get(c.material, 0.0) + c.n_mol
                 weight = 1.0 if made is None else made[sp.id]
                 sum_inv_f[c.material] = sum_inv_f.get(c.material, 0.0) + weight / f
     # used in several steps, the theoretical need is n_t * sum(1/f_i) mol
@@ -148,16 +155,15 @@ def made_fraction(steps: "tuple[StepPlan, ...]") -> dict[str, float]:
     dict[str, float]
         Step id -> fraction [-].
     """
-    mol = unit("mol")
     users: dict[str, list[tuple[str, float]]] = {}
     for sp in steps:
         for c in sp.charges:
-            if c.intermediate and c.mol is not None:
-                users.setdefault(c.material, []).append((sp.id, float(c.mol.m_as(mol))))
+            if c.intermediate and c.n_mol is not None:
+                users.setdefault(c.material, []).append((sp.id, c.n_mol))
     out: dict[str, float] = {}
     for sp in reversed(steps):
-        made = float(sp.product_mol.m_as(mol))
-        taken = 0.0 if sp.from_stock_mol is None else float(sp.from_stock_mol.m_as(mol))
+        made = sp.product_n_mol
+        taken = 0.0 if sp.stock_n_mol is None else sp.stock_n_mol
         alpha = made / (made + taken) if made + taken > 0 else 0.0
         used = [(u, n) for u, n in users.get(sp.product, ()) if u in out]
         total = sum(n for _u, n in used)

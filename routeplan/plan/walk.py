@@ -1,4 +1,4 @@
-"""The backward walk: from the target mass to every charge of every step.
+"""The backward walk of a route, as numbers: from the target mass to every charge.
 
 The method is the one of the route format ("How the plan is computed"):
 
@@ -6,122 +6,114 @@ The method is the one of the route format ("How the plan is computed"):
 2. in reverse execution order, a step whose product is demanded at ``n_p`` mol needs
    ``n_lim = n_p / (yield * nu_product / nu_limiting)`` mol of limiting reagent, and
    demands on an intermediate from several steps add up;
-3. each charge follows from its basis (:mod:`routeplan.plan.charges`);
+3. each charge follows from its basis (:func:`routeplan.plan.core.charge_amounts`);
 4. a charged intermediate is not bought: its moles become the demand on its maker;
 5. an intermediate on the shelf is used first: the demand on its maker is reduced by the
    moles on hand (``mass * assay / M``), never below zero.
 
-Quantities are pint quantities in mol, kg and L throughout.
+The arithmetic is :mod:`routeplan.plan.core`'s; this module adds which steps do not run
+and the checks that every number is finite.  It is a leaf: it imports only the core.
 """
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
+import math
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Mapping
 
-from routeplan.units import unit
-from routeplan.errors import PlanError, Problem
+from routeplan.errors import PlanError
+from routeplan.plan.core import CoreRoute, WalkStep, compile_route, target_amount, walk
 
 if TYPE_CHECKING:  # pragma: no cover
-    from typing import Mapping
-
-    import pint
-
-    from routeplan.plan.model import Plan, StepPlan
     from routeplan.route.model import Route
 
-__all__ = ["walk_steps", "target_moles", "YIELD_BASES"]
-
-
-def target_moles(route: "Route", amount: "pint.Quantity") -> "pint.Quantity":
-    """Moles of pure target the final step must make [mol].
-
-    ``n = amount * (1 + overage) * assay / M`` with ``amount`` the mass as isolated
-    [kg], ``overage`` [-], ``assay`` [-] and ``M`` the molar mass [g/mol].
-    """
-    tgt = route.materials[route.target.material]
-    if tgt.molar_mass is None:  # the loader forbids this; kept as a guard
-        raise PlanError(f"target '{tgt.key}' has no molar mass")
-    n = amount * (1 + route.target.overage) * tgt.assay / tgt.molar_mass
-    return n.to(unit("mol"))
-
+__all__ = ["YIELD_BASES", "Walked", "walk_route", "shelf_moles"]
 
 #: Which of each step's yields the walk uses.
 YIELD_BASES = ("expected", "low", "high")
 
 
-def walk_steps(route: "Route", n_target: "pint.Quantity", *, yields: str = "expected",
-               from_stock: "Mapping[str, pint.Quantity] | None" = None) -> "tuple[StepPlan, ...]":
-    """The backward walk: every step planned for the demand on its product, before batches.
+@dataclass(frozen=True)
+class Walked:
+    """The walk of a route for one target, in floats.
+
+    Attributes
+    ----------
+    core : CoreRoute
+        The compiled route.
+    n_target_mol : float
+        Moles of pure target to make [mol].
+    steps : Mapping[str, WalkStep]
+        Step id -> numbers, execution order.
+    not_run : Mapping[str, str]
+        Step id -> why it does not run (stock covers it, or it feeds only idle steps).
+    """
+
+    core: CoreRoute
+    n_target_mol: float
+    steps: Mapping[str, WalkStep]
+    not_run: Mapping[str, str]
+
+
+def shelf_moles(route: "Route", core: CoreRoute, shelf_kg: Mapping[str, float]) -> dict[str, float]:
+    """Moles on the shelf of each intermediate [mol]: ``mass / (M / assay)``."""
+    out = {}
+    for key, m_kg in shelf_kg.items():
+        maker = route.maker[key]
+        out[key] = m_kg / core.step(maker).product_form.kg_per_mol  # [kg] / [kg/mol]
+    return out
+
+
+def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
+               shelf_kg: Mapping[str, float] | None = None) -> Walked:
+    """Walk ``route`` backward for ``amount_kg`` [kg] of target as isolated, before overage.
 
     Parameters
     ----------
     route : Route
         A checked route.
-    n_target : pint.Quantity
-        Moles of pure target the final step must make [mol] (:func:`target_moles`).
+    amount_kg : float
+        Target amount before overage [kg] (the ``--target`` number).
     yields : {"expected", "low", "high"}
-        Which yield of each step to use.
-    from_stock : Mapping[str, pint.Quantity], optional
-        Intermediates on the shelf: key -> mass as isolated, at its assay [kg].  When
-        the walk reaches the step that makes one, it takes
-        ``min(on hand * assay / M, demand)`` mol from the stock and plans the step for
-        the rest.  A step whose demand the stock covers does not run (``not_run``), and
-        so does a step that feeds only steps that do not run.
+        Which yield of each step.
+    shelf_kg : Mapping[str, float], optional
+        Intermediates on the shelf: key -> mass as isolated, at its assay [kg].  A step
+        whose demand the shelf covers does not run, and so does a step that feeds only
+        steps that do not run.
 
-    Returns
-    -------
-    tuple of StepPlan
-        In execution order, ``batch`` not yet set.  Without ``from_stock`` (or with no
-        intermediate in it) the walk is exactly the route format's.
+    Raises
+    ------
+    PlanError
+        A charge whose numbers overflow (located at the step).
     """
-    from dataclasses import replace
-
-    from routeplan.plan.charges import compute_step, supplied_form
-    from routeplan.route.graph import execution_order
-    from routeplan.units import Q
-
-    mol = unit("mol")
-    demand: dict[str, "pint.Quantity"] = {route.target.material: n_target}
-    planned: dict[str, "StepPlan"] = {}
-    zero = Q(0.0, mol)
-    order = execution_order(route)
-    for sid in reversed(order):
-        step = route.step(sid)
-        n_p = demand.get(step.product)
-        if n_p is None:
-            # a step that does not lead to the target: the loader has warned already
-            n_p = zero
-        have = None if from_stock is None else from_stock.get(step.product)
-        if have is None:
-            sp = compute_step(route, step, n_p, yields=yields)
-        else:
-            kg_per_mol = supplied_form(route.materials[step.product]).kg_per_mol
-            on_shelf = (have / kg_per_mol).to(mol)  # [kg] / [kg/mol]: mass * assay / M
-            if on_shelf.m_as(mol) >= n_p.m_as(mol):
-                taken, rest = n_p, zero
-            else:
-                taken, rest = on_shelf, n_p - on_shelf
-            sp = compute_step(route, step, rest, yields=yields)
-            sp = replace(sp, from_stock_mol=taken.to(mol), from_stock_mass=(taken * kg_per_mol).to(unit("kg")))
-            if n_p.m_as(mol) > 0 and rest.m_as(mol) == 0:
-                sp = replace(sp, not_run=f"the stock of {step.product} covers it")
-        if sp.not_run is None and from_stock is not None:
-            idle = _idle_users(route, step.product, n_p, planned)
-            if idle:
-                sp = replace(sp, not_run=f"it feeds only {', '.join(idle)}, which "
-                                         f"{'does' if len(idle) == 1 else 'do'} not run")
-        planned[sid] = sp
-        for c in sp.charges:
-            if c.intermediate and c.mol is not None:
-                demand[c.material] = demand.get(c.material, zero) + c.mol
-    return tuple(planned[sid] for sid in order)
+    core = compile_route(route, yields)
+    n_target = target_amount(amount_kg, core.overage, core.target_kg_per_mol_pure)
+    shelf = None if shelf_kg is None else shelf_moles(route, core, shelf_kg)
+    steps = walk(core, n_target, shelf)
+    not_run: dict[str, str] = {}
+    if shelf is not None:
+        for s in reversed(core.steps):
+            w = steps[s.id]
+            demanded = w.n_product + (w.n_taken or 0.0)
+            if w.n_taken is not None and demanded > 0 and w.n_product == 0:
+                not_run[s.id] = f"the stock of {s.product} covers it"
+            elif demanded == 0:
+                users = [u for u in route.consumers.get(s.product, ()) if u in steps]
+                if users and all(u in not_run for u in users):
+                    not_run[s.id] = (f"it feeds only {', '.join(users)}, which "
+                                     f"{'does' if len(users) == 1 else 'do'} not run")
+    for s in core.steps:
+        _check_finite(route, steps[s.id])
+    return Walked(core, n_target, steps, not_run)
 
 
-def _idle_users(route: "Route", product: str, n_p: "pint.Quantity", planned) -> list[str]:
-    """The steps that use ``product`` when all of them do not run and nothing is demanded."""
-    if n_p.magnitude != 0:
-        return []
-    users = [u for u in route.consumers.get(product, ()) if u in planned]
-    if users and all(planned[u].not_run is not None for u in users):
-        return users
-    return []
+def _check_finite(route: "Route", w: WalkStep) -> None:
+    """Refuse a step whose numbers overflow: never an ``inf`` or ``nan`` in a plan."""
+    for c, (n, m, V) in zip(w.step.charges, w.charges):
+        for what, x in (("amount", n), ("mass", m), ("volume", V)):
+            if x is not None and not math.isfinite(x):
+                step = route.step(w.step.id)
+                raise PlanError(f"step {step.id}: the {what} of {c.material} comes out as {x}; "
+                                "a number in the route or the target is far out of range",
+                                location=step.location, step=step.id,
+                                hint="check the target amount, the equation's coefficients and the charge lines")

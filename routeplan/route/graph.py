@@ -75,6 +75,8 @@ def find_step_cycle(steps) -> list[str] | None:
     import networkx as nx
 
     g = step_graph(steps)
+    if nx.is_directed_acyclic_graph(g):  # linear time; find_cycle is far slower on a large DAG
+        return None
     try:
         cycle = nx.find_cycle(g)
     except nx.NetworkXNoCycle:

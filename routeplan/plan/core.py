@@ -1,0 +1,336 @@
+"""The arithmetic core of the plan: the route compiled to numbers, and the backward walk.
+
+Every expression of the route format's "How the plan is computed" is written here once,
+with plain arithmetic only, so that the same code runs on
+
+* floats in fixed units (the plan: ``n_mol`` [mol], ``m_kg`` [kg], ``V_L`` [L],
+  ``kg_per_mol`` [kg/mol], ``L_per_kg`` [L/kg]);
+* numpy arrays of such floats (many yields or targets at once);
+* pint Quantities, in a test: the route is compiled with every constant carrying its
+  unit (:func:`compile_route` with ``quantity=Q``) and the same walk runs on them, which
+  proves every expression dimensionally consistent.
+
+The compiled route is cached on the Route (it is frozen), one per yield case, so a
+second plan of the same route starts from numbers.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import TYPE_CHECKING, Any, Callable, Mapping
+
+from routeplan.errors import PlanError
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.route.model import Material, Route
+
+__all__ = [
+    "Form",
+    "CoreCharge",
+    "CoreStep",
+    "CoreRoute",
+    "compile_route",
+    "step_order",
+    "molar_masses",
+    "material_form",
+    "target_amount",
+    "limiting_amount",
+    "charge_amounts",
+    "WalkStep",
+    "walk",
+]
+
+Number = Any  # float, numpy array or pint Quantity
+
+
+def _plain(value: float, unit_name: str) -> float:
+    """The number factory of the plan: the magnitude alone, in the unit named beside it."""
+    return value
+
+
+@dataclass(frozen=True)
+class Form:
+    """Conversion factors of a material as supplied.
+
+    Attributes
+    ----------
+    kg_per_mol : Number or None
+        Mass as supplied per mole of the compound [kg/mol]: ``M / assay``, ``M / w``
+        for a solution by mass fraction, ``rho / c`` for a solution by molarity; None
+        without a molar mass.
+    L_per_kg : Number or None
+        Volume per mass as supplied [L/kg], ``1 / rho``; None without a density.
+    """
+
+    kg_per_mol: Number | None
+    L_per_kg: Number | None
+
+
+def material_form(mat: "Material", quantity: Callable = _plain) -> Form:
+    """The :class:`Form` of ``mat``, its numbers built by ``quantity(value, unit)``.
+
+    ``M`` [g/mol] is read in kg/mol, densities [g/mL] in kg/L, molarities in mol/L.
+    """
+    from routeplan.units import magnitude
+
+    sol = mat.solution
+    density = sol.density if sol is not None else mat.density
+    kg_per_mol = None
+    if sol is not None and sol.molarity is not None:
+        rho = quantity(magnitude(sol.density, "kg/L"), "kg/L")
+        c = quantity(magnitude(sol.molarity, "mol/L"), "mol/L")
+        kg_per_mol = rho / c  # [kg/L] / [mol/L] = [kg/mol]
+    elif mat.molar_mass is not None:
+        fraction = sol.mass_fraction if sol is not None else mat.assay
+        M = quantity(magnitude(mat.molar_mass, "kg/mol"), "kg/mol")
+        kg_per_mol = M / fraction  # [kg/mol] / [-]
+    L_per_kg = None
+    if density is not None:
+        L_per_kg = 1 / quantity(magnitude(density, "kg/L"), "kg/L")  # [L/kg]
+    return Form(kg_per_mol, L_per_kg)
+
+
+@dataclass(frozen=True)
+class CoreCharge:
+    """One charge line as numbers.
+
+    ``factor`` is the basis as a number with its unit: equiv [-] for the molar bases,
+    volumes [L/kg] (litres per kg of limiting reagent as charged), mass ratio [kg/kg].
+    """
+
+    material: str
+    basis: str
+    factor: Number
+    form: Form
+    intermediate: bool
+
+
+@dataclass(frozen=True)
+class CoreStep:
+    """One step as numbers: ``nu_ratio = nu_product / nu_limiting`` [-], ``yield_`` [-]."""
+
+    id: str
+    product: str
+    limiting: str
+    nu_ratio: float
+    yield_: Number
+    product_form: Form
+    limiting_form: Form
+    charges: tuple[CoreCharge, ...]
+
+
+@dataclass(frozen=True)
+class CoreRoute:
+    """The route as numbers: steps in execution order, the target's factors."""
+
+    steps: tuple[CoreStep, ...]
+    target: str
+    target_form: Form
+    target_kg_per_mol_pure: Number
+    overage: float
+
+    def step(self, step_id: str) -> CoreStep:
+        for s in self.steps:
+            if s.id == step_id:
+                return s
+        raise KeyError(step_id)
+
+
+def step_order(route: "Route") -> tuple[str, ...]:
+    """The route's execution order (:func:`routeplan.route.graph.execution_order`), computed once per route."""
+    cached = route.__dict__.get("_step_order")
+    if cached is None:
+        from routeplan.route.graph import execution_order
+
+        cached = route.__dict__["_step_order"] = tuple(execution_order(route))
+    return cached
+
+
+def molar_masses(route: "Route") -> Mapping[str, float | None]:
+    """Molar mass of every material [kg/mol] (None without one), computed once per route."""
+    cached = route.__dict__.get("_molar_masses_kg")
+    if cached is None:
+        from routeplan.units import magnitude
+
+        cached = route.__dict__["_molar_masses_kg"] = {
+            k: magnitude(m.molar_mass, "kg/mol") for k, m in route.materials.items()}
+    return cached
+
+
+def compile_route(route: "Route", yields: str = "expected", quantity: Callable = _plain) -> CoreRoute:
+    """The route as numbers for :func:`walk`.
+
+    Parameters
+    ----------
+    route : Route
+        A checked route.
+    yields : {"expected", "low", "high"}
+        Which yield of each step (the expected one where a step gives no range).
+    quantity : callable, optional
+        ``quantity(value, unit_name)`` builds each constant; the default keeps the
+        magnitude (the plan), ``routeplan.units.Q`` gives pint Quantities (the proof).
+
+    Returns
+    -------
+    CoreRoute
+        Cached on the route for the default ``quantity``.
+    """
+    from routeplan.units import magnitude
+
+    cache = None
+    if quantity is _plain:
+        cache = route.__dict__.setdefault("_core_cache", {})
+        if yields in cache:
+            return cache[yields]
+    forms: dict[str, Form] = {}
+
+    def form(key: str) -> Form:
+        if key not in forms:
+            forms[key] = material_form(route.materials[key], quantity)
+        return forms[key]
+
+    steps = []
+    for sid in step_order(route):
+        step = route.step(sid)
+        chosen = getattr(step.yield_, str(yields))
+        y = step.yield_.expected if chosen is None else chosen
+        if not y > 0:
+            raise PlanError(f"step {step.id} has a yield of {y:g}; it must be above 0", step=step.id)
+        charges = []
+        for c in step.charges:
+            if c.basis == "volumes":
+                factor = quantity(c.value, "L/kg")
+            elif c.basis == "mass_ratio":
+                factor = quantity(c.value, "kg/kg")
+            else:
+                factor = quantity(c.equiv, "")
+            charges.append(CoreCharge(c.material, str(c.basis), factor, form(c.material),
+                                      route.is_intermediate(c.material)))
+        eq = step.equation
+        steps.append(CoreStep(
+            id=sid, product=step.product, limiting=step.limiting,
+            nu_ratio=eq.coefficient(step.product) / eq.coefficient(step.limiting),
+            yield_=quantity(y, ""), product_form=form(step.product), limiting_form=form(step.limiting),
+            charges=tuple(charges)))
+    tgt = route.materials[route.target.material]
+    if tgt.molar_mass is None:  # the loader forbids this; kept as a guard
+        raise PlanError(f"target '{tgt.key}' has no molar mass")
+    M = quantity(magnitude(tgt.molar_mass, "kg/mol"), "kg/mol")
+    core = CoreRoute(tuple(steps), tgt.key, form(tgt.key), M / tgt.assay, route.target.overage)
+    if cache is not None:
+        cache[yields] = core
+    return core
+
+
+# ------------------------------------------------------------------ the expressions
+
+
+def target_amount(amount_kg: Number, overage: float, kg_per_mol_pure: Number) -> Number:
+    """Moles of pure target to make [mol]: ``amount * (1 + overage) * assay / M``.
+
+    ``amount_kg`` [kg] as isolated, ``overage`` [-], ``kg_per_mol_pure = M / assay``
+    [kg/mol].
+
+    Examples
+    --------
+    >>> round(target_amount(18.015, 0.0, 0.018015), 9)  # 18.015 kg of water
+    1000.0
+    """
+    return amount_kg * (1 + overage) / kg_per_mol_pure
+
+
+def limiting_amount(n_product_mol: Number, yield_: Number, nu_ratio: float) -> Number:
+    """Moles of limiting reagent [mol]: ``n_lim = n_p / (yield * nu_p / nu_lim)``.
+
+    Examples
+    --------
+    >>> limiting_amount(90.0, 0.9, 1.0)
+    100.0
+    """
+    return n_product_mol / (yield_ * nu_ratio)
+
+
+def charge_amounts(c: CoreCharge, n_lim_mol: Number, m_lim_kg: Number):
+    """Moles [mol], mass as charged [kg] and volume [L] of one charge line.
+
+    Molar bases: ``n = equiv * n_lim``, ``m = n * kg_per_mol``; ``volumes``:
+    ``V = volumes * m_lim``, ``m = V / L_per_kg``; ``mass_ratio``: ``m = ratio * m_lim``.
+    Any material with a density also gets ``V = m * L_per_kg``, any with a molar mass
+    ``n = m / kg_per_mol``.
+    """
+    f = c.form
+    if c.basis == "volumes":
+        if f.L_per_kg is None:  # the loader forbids this; kept as a guard
+            raise PlanError(f"material '{c.material}' is charged by volume but has no density")
+        V = c.factor * m_lim_kg  # [L/kg] * [kg] = [L]
+        m = V / f.L_per_kg  # [L] / [L/kg] = [kg]
+        n = None if f.kg_per_mol is None else m / f.kg_per_mol
+        return n, m, V
+    if c.basis == "mass_ratio":
+        m = c.factor * m_lim_kg  # [kg/kg] * [kg]
+        n = None if f.kg_per_mol is None else m / f.kg_per_mol  # [kg] / [kg/mol]
+    else:
+        n = c.factor * n_lim_mol  # [-] * [mol]
+        m = n * f.kg_per_mol  # [mol] * [kg/mol]
+    V = None if f.L_per_kg is None else m * f.L_per_kg  # [kg] * [L/kg]
+    return n, m, V
+
+
+def _smaller(a: Number, b: Number) -> Number:
+    """The smaller of ``a`` and ``b``, element by element for arrays."""
+    if hasattr(a, "shape") and getattr(a, "shape", ()) != () and not hasattr(a, "units"):
+        import numpy as np
+
+        return np.minimum(a, b)
+    return a if a <= b else b
+
+
+@dataclass(frozen=True)
+class WalkStep:
+    """One step after the walk: demand, limiting reagent and every charge as numbers.
+
+    ``n_product`` [mol] is what the step makes (the demand less what the stock gives),
+    ``n_taken`` [mol] what the stock gives (None when the stock does not name the
+    product), ``n_lim`` [mol] and ``m_lim`` [kg] the limiting reagent, ``charges`` one
+    ``(n [mol] or None, m [kg], V [L] or None)`` per charge line, in order.
+    """
+
+    step: CoreStep
+    n_product: Number
+    n_taken: Number | None
+    n_lim: Number
+    m_lim: Number
+    charges: tuple
+
+
+def walk(core: CoreRoute, n_target_mol: Number, shelf_mol: Mapping[str, Number] | None = None) -> dict[str, WalkStep]:
+    """The backward walk: every step for the demand on its product.
+
+    In reverse execution order a step whose product is demanded at ``n_p`` [mol] takes
+    ``min(n_p, on shelf)`` from the shelf (``shelf_mol``: intermediate -> moles on hand
+    [mol]) and makes the rest, needing ``n_lim = n_p / (yield * nu_p / nu_lim)``; each
+    intermediate it charges adds its moles to the demand on the step that makes it.  A
+    step not leading to the target has no demand (0 mol).  No recursion: one pass.
+
+    Returns
+    -------
+    dict
+        Step id -> :class:`WalkStep`, in execution order.
+    """
+    zero = n_target_mol * 0
+    demand: dict[str, Number] = {core.target: n_target_mol}
+    out: dict[str, WalkStep] = {}
+    for s in reversed(core.steps):
+        n_p = demand.get(s.product, zero)
+        taken = None
+        if shelf_mol is not None and s.product in shelf_mol:
+            taken = _smaller(shelf_mol[s.product], n_p)
+            n_p = n_p - taken
+        n_lim = limiting_amount(n_p, s.yield_, s.nu_ratio)
+        m_lim = n_lim * s.limiting_form.kg_per_mol  # [mol] * [kg/mol] = [kg]
+        lines = tuple(charge_amounts(c, n_lim, m_lim) for c in s.charges)
+        for c, (n, _m, _V) in zip(s.charges, lines):
+            if c.intermediate and n is not None:
+                demand[c.material] = demand.get(c.material, zero) + n
+        out[s.id] = WalkStep(s, n_p, taken, n_lim, m_lim, lines)
+    return {s.id: out[s.id] for s in core.steps}
