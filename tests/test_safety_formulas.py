@@ -95,3 +95,12 @@ def test_every_class_is_reached_and_none_without_both_temperatures():
 def test_severity_bounds(dT, expected):
     # ROUTE-FORMAT.md (Stoessel 2008): low below 50 K, medium from 50 K to below 200 K, high from 200 K
     assert severity(dT) == expected
+
+
+def test_the_heat_formulas_are_dimensionally_sound_with_pint():
+    # the same expressions on pint Quantities (the registry's own unit algebra) give kelvin
+    dT = delta_T_ad_K(Q(-132.0, "kJ/mol"), Q(10.0, "mol"), Q(6.6, "kg"), Q(2.0, "kJ/(kg*K)"))
+    assert dT.to("K").magnitude == pytest.approx(100.0)
+    assert mtsr_K(Q(298.15, "K"), dT.to("K"), 0.4).to("K").magnitude == pytest.approx(338.15)
+    V = Q(1.0, "mol") * Q(R_J_PER_MOL_K, "J/(mol*K)") * Q(273.15, "K") / Q(101325.0, "Pa")
+    assert V.to("L").magnitude == pytest.approx(ideal_gas_volume_L(1.0, 273.15, 101325.0), rel=1e-12)

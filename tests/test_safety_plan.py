@@ -193,3 +193,10 @@ def test_gas_taken_up_is_counted_at_normal_conditions():
     # the reaction mass holds the hydrogen and the catalyst (ROUTE-FORMAT.md readings)
     masses = sum(c.mass.m_as("kg") for c in sp.charges)
     assert sp.batch.reaction_mass.m_as("kg") == pytest.approx(masses)
+
+
+@pytest.mark.parametrize("hazards, vent", [("[toxic, corrosive]", ("toxic",)), ("[asphyxiant]", ()),
+                                           ("[non-toxic]", ()), ("[highly flammable, toxic]", ("flammable", "toxic"))])
+def test_vent_notes_come_from_the_gas_hazards(hazards, vent):
+    text = ROUTE.replace("    hazards: [asphyxiant]", f"    hazards: {hazards}")
+    assert plan_of(text).step("G1").safety.gas_evolved[0].vent == vent
