@@ -27,6 +27,7 @@ assessment by qualified people.  The warnings say so in their own words.
 
 from __future__ import annotations
 
+import functools
 import re
 from dataclasses import dataclass
 from typing import TYPE_CHECKING
@@ -313,10 +314,19 @@ def _vent(hazards) -> tuple[str, ...]:
     return tuple(found)
 
 
+@functools.lru_cache(maxsize=16)
+def _gas_keys(route: "Route") -> frozenset[str]:
+    """Keys of the route's materials that say ``phase: gas`` (a Route hashes by identity)."""
+    return frozenset(k for k, m in route.materials.items() if m.phase == "gas")
+
+
 def _gases(route: "Route", step: "Step", side: str):
     """(key, coefficient) of the gases on ``side`` (reactants or products), in equation order."""
+    gas = _gas_keys(route)
+    if not gas:
+        return []
     terms = step.equation.products if side == "products" else step.equation.reactants
-    return [(t.key, t.coefficient) for t in terms if route.materials[t.key].phase == "gas"]
+    return [(t.key, t.coefficient) for t in terms if t.key in gas]
 
 
 def evolved_gas_mass_kg(route: "Route", step_id: str, n_lim_mol: float) -> float:
@@ -346,14 +356,16 @@ def _conditions(step: "Step") -> tuple[float, float]:
     return float(T_K), float(p_Pa)
 
 
-def step_safety(route: "Route", sp: "StepPlan") -> StepSafety:
+def step_safety(route: "Route", sp: "StepPlan", nominal_L: "dict[str, float] | None" = None) -> StepSafety:
     """Heat and gas of one batch of step ``sp`` (its batches sized).
 
     Parameters
     ----------
     route : Route
     sp : StepPlan
-        With ``batch`` set (:func:`routeplan.plan.campaign.size_batches`).
+        With ``batch`` set.
+    nominal_L : dict, optional
+        Vessel key -> nominal volume [L], converted once for all steps.
 
     Returns
     -------
@@ -384,9 +396,9 @@ def step_safety(route: "Route", sp: "StepPlan") -> StepSafety:
                                 vent=_vent(route.materials[key].hazards)))
 
     free_L = None
-    vessel = route.equipment.get(b.vessel) if b.vessel else None
-    if vessel is not None:
-        free_L = float(vessel.volume.m_as(unit("L"))) - b.batch_V_L
+    if b.vessel in route.equipment:
+        nominal = nominal_L[b.vessel] if nominal_L else float(route.equipment[b.vessel].volume.m_as(unit("L")))
+        free_L = nominal - b.batch_V_L
 
     thermal = None
     t = step.thermal
@@ -458,8 +470,9 @@ def assess_safety(route: "Route", steps: "tuple[StepPlan, ...]"):
     from dataclasses import replace
 
     out, warnings = [], []
+    nominal_L = {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
     for sp in steps:
-        s = step_safety(route, sp)
+        s = step_safety(route, sp, nominal_L)
         if s.runs:
             warnings.extend(_warnings(route, sp, s))
         out.append(replace(sp, safety=s))
