@@ -41,6 +41,7 @@ __all__ = [
     "RouteError",
     "PlanError",
     "StockError",
+    "RecordError",
     "OutputError",
     "CompareError",
 ]
@@ -325,6 +326,10 @@ class StockError(RouteplanError, ValueError):
     def __init__(self, message: str, *, material: str | None = None, **kw) -> None:
         self.material = material
         super().__init__(message, **kw)
+
+
+class RecordError(RouteplanError, ValueError):
+    """A campaign record (``--record FILE``) that cannot be read or does not fit the route."""
 
 
 class OutputError(RouteplanError, OSError):

@@ -32,6 +32,7 @@ __all__ = [
     "Role",
     "Severity",
     "YieldCase",
+    "RecordYields",
     "BetterIs",
 ]
 
@@ -81,6 +82,14 @@ class YieldCase(enum.StrEnum):
     EXPECTED = "expected"
     LOW = "low"
     HIGH = "high"
+
+
+class RecordYields(enum.StrEnum):
+    """Which yield the remaining batches of a step with recorded lots are planned at
+    (``--record-yields``): the route's, or the mean its lots actually gave."""
+
+    EXPECTED = "expected"
+    ACTUAL = "actual"
 
 
 class BetterIs(enum.StrEnum):

@@ -36,6 +36,8 @@ SAMPLES: dict[type, E.RouteplanError] = {
     E.PlanError: E.PlanError("step S2 has a zero yield", location=HERE, step="S2", hint="give a yield above 0"),
     E.StockError: E.StockError("'toluene' is listed twice", material="toluene",
                                location=E.Location("stock.csv", 5, None, "A5"), hint="give one row per material"),
+    E.RecordError: E.RecordError("batch 1 of step S1 is recorded twice", location=E.Location("rec.yaml", 3, 5,
+                                 "lots[2].batch"), step="S1", hint="one entry per isolated batch"),
     E.OutputError: E.OutputError("cannot write 'out/plan.json': Permission denied", path="out/plan.json",
                                  errno=errno.EACCES, strerror="Permission denied", hint="choose another folder"),
     E.CompareError: E.CompareError("compare needs at least two routes, got 1", location=HERE,

@@ -31,11 +31,19 @@ from routeplan.vocab import YieldCase
 @click.option("--draws", "draws", type=int, metavar="N",
               help="Number of yield draws with --confidence (default 100000).")
 @click.option("--seed", "seed", type=int, metavar="S", help="Seed of the yield draws with --confidence (default 1).")
+@click.option("--record", "record_file", metavar="FILE",
+              help="Campaign record (YAML, CSV or xlsx: step, batch, charged, isolated, assay): the lots made so "
+                   "far; plan the rest of the campaign with what is in hand used first, and project the target.")
+@click.option("--record-yields", "record_yields", type=click.Choice(["expected", "actual"]), default="expected",
+              show_default=True,
+              help="With --record: plan the remaining batches of a step that has lots at the route's yield "
+                   "('expected') or at the assay-corrected mean yield its recorded lots gave ('actual').")
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
              csv_dir: str | None, stock_file: str | None, yields: str, confidence: str | None, draws: int | None,
-             seed: int | None, strict: bool, quiet: bool) -> None:
+             seed: int | None, record_file: str | None, record_yields: str, strict: bool,
+             quiet: bool) -> None:
     """Plan every charge of every step of ROUTE for the target mass.
 
     Prints one table per step in execution order (mol, kg, L), the raw materials to
@@ -48,13 +56,15 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     from routeplan.units import parse_quantity
 
     check_output_paths(json_out=json_out, xlsx_out=xlsx_out, csv_dir=csv_dir)
+    if record_yields != "expected" and record_file is None:
+        raise click.UsageError("--record-yields applies to a campaign record; give --record FILE too")
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
     level = confidence_option(confidence, draws, seed)
     r = load_route(route)
     plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), confidence=level, draws=draws,
-                      seed=seed)
+                      seed=seed, record=record_file, record_yields=record_yields)
     if strict and plan.warnings:
         echo_warnings(plan.warnings, strict=True)
         n = len(plan.warnings)

@@ -26,6 +26,10 @@ Files written into ``DIR`` (made if missing), each atomically:
     need, the mass on hand (empty when not in stock) and the mass to buy [kg], and
     whether it is in stock.  ``summary.csv`` then also says the largest target the
     stock allows and the material that limits it.
+``record-lots.csv``, ``record-in-hand.csv``
+    only with a campaign record (``plan.record``): one line per lot (charged, isolated,
+    assay, actual and expected yield, flag) and per intermediate in hand (made,
+    consumed, in hand [mol] and [kg]); the other files are then the rest of the campaign.
 
 Every file ends with one row whose first field is ``CAUTION: `` and the caution
 (:data:`routeplan.CAUTION`), its other fields empty: the files are read by people too.
@@ -191,4 +195,9 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
     paths.append(write_table(out_dir / "safety.csv", SAFETY_COLUMNS, safety_rows(plan)))
     if plan.stock is not None:
         paths.append(write_table(out_dir / "stock.csv", STOCK_COLUMNS, stock_rows(plan)))
+    if plan.record is not None:
+        from routeplan.views.record_text import IN_HAND_COLUMNS, LOT_COLUMNS, in_hand_rows, lot_rows
+
+        paths.append(write_table(out_dir / "record-lots.csv", LOT_COLUMNS, lot_rows(plan)))
+        paths.append(write_table(out_dir / "record-in-hand.csv", IN_HAND_COLUMNS, in_hand_rows(plan)))
     return paths

@@ -146,9 +146,37 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
             ],
             "file": s.source,
         }
+    if plan.record is not None:
+        out["record"] = _record(plan.record)
     if plan.uncertainty is not None:
         out["uncertainty"] = uncertainty_to_dict(plan.uncertainty)
     return out
+
+
+def _record(rec) -> dict[str, Any]:
+    """The ``record`` block: the contract's keys first, then additions."""
+    return {
+        "lots": [{"step": r.step, "batch": r.batch, "mass_kg": r.mass_kg, "mol": r.mol, "yield": r.yield_,
+                  "expected_yield": r.expected_yield, "lot": r.lot, "charged_kg": r.charged_kg,
+                  "limiting_mol": r.limiting_mol, "assay": r.assay, "low_yield": r.low, "flagged": r.flagged}
+                 for r in rec.lots],
+        "in_hand": [{"material": h.material, "mass_kg": h.mass_kg, "mol": h.mol, "step": h.step,
+                     "made_mol": h.made_mol, "consumed_mol": h.consumed_mol, "lot_assay": h.lot_assay,
+                     "lots": list(h.lots)}
+                    for h in rec.in_hand],
+        "projected_target_kg": rec.projected_target_kg,
+        "required_target_kg": rec.required_target_kg,
+        "gap_kg": rec.gap_kg,
+        "delivered_kg": rec.delivered_kg,
+        "closes": [{"step": sid, "batches": b} for sid, b in rec.closes],
+        "remaining": [{"step": sid, "batches": b} for sid, b in rec.remaining],
+        "done": list(rec.done),
+        "not_counted": list(rec.not_counted),
+        "record_yields": rec.record_yields,
+        "actual_yields": dict(rec.actual_yields),
+        "projection_yield_basis": rec.yield_basis,
+        "file": rec.source,
+    }
 
 
 def uncertainty_to_dict(u) -> dict[str, Any]:

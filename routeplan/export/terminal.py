@@ -189,6 +189,11 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
 
         for line in stock_lines(plan):
             con.print(escape(line))
+    if plan.record is not None:
+        from routeplan.views.record_text import record_lines
+
+        for line in record_lines(plan):
+            con.print(escape(line))
     if plan.uncertainty is not None:
         from routeplan.views.uncertainty_text import uncertainty_lines
 

@@ -30,7 +30,10 @@ reagent in the same sheet):
   carried in [L], the mass cell the plan's content of the compound in it [kg]; both are
   plain numbers, nothing is weighed and the lot assay is recorded only.
 
-Every formula is stored with the plan's number as its computed value.
+Every formula is stored with the plan's number as its computed value.  With a campaign
+record, an intermediate in hand has its lot cell and lot-assay cell filled in (the row's
+``prefill``, :func:`routeplan.views.record_text.lot_prefill`), and its mass is stored at
+that assay.
 """
 
 from __future__ import annotations
@@ -211,10 +214,11 @@ def write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int |
         else:
             ws.write_formula(r, COL["volume_L"], vol_f, vol_fmt, row["volume_L"])
 
-    put(ws, r, COL["lot"], None, st.fill_text)
+    prefill = row.get("prefill")
+    put(ws, r, COL["lot"], None if prefill is None else prefill["lot"], st.fill_text)
     lot_col = COL["lot_assay"]
     if row["rule"] == "molar" and mass_f is not None:
-        put(ws, r, lot_col, None, st.fill_percent)
+        put(ws, r, lot_col, None if prefill is None else prefill["assay"], st.fill_percent)
         ws.data_validation(r, lot_col, r, lot_col, {
             "validate": "decimal", "criteria": "between", "minimum": 0.0001, "maximum": 1,
             "input_title": "Lot assay",

@@ -152,7 +152,10 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int | No
     pair(3, _RIGHT, "written", context["written"])
     pair(4, _WIDE, "equation", sp.equation)
     pair(5, _WIDE, "vessel", _vessel_text(plan, sp, k))
-    pair(6, _LEFT, "yield (expected) [%]", sp.yield_, st.value_percent)
+    rec = getattr(plan, "record", None)
+    from_lots = rec is not None and rec.record_yields == "actual" and sp.id in rec.actual_yields
+    pair(6, _LEFT, "yield (mean of the recorded lots) [%]" if from_lots else "yield (expected) [%]", sp.yield_,
+         st.value_percent)
     batch_volume = None if sp.batch is None else float(sp.batch.batch_volume.m_as("L"))
     pair(6, _RIGHT, "volume per batch [L]", batch_volume, st.quantity(batch_volume, plain=True))
     lim_mol = float(sp.limiting_mol.m_as("mol")) / n

@@ -316,11 +316,7 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
 
     out["stock"] = -1
     if plan.stock is not None:
-        r += 2
-        put(ws, r, 0, "Stock on hand, for the requested target", st.subtitle)
-        for row in stock_summary_rows(plan):
-            r += 1
-            sh.fact(r, row)
+        r = _facts_block(sh, r + 2, "Stock on hand, for the requested target", stock_summary_rows(plan))
         r += 1
         out["stock"] = r
         r = _stock_table(sh, r, stocks)
@@ -336,6 +332,11 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
         ws.write_string(r, 1, row["text"], st.note)
         sh.fit_row(r, {1: row["text"]}, {1: last})
 
+    out["record"] = -1
+    if plan.record is not None:
+        r = _record_block(sh, r, plan)
+        out["record"] = r
+
     # warnings
     r += 2
     put(ws, r, 0, "Warnings" if plan.warnings else "Warnings: none", st.subtitle)
@@ -349,6 +350,36 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
     ws.freeze_panes(2, 0)
     _page_setup(ws, (0, 1), context)
     return out
+
+
+def _facts_block(sh: _Sheet, r: int, title: str, rows: list[dict[str, Any]]) -> int:
+    """A subtitle on row ``r`` and one fact per line under it; return the last row."""
+    put(sh.ws, r, 0, title, sh.st.subtitle)
+    for row in rows:
+        r += 1
+        sh.fact(r, row)
+    return r
+
+
+def _record_block(sh: _Sheet, r: int, plan: "Plan") -> int:
+    """The campaign record: its facts, then one line per lot; return the last row."""
+    from routeplan.views.record_text import SUMMARY_LOT_COLUMNS, lot_rows, record_summary_rows
+
+    ws, st = sh.ws, sh.st
+    r = _facts_block(sh, r + 2, "Campaign record: the lots made so far; the charge sheets are the rest of the campaign",
+                     record_summary_rows(plan))
+    r += 2
+    sh.headings(r, [sheet_title(c) for c in SUMMARY_LOT_COLUMNS])
+    for row in lot_rows(plan):
+        r += 1
+        for i, col in enumerate(SUMMARY_LOT_COLUMNS):
+            v = row[col.key]
+            if col.key == "flagged":
+                v = "yes" if v else ""
+            fmt = (st.percent if col.key in ("assay", "yield", "expected_yield") else st.integer if col.key == "batch"
+                   else st.quantity(v) if isinstance(v, float) else st.cell_text)
+            put(ws, r, i, v, fmt)
+    return r
 
 
 def _stock_table(sh: _Sheet, r: int, rows: list[dict[str, Any]]) -> int:

@@ -12,14 +12,13 @@ What the stock allows and what to buy is computed in :mod:`routeplan.plan.stock`
 
 from __future__ import annotations
 
-import csv
 import difflib
-import io
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, Mapping
 
 from routeplan.units import unit
 from routeplan.errors import Location, QuantityError, StockError
+from routeplan.inputs.files import TABLE_SUFFIXES, YAML_SUFFIXES, read_bytes, table_rows, yaml_document
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -88,19 +87,7 @@ def _check_intermediate(route: "Route", key: str, where: Location | None) -> Non
 
 
 def _read_yaml(route, path: Path, data: bytes) -> dict[str, Any]:
-    from ruamel.yaml import YAML
-    from ruamel.yaml.error import YAMLError
-
-    yaml = YAML(typ="rt", pure=True)
-    yaml.allow_duplicate_keys = False
-    try:
-        doc = yaml.load(data.decode("utf-8"))
-    except UnicodeDecodeError:
-        raise StockError("the stock file is not UTF-8 text", location=Location(str(path))) from None
-    except YAMLError as exc:
-        mark = getattr(exc, "problem_mark", None)
-        loc = Location(str(path), mark.line + 1, mark.column + 1) if mark else Location(str(path))
-        raise StockError(f"not valid YAML: {getattr(exc, 'problem', exc)}", location=loc) from None
+    doc = yaml_document(path, data, StockError, "stock file")
     if not isinstance(doc, dict) or not doc:
         raise StockError("a YAML stock list is a mapping of material to amount, e.g. 'toluene: 200 kg'",
                          location=Location(str(path)))
@@ -174,33 +161,13 @@ def read_stock(route: "Route", path: str | Path) -> dict[str, "pint.Quantity"]:
         material listed twice.
     """
     path = Path(path)
-    try:
-        data = path.read_bytes()
-    except OSError as exc:
-        raise StockError(f"cannot read the stock file: {exc.strerror}", location=Location(str(path))) from None
+    data = read_bytes(path, StockError, "stock file")
     suffix = path.suffix.lower()
-    if suffix in (".yaml", ".yml"):
+    if suffix in YAML_SUFFIXES:
         return _read_yaml(route, path, data)
-    if suffix == ".csv":
-        try:
-            text = data.decode("utf-8-sig")
-        except UnicodeDecodeError:
-            raise StockError("the stock file is not UTF-8 text", location=Location(str(path))) from None
-        rows = list(csv.reader(io.StringIO(text)))
-        return _table(route, path, rows, lambda r, c: f"row {r}")
-    if suffix in (".xlsx", ".xlsm"):
-        import openpyxl
-        from openpyxl.utils import get_column_letter
-
-        try:
-            wb = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=True)
-        except Exception as exc:  # openpyxl raises several kinds for a bad file
-            raise StockError(f"not a readable xlsx workbook ({type(exc).__name__})",
-                             location=Location(str(path))) from None
-        ws = wb.worksheets[0]
-        rows = [list(r) for r in ws.iter_rows(values_only=True)]
-        wb.close()
-        return _table(route, path, rows, lambda r, c: f"{ws.title}!{get_column_letter(c + 1)}{r}")
+    if suffix in TABLE_SUFFIXES:
+        rows, cell = table_rows(path, data, StockError, "stock file")
+        return _table(route, path, rows, cell)
     raise StockError(f"unknown stock file type '{path.suffix}'", location=Location(str(path)),
                      hint="use .yaml, .csv or .xlsx")
 

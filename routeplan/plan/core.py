@@ -276,13 +276,20 @@ def charge_amounts(c: CoreCharge, n_lim_mol: Number, m_lim_kg: Number):
     return n, m, V
 
 
-def _smaller(a: Number, b: Number) -> Number:
-    """The smaller of ``a`` and ``b``, element by element for arrays."""
-    if hasattr(a, "shape") and getattr(a, "shape", ()) != () and not hasattr(a, "units"):
+#: Relative shortfall of a shelf that still counts as covering the demand [-]: rounding
+#: of masses and assays (a record of lots exactly as planned), not chemistry.
+SHELF_REL = 1e-9
+
+
+def _taken(on_shelf: Number, n_p: Number) -> Number:
+    """Moles taken from the shelf [mol]: ``min(on shelf, n_p)``, and all of ``n_p`` when
+    the shelf falls short of it by less than :data:`SHELF_REL` (no batch of crumbs)."""
+    if hasattr(on_shelf, "shape") and getattr(on_shelf, "shape", ()) != () and not hasattr(on_shelf, "units") \
+            or hasattr(n_p, "shape") and getattr(n_p, "shape", ()) != () and not hasattr(n_p, "units"):
         import numpy as np
 
-        return np.minimum(a, b)
-    return a if a <= b else b
+        return np.where(on_shelf >= n_p * (1 - SHELF_REL), n_p, np.minimum(on_shelf, n_p))
+    return n_p if on_shelf >= n_p * (1 - SHELF_REL) else on_shelf
 
 
 @dataclass(frozen=True)
@@ -324,7 +331,7 @@ def walk(core: CoreRoute, n_target_mol: Number, shelf_mol: Mapping[str, Number] 
         n_p = demand.get(s.product, zero)
         taken = None
         if shelf_mol is not None and s.product in shelf_mol:
-            taken = _smaller(shelf_mol[s.product], n_p)
+            taken = _taken(shelf_mol[s.product], n_p)
             n_p = n_p - taken
         n_lim = limiting_amount(n_p, s.yield_, s.nu_ratio)
         m_lim = n_lim * s.limiting_form.kg_per_mol  # [mol] * [kg/mol] = [kg]

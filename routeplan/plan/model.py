@@ -488,6 +488,10 @@ class Plan:
     uncertainty : Uncertainty or None
         Yield draws around the plan (:mod:`routeplan.plan.uncertainty`), when a
         confidence was asked for.
+    record : RecordPlan or None
+        With a campaign record: lots and their actual yields, what is in hand, the
+        projected target and what closes the gap (:class:`routeplan.plan.record.RecordPlan`);
+        the steps are then the rest of the campaign.
     """
 
     route: "Route"
@@ -502,6 +506,7 @@ class Plan:
     stock: StockPlan | None = None
     yield_basis: str = "expected"
     uncertainty: "Uncertainty | None" = None
+    record: Any = None
 
     @property
     def target_mass(self) -> "pint.Quantity":

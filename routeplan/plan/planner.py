@@ -76,7 +76,7 @@ def _amount_kg(route: "Route", target) -> float:
 
 def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None,
                yields: str = "expected", confidence: float | None = None, draws: int | None = None,
-               seed: int | None = None) -> "Plan":
+               seed: int | None = None, record=None, record_yields: str = "expected") -> "Plan":
     """Plan a campaign: every charge of every step for a target mass.
 
     Parameters
@@ -105,6 +105,15 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         Number of draws (default 100 000).
     seed : int, optional
         Seed of the draws (default 1).
+    record : str or Path or Record, optional
+        A campaign record (YAML, CSV or xlsx; :mod:`routeplan.inputs.record`): the lots
+        made so far.  The plan is then the rest of the campaign, what is in hand used
+        first (like an intermediate in stock, and added to one), and ``Plan.record``
+        holds the lots' actual yields, what is in hand and the projected target
+        (:mod:`routeplan.plan.record`).
+    record_yields : {"expected", "actual"}
+        With a record, the yield at which the remaining batches of a step with lots are
+        planned: the route's, or the assay-corrected mean of its recorded lots.
 
     Returns
     -------
@@ -145,7 +154,9 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         shelf = intermediate_stock(route, on_hand)
         shelf_kg = {k: float(v.m_as(unit("kg"))) for k, v in shelf.items()} or None
 
-    walked = walk_route(route, amount_kg, yields=yields, shelf_kg=shelf_kg)
+    account, shelf_kg, yield_of = _record_inputs(route, record, shelf_kg, yields, record_yields)
+    shelf_name = "the stock" if account is None else "what is in hand" if stock is None else "the stock and what is in hand"
+    walked = walk_route(route, amount_kg, yields=yields, shelf_kg=shelf_kg, yield_of=yield_of, shelf_name=shelf_name)
     sized, batch_warnings = size_steps(route, walked)
     steps = step_plans(route, walked, sized)
     steps, safety_warnings = assess_safety(route, steps)
@@ -153,7 +164,8 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
                   target_kg=amount_kg * (1 + route.target.overage), target_n_mol=walked.n_target_mol,
                   steps=steps, raw_materials=raw_material_totals(route, steps),
                   overall_yield=overall_yield(route, steps, walked.n_target_mol), yield_basis=yields)
-    warnings: list[Problem] = [*route.warnings, *batch_warnings, *safety_warnings]
+    warnings: list[Problem] = [*route.warnings, *batch_warnings, *safety_warnings,
+                               *(() if account is None else account.warnings)]
     stock_plan = None
     if stock is not None:
         from routeplan.plan.stock import stock_plan as compare_stock
@@ -164,9 +176,31 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         from routeplan.plan.uncertainty import yield_uncertainty
 
         uncertainty = yield_uncertainty(draft, confidence=confidence, draws=draws, seed=seed)
+    record_plan = None
+    if account is not None:
+        from routeplan.plan.record import record_plan as plan_record
+
+        record_plan = plan_record(draft, account, amount_kg=amount_kg, stock=stock_plan)
     return Plan(
         route=route, target_material=draft.target_material, target_kg=draft.target_kg,
         target_n_mol=draft.target_n_mol, steps=steps, raw_materials=draft.raw_materials,
         overall_yield=draft.overall_yield, metrics=compute_metrics(draft),
         warnings=tuple(warnings), stock=stock_plan, yield_basis=yields, uncertainty=uncertainty,
+        record=record_plan,
     )
+
+
+def _record_inputs(route: "Route", record, shelf_kg, yields: str, record_yields: str):
+    """A campaign record worked out (or None), the shelf the walk takes first (stock
+    intermediates plus what the record has in hand, and the target delivered [kg]) and
+    the yields of the steps with lots (None at the route's)."""
+    if record is None:
+        return None, shelf_kg, None
+    from routeplan.inputs.record import load_record
+    from routeplan.plan.record import account_record
+
+    account = account_record(route, load_record(route, record), yields=yields, record_yields=record_yields)
+    shelf = dict(shelf_kg or {})
+    for key, kg in account.shelf_kg(route.target.material).items():
+        shelf[key] = shelf.get(key, 0.0) + kg
+    return account, (shelf or None), account.yields_for_walk()

@@ -65,7 +65,8 @@ def shelf_moles(route: "Route", core: CoreRoute, shelf_kg: Mapping[str, float]) 
 
 
 def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
-               shelf_kg: Mapping[str, float] | None = None) -> Walked:
+               shelf_kg: Mapping[str, float] | None = None,
+               yield_of: Mapping[str, float] | None = None, shelf_name: str = "the stock") -> Walked:
     """Walk ``route`` backward for ``amount_kg`` [kg] of target as isolated, before overage.
 
     Parameters
@@ -80,6 +81,12 @@ def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
         Intermediates on the shelf: key -> mass as isolated, at its assay [kg].  A step
         whose demand the shelf covers does not run, and so does a step that feeds only
         steps that do not run.
+    yield_of : Mapping[str, float], optional
+        Step id -> yield [-] to plan that step at instead of its ``yields`` yield (the
+        actual yield of a campaign record's lots, :mod:`routeplan.plan.record`).
+    shelf_name : str
+        What the shelf is, in the reason a covered step does not run (``"the stock"``;
+        ``"what is in hand"`` for a campaign record's lots).
 
     Raises
     ------
@@ -87,6 +94,11 @@ def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
         A charge whose numbers overflow (located at the step).
     """
     core = compile_route(route, yields)
+    if yield_of:
+        from dataclasses import replace
+
+        core = replace(core, steps=tuple(replace(s, yield_=yield_of[s.id]) if s.id in yield_of else s
+                                         for s in core.steps))
     n_target = target_amount(amount_kg, core.overage, core.target_kg_per_mol_pure)
     shelf = None if shelf_kg is None else shelf_moles(route, core, shelf_kg)
     steps = walk(core, n_target, shelf)
@@ -96,7 +108,7 @@ def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
             w = steps[s.id]
             demanded = w.n_product + (w.n_taken or 0.0)
             if w.n_taken is not None and demanded > 0 and w.n_product == 0:
-                not_run[s.id] = f"the stock of {s.product} covers it"
+                not_run[s.id] = f"{shelf_name} of {s.product} covers it"
             elif demanded == 0:
                 users = [u for u in route.consumers.get(s.product, ()) if u in steps]
                 if users and all(u in not_run for u in users):

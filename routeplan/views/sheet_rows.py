@@ -196,7 +196,28 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
             "in_solution": c.carried_from is not None,
             "intermediate": c.intermediate,
         })
+        _prefill(plan, rows[-1])
     return rows
+
+
+def _prefill(plan: "Plan", row: dict[str, Any]) -> None:
+    """With a campaign record: the lot in hand of an intermediate, filled in (``prefill``:
+    the lot text and the lots' assay [-]), and, for a charge whose mass follows from the
+    lot assay, ``mass_kg`` and ``volume_L`` at that assay (what the sheet's own formula
+    gives with the lot assay typed in: ``m = n * M / 1000 / lot assay``)."""
+    from routeplan.views.record_text import lot_prefill
+
+    row["prefill"] = None
+    if not row["intermediate"] or row["rule"] != "molar" or plan.record is None:
+        return
+    fill = lot_prefill(plan, row["material"])
+    if fill is None:
+        return
+    row["prefill"] = fill
+    if fill["assay"] is not None and row["mol"] is not None and row["molar_mass"] is not None:
+        row["mass_kg"] = row["mol"] * row["molar_mass"] / 1000 / fill["assay"]
+        if row["density"] is not None and row["volume_L"] is not None:
+            row["volume_L"] = row["mass_kg"] / row["density"]
 
 
 def material_columns(plan: "Plan") -> tuple[Column, ...]:
