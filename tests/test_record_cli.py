@@ -131,3 +131,8 @@ def test_a_lot_at_100_percent_passes_and_above_fails_even_with_high_100(tmp_path
     bad = record(tmp_path, "lots:\n  - {step: S1, batch: 1, charged: 20 kg, isolated: 31.8 kg}\n")
     res = run_cli("plan", camp, "--record", bad, "-q")
     assert res.exit_code == 2 and "actual yield 100.7% is above 100 %" in res.stderr
+
+
+def test_confidence_with_a_record_is_refused(camp, tmp_path):
+    res = run_cli("plan", camp, "--record", record(tmp_path, RECORD_YAML), "--confidence", "90 %")
+    assert res.exit_code == 2 and "--confidence" in res.stderr and "Traceback" not in res.output

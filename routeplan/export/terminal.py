@@ -20,7 +20,7 @@ from routeplan.views.tables import column_unit, raw_material_rows, step_charge_r
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
 
-__all__ = ["print_plan", "fmt", "make_console"]
+__all__ = ["print_plan", "fmt", "make_console", "PlainTable", "Printer"]
 
 
 class _Console(Console):
@@ -40,6 +40,66 @@ def make_console() -> Console:
     return con if con.is_terminal else _Console(width=120)
 
 
+class PlainTable:
+    """A table laid out as plain text: the subset of rich's Table that the plan uses.
+
+    Piped output (a file, another program) gets these: aligned columns, a rule of ``-``
+    under the headings, no colour and no box characters, and a hundred times faster to
+    lay out than a rich table.
+    """
+
+    def __init__(self, title: str | None = None, **_ignored) -> None:
+        self.title = title
+        self.columns: list[tuple[str, str]] = []
+        self.rows: list[list[str]] = []
+
+    def add_column(self, header: str, justify: str = "left") -> None:
+        self.columns.append((header, justify))
+
+    def add_row(self, *cells: str) -> None:
+        self.rows.append(list(cells))
+
+    def lines(self) -> list[str]:
+        from rich.text import Text
+
+        heads = [Text.from_markup(h).plain for h, _j in self.columns]
+        body = [[Text.from_markup(c).plain for c in r] for r in self.rows]
+        widths = [max([len(h)] + [len(r[i]) for r in body]) for i, h in enumerate(heads)]
+
+        def line(cells):
+            out = []
+            for (_, justify), w, c in zip(self.columns, widths, cells):
+                out.append(c.rjust(w) if justify == "right" else c.ljust(w))
+            return "  " + "  ".join(out).rstrip()
+
+        text = [] if not self.title else [Text.from_markup(self.title).plain]
+        return text + [line(heads), "  " + "  ".join("-" * w for w in widths)] + [line(r) for r in body]
+
+
+class Printer:
+    """Prints markup lines and tables to a console: through rich on a terminal, as plain text otherwise."""
+
+    def __init__(self, console: Console) -> None:
+        self.console = console
+        self.plain = not console.is_terminal
+
+    def table(self, **kwargs):
+        """A new table: rich's on a terminal, :class:`PlainTable` otherwise."""
+        return PlainTable(**kwargs) if self.plain else Table(**kwargs)
+
+    def __call__(self, item="") -> None:
+        if not self.plain:
+            self.console.print(item)
+            return
+        from rich.text import Text
+
+        lines = item.lines() if isinstance(item, PlainTable) else [Text.from_markup(str(item)).plain]
+        try:
+            self.console.file.write("\n".join(lines) + "\n")
+        except BrokenPipeError:
+            self.console.on_broken_pipe()
+
+
 def fmt(value: float | None, digits: int = 4) -> str:
     """A number to ``digits`` significant figures, without exponent for everyday sizes."""
     if value is None:
@@ -54,14 +114,14 @@ def fmt(value: float | None, digits: int = 4) -> str:
     return f"{value:.{digits - 1}e}"
 
 
-def _step_table(sp, route) -> Table:
+def _step_table(sp, route, new_table=Table) -> Table:
     rows = step_charge_rows(sp)
     made_in = route.maker
     mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
     vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
     nu, nf = column_unit([r["mol"] for r in rows], "amount")
     per_batch = sp.batches > 1
-    t = Table(box=box.SIMPLE_HEAD, pad_edge=False)
+    t = new_table(box=box.SIMPLE_HEAD, pad_edge=False)
     t.add_column("#", justify="right")
     t.add_column("material")
     t.add_column("role")
@@ -121,13 +181,13 @@ def _stock_line(sp) -> str:
     return ""
 
 
-def _raw_table(plan) -> Table:
+def _raw_table(plan, new_table=Table) -> Table:
     rows = raw_material_rows(plan)
     mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
     vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
     cur = plan.route.currency
-    t = Table(title="[bold]Raw materials to charge, whole campaign[/bold]", box=box.SIMPLE_HEAD,
-              title_justify="left", pad_edge=False)
+    t = new_table(title="[bold]Raw materials to charge, whole campaign[/bold]", box=box.SIMPLE_HEAD,
+                  title_justify="left", pad_edge=False)
     t.add_column("material")
     t.add_column(escape(f"mass [{mu}]"), justify="right")
     t.add_column(escape(f"volume [{vu}]"), justify="right")
@@ -148,58 +208,58 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
     """
     from routeplan import CAUTION
 
-    con = console or make_console()
+    con = Printer(console or make_console())
     tm = plan.target_mass.m_as("kg")
     overage = plan.route.target.overage
     made_of = (f"{fmt(tm / (1 + overage))} kg + {overage * 100:.3g} % overage, " if overage else "")
-    con.print(f"[bold]{escape(plan.route.name)}[/bold]: {fmt(tm)} kg of {escape(plan.target_material)} "
+    con(f"[bold]{escape(plan.route.name)}[/bold]: {fmt(tm)} kg of {escape(plan.target_material)} "
               f"({made_of}{fmt(plan.target_mol.m_as('mol'))} mol), "
               f"{len(plan.steps)} step{'s' if len(plan.steps) != 1 else ''}"
               + (f", planned at the steps' [bold]{plan.yield_basis}[/bold] yields" if plan.yield_basis != "expected"
                  else ""))
-    con.print("[dim]n: amount of the compound, m: mass and V: volume as charged; "
+    con("[dim]n: amount of the compound, m: mass and V: volume as charged; "
               "(S1) after a material: made in step S1; in solution: V is the reaction mixture carried in[/dim]")
-    con.print()
+    con()
     for sp in plan.steps:
         title = f"{sp.id} · {sp.name}" if sp.name and sp.name != sp.id else sp.id
-        con.print(f"[bold]{escape(title)}[/bold]   {escape(sp.equation)}   yield {sp.yield_:.0%}"
+        con(f"[bold]{escape(title)}[/bold]   {escape(sp.equation)}   yield {sp.yield_:.0%}"
                   + ("   [italic]telescoped: the product goes on in solution[/italic]" if not sp.isolated else ""))
         if sp.runs:
-            con.print(_step_table(sp, plan.route))
-            con.print(escape(_step_footer(sp)))
+            con(_step_table(sp, plan.route, con.table))
+            con(escape(_step_footer(sp)))
             for line in step_safety_lines(sp):
-                con.print(escape("  " + line))
+                con(escape("  " + line))
         stock_line = _stock_line(sp)
         if stock_line:
-            con.print(escape(stock_line))
-        con.print()
-    con.print(_raw_table(plan))
+            con(escape(stock_line))
+        con()
+    con(_raw_table(plan, con.table))
     oy = plan.overall_yield
-    con.print(escape(f"Overall yield along the longest linear sequence "
+    con(escape(f"Overall yield along the longest linear sequence "
               f"({' -> '.join(oy.longest_linear_sequence)}): {oy.yield_:.1%}"
                      + (f" (from {oy.low:.1%} to {oy.high:.1%} with the steps' low and high yields)"
                         if oy.low is not None and (oy.low, oy.high) != (oy.yield_, oy.yield_) else "")))
     for key, y in oy.by_raw_material.items():
-        con.print(escape(f"  from {key}: {y:.1%}"))
+        con(escape(f"  from {key}: {y:.1%}"))
     if plan.metrics is not None:
         for line in metrics_lines(plan.metrics, plan.target_material):
-            con.print(line)
+            con(line)
     if plan.stock is not None:
         from routeplan.views.stock_text import stock_lines
 
         for line in stock_lines(plan):
-            con.print(escape(line))
+            con(escape(line))
     if plan.record is not None:
         from routeplan.views.record_text import record_lines
 
         for line in record_lines(plan):
-            con.print(escape(line))
+            con(escape(line))
     if plan.uncertainty is not None:
         from routeplan.views.uncertainty_text import uncertainty_lines
 
-        con.print()
+        con()
         for line in uncertainty_lines(plan):
-            con.print(escape(line))
-    con.print()
+            con(escape(line))
+    con()
     if caution:
-        con.print(f"[bold]CAUTION[/bold]: {CAUTION}")
+        con(f"[bold]CAUTION[/bold]: {CAUTION}")

@@ -142,6 +142,10 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         if yields != "expected":
             raise PlanError(f"yield uncertainty is drawn around the plan at the expected yields, not the {yields} ones",
                             location=Location(key="--yields"), hint="leave out --yields with --confidence")
+    if confidence is not None and record is not None:
+        raise PlanError("yield draws are not run on the rest of a recorded campaign: they would start from the "
+                        "planned charges, not from what is in hand", location=Location(key="--confidence"),
+                        hint="use --confidence on the plan without --record, or --record without --confidence")
     if yields not in YIELD_BASES:
         raise PlanError(f"unknown yield basis '{yields}'", hint="use expected, low or high")
     amount_kg = _amount_kg(route, target)

@@ -35,7 +35,7 @@ __all__ = ["Path", "Positions", "read_yaml", "format_path", "MAX_NODES"]
 Path = tuple
 
 #: Largest number of values a document may expand to (anchors and aliases included).
-MAX_NODES = 200_000
+MAX_NODES = 1_000_000
 
 _CORE = "tag:yaml.org,2002:"
 _SCALAR_TAGS = {f"{_CORE}{t}" for t in ("str", "int", "float", "bool", "null", "timestamp")}
