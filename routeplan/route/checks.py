@@ -27,14 +27,12 @@ from typing import Any
 from routeplan.errors import EquationError, FormulaError, Problem
 from routeplan.route import checks_plausibility as plausible
 from routeplan.route import checks_safety
+from routeplan.route.checks_plausibility import MOLAR_MASS_TOLERANCE
 from routeplan.route.schema import CHARGE_BASES, MaterialModel, StepModel, TargetModel, VesselModel
 from routeplan.route.yamlpos import Positions
 from routeplan.vocab import Basis, Severity
 
 __all__ = ["Parts", "Facts", "check_parts", "suggest", "MOLAR_MASS_TOLERANCE"]
-
-#: Largest relative difference allowed between a given molar mass and the formula's [-].
-MOLAR_MASS_TOLERANCE = 1e-3
 
 #: Largest relative difference allowed between a material's density and its solution's [-].
 _DENSITY_TOLERANCE = 1e-3

@@ -24,8 +24,8 @@ from typing import Any, Mapping
 from routeplan.route.findings import Finding
 from routeplan.vocab import Severity
 
-__all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "density_findings", "molar_mass_findings",
-           "solution_findings", "mass_balance_finding"]
+__all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "MOLAR_MASS_TOLERANCE", "density_findings",
+           "molar_mass_findings", "solution_findings", "mass_balance_finding"]
 
 #: Densities a material or solution of a route may have [g/mL], inclusive.
 #: Upper bound: osmium, the densest element, is 22.59 g/cm³ (CRC Handbook of Chemistry and
@@ -33,6 +33,10 @@ __all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "density_findin
 #: Lower bound: common practice, no source; the lightest liquid, liquid hydrogen, is about
 #: 0.07 g/mL (from memory), and no solvent, reagent or solid of a route comes near it.
 DENSITY_RANGE = (0.05, 25.0)
+
+#: Largest relative difference allowed between a given molar mass and the formula's [-]
+#: (0.1 %, the route format's rule; also the margin below hydrogen's atomic weight).
+MOLAR_MASS_TOLERANCE = 1e-3
 
 #: Largest relative difference between the products' and the reactants' Σν·M, relative to
 #: the reactants, below which an equation counts as balanced by mass [-] (0.5 %).  Molar
@@ -125,7 +129,6 @@ def molar_mass_findings(path: tuple, molar_mass) -> list[Finding]:
     []
     """
     from routeplan.chemistry.elements import atomic_weight
-    from routeplan.route.checks import MOLAR_MASS_TOLERANCE
 
     h = atomic_weight("H")
     m = float(molar_mass.m_as("g/mol"))

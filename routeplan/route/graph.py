@@ -70,17 +70,37 @@ def step_graph(steps) -> "nx.DiGraph":
     return g
 
 
+def _reaching_a_cycle(g: "nx.DiGraph") -> list:
+    """Nodes of ``g`` from which a cycle can be reached, in ``g``'s node order.
+
+    Peels off, one pass and no recursion, every node whose successors are all peeled
+    (a DAG peels off completely).
+    """
+    out_degree = dict(g.out_degree())
+    todo = [n for n, d in out_degree.items() if d == 0]
+    while todo:
+        n = todo.pop()
+        for p in g.predecessors(n):
+            out_degree[p] -= 1
+            if out_degree[p] == 0:
+                todo.append(p)
+    return [n for n in g if out_degree[n] > 0]
+
+
 def find_step_cycle(steps) -> list[str] | None:
-    """Return one cycle of steps as ``[S3, S5, S3]``, or None when there is none."""
+    """Return one cycle of steps as ``[S3, S5, S3]``, or None when there is none.
+
+    Steps that cannot reach a cycle are set aside first, in linear time, so a long route
+    without a cycle costs one pass; the cycle reported is the one a depth-first search
+    from the first remaining step (in file order) meets.
+    """
     import networkx as nx
 
     g = step_graph(steps)
-    if nx.is_directed_acyclic_graph(g):  # linear time; find_cycle is far slower on a large DAG
+    left = _reaching_a_cycle(g)
+    if not left:
         return None
-    try:
-        cycle = nx.find_cycle(g)
-    except nx.NetworkXNoCycle:
-        return None
+    cycle = nx.find_cycle(g.subgraph(left))
     nodes = [u for u, _v in cycle]
     return nodes + [nodes[0]]
 
@@ -108,23 +128,82 @@ def steps_leading_to(route: "Route", step_id: str) -> set[str]:
 def longest_linear_sequence(route: "Route") -> list[str]:
     """The longest chain of steps that ends at the step making the target.
 
-    The longest linear sequence counts steps, not yields; among chains of equal length
-    the one whose steps come first in execution order is taken, so the answer is stable.
+    The longest linear sequence counts steps, not yields.  Among chains of equal length
+    the one with the **lowest overall expected yield** is taken (the product of the steps'
+    ``yield.expected`` [-] along the chain, from its first step on), then the one whose
+    tuple of step ids is lexicographically smallest.  The answer depends on the route
+    alone, never on the order of steps or materials in the file, and it does not change
+    with ``--yields`` (the rule reads the expected yields).
+
+    The search is a single pass over the steps in execution order with a parent pointer
+    per step (no recursion), so a route of any length is fine.
+
+    Parameters
+    ----------
+    route : Route
+        Anything with ``steps`` (``id``, ``product``, ``charges``, ``yield_.expected``)
+        and ``target.material``.
+
+    Returns
+    -------
+    list of str
+        Step ids from the first step of the chain to the step making the target.
+
+    Examples
+    --------
+    Two branches of two steps meet in ``S5``; branch ``A`` (0.9 x 0.8 = 0.72) yields less
+    than branch ``B`` (0.85 x 0.85 = 0.7225), so it is the longest linear sequence:
+
+    >>> from types import SimpleNamespace as NS
+    >>> def step(id, product, feeds, y):
+    ...     return NS(id=id, product=product, charges=[NS(material=m) for m in feeds],
+    ...               yield_=NS(expected=y))
+    >>> steps = [step("B1", "b1", ["rb"], 0.85), step("B2", "b2", ["b1"], 0.85),
+    ...          step("A1", "a1", ["ra"], 0.9), step("A2", "a2", ["a1"], 0.8),
+    ...          step("S5", "p", ["a2", "b2"], 0.95)]
+    >>> longest_linear_sequence(NS(steps=steps, target=NS(material="p")))
+    ['A1', 'A2', 'S5']
     """
     import networkx as nx
 
     g = step_graph(route.steps)
-    order = execution_order(route)
     final = next(s.id for s in route.steps if s.product == route.target.material)
     keep = set(nx.ancestors(g, final)) | {final}
-    best: dict[str, list[str]] = {}
-    for sid in order:
+    expected = {s.id: s.yield_.expected for s in route.steps}
+    length: dict[str, int] = {}
+    overall: dict[str, float] = {}  # product of expected yields along the chosen chain [-]
+    parent: dict[str, str | None] = {}
+
+    def ids_first_smaller(a: str, b: str) -> bool:
+        """True when the chain ending at ``a`` has smaller ids than the one at ``b``.
+
+        Both chains are equally long: walk back in step until they meet; the difference
+        nearest to the chains' start decides.
+        """
+        first_a = first_b = None
+        while a is not None and a != b:
+            first_a, first_b = a, b
+            a, b = parent[a], parent[b]
+        return first_a is not None and first_a < first_b
+
+    for sid in execution_order(route):
         if sid not in keep:
             continue
-        preds = [p for p in g.predecessors(sid) if p in keep]
-        chain: list[str] = []
-        for p in sorted(preds, key=order.index):
-            if len(best[p]) > len(chain):
-                chain = best[p]
-        best[sid] = chain + [sid]
-    return best[final]
+        best = None
+        for p in g.predecessors(sid):
+            if p not in keep:
+                continue
+            if (best is None or length[p] > length[best]
+                    or (length[p] == length[best]
+                        and (overall[p] < overall[best]
+                             or (overall[p] == overall[best] and ids_first_smaller(p, best))))):
+                best = p
+        parent[sid] = best
+        length[sid] = 1 if best is None else length[best] + 1
+        overall[sid] = expected[sid] if best is None else overall[best] * expected[sid]
+    chain: list[str] = []
+    at: str | None = final
+    while at is not None:
+        chain.append(at)
+        at = parent[at]
+    return chain[::-1]
