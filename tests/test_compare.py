@@ -62,7 +62,39 @@ def _expected(plan):
         "cost_per_kg": sum(r.cost for r in plan.raw_materials) / target,
         "batches": sum(sp.batches for sp in plan.steps),
         "largest_raw_material": largest.mass.m_as("kg"),
+        **_expected_time_waste(plan),
     }
+
+
+def _stream(mat) -> str | None:
+    """Stream by the rule of ROUTE-FORMAT.md's readings, from the formula text."""
+    if mat.solution is not None or mat.formula == "H2O":
+        return "aqueous"
+    if mat.formula and any(x in mat.formula for x in ("F", "Cl", "Br", "I")):
+        return "halogenated"
+    return "organic" if mat.formula and "C" in mat.formula else None
+
+
+def _expected_time_waste(plan):
+    """Campaign hours, halogenated waste and cost of goods, recomputed from the route file's numbers."""
+    route, target = plan.route, plan.target_mass.m_as("kg")
+    steps = [(sp, route.step(sp.id)) for sp in plan.steps]
+    # both demo routes run one step at a time (route B's branches share R250): the campaign
+    # is the sum of batches x cycle time
+    hours = sum(sp.batches * s.cycle_time.m_as("h") for sp, s in steps)
+    plant = sum(sp.batches * s.cycle_time.m_as("h") * route.equipment[sp.vessel].rate for sp, s in steps)
+    streams = {"aqueous": 0.0, "organic": 0.0, "halogenated": 0.0}
+    for sp in plan.steps:
+        for c in sp.charges:
+            where = _stream(route.materials[c.material]) if c.role in ("solvent", "workup") else None
+            if where:
+                streams[where] += c.mass.m_as("kg")
+    prices = route.waste_prices
+    waste = sum(kg * getattr(prices, name) for name, kg in streams.items())
+    raw = sum(r.cost for r in plan.raw_materials)
+    return {"campaign_h": hours, "halogenated_waste_per_kg": streams["halogenated"] / target,
+            "cost_of_goods_per_kg": (raw + plant + waste) / target, "plant_cost_per_kg": plant / target,
+            "waste_cost_per_kg": waste / target}
 
 
 def test_demo_hand_numbers():
@@ -186,7 +218,9 @@ def test_json_output_has_rows_best_and_caution(demo):
     assert [r["label"] for r in d["routes"]] == list(cmp.labels)
     keys = [r["key"] for r in d["rows"]]
     assert keys == ["target_mass", "steps", "longest_linear_sequence", "overall_yield", "pmi",
-                    "e_factor_complete", "e_factor_simple", "cost_per_kg", "batches", "largest_raw_material"]
+                    "e_factor_complete", "e_factor_simple", "cost_per_kg", "batches", "largest_raw_material",
+                    "campaign_h", "halogenated_waste_per_kg", "cost_of_goods_per_kg", "plant_cost_per_kg",
+                    "waste_cost_per_kg"]
     for row, mine in zip(d["rows"], cmp.rows):
         assert row["values"] == pytest.approx(list(mine.values))
         assert row["best"] == [cmp.labels[i] for i in mine.best]
@@ -242,7 +276,7 @@ def test_unpriced_cost_is_not_ranked(tmp_path):
     row = cmp.row("cost_per_kg")
     assert row.best == () and "KI" in row.note
     assert row.labels[1] == "priced materials only"
-    assert "raw-material cost cannot be ranked" in cmp.tradeoff
+    assert "raw-material cost and cost of goods cannot be ranked" in cmp.tradeoff
 
 
 def test_plans_for_different_masses_are_refused():

@@ -58,7 +58,7 @@ def test_files_written(plan, out):
     names = [p.name for p in paths]
     assert names == ["summary.csv", "steps.csv", "charges-01-A_1_prep.csv", "charges-02-A_1_prep.csv",
                      "charges-03-a_step_id_that_is_far_longer_than_thirty.csv", "raw-materials.csv",
-                     "materials.csv", "safety.csv"]
+                     "materials.csv", "safety.csv", "waste.csv"]
     assert sorted(p.name for p in folder.iterdir()) == sorted(names)
 
 

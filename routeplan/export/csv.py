@@ -4,7 +4,8 @@ Files written into ``DIR`` (made if missing), each atomically:
 
 ``summary.csv``
     item, value, unit: route, route file and SHA-256, date, target, overall yield,
-    cost, the caution and every warning.
+    cost, the campaign duration, the waste streams, the cost of goods by part (and what
+    has no price), the caution and every warning.
 ``steps.csv``
     one line per step in execution order, with the step metrics and, last, the
     product taken from stock [mol] and [kg] (empty when the stock list does not name
@@ -21,6 +22,13 @@ Files written into ``DIR`` (made if missing), each atomically:
     docs/safety.md): one row per gas evolved (at the step's conditions) or taken up (at
     normal conditions), or one row without gas; a step without thermal data says "no:
     not screened" and leaves the heat fields empty.
+``schedule.csv``, ``vessels.csv``
+    only when the plan has a schedule (every step has a ``cycle_time``): one row per
+    batch (step, vessel, batch, start and end [h]), and one per vessel (busy and idle
+    hours, idle gaps).
+``waste.csv``
+    one row per step: everything charged, the product taken on, the waste by stream
+    and the residue over the campaign and per batch, the by-products from the equation.
 ``stock.csv``
     only when the plan has a stock comparison (``plan.stock``): per raw material, the
     need, the mass on hand (empty when not in stock) and the mass to buy [kg], and
@@ -179,7 +187,9 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
     when = written or datetime.now().astimezone()
     facts = summary_rows(plan, written_text(when))
     at = next((i for i, row in enumerate(facts) if row["key"] == "caution"), len(facts))
-    facts[at:at] = metric_rows(plan) + stock_summary_rows(plan)  # before the caution and the warnings
+    from routeplan.views.waste_cost_text import waste_cost_facts
+
+    facts[at:at] = metric_rows(plan) + waste_cost_facts(plan) + stock_summary_rows(plan)  # before the caution
     summary = [{k: row[k] for k in ("item", "value", "unit")} for row in facts]
     paths = [
         write_table(out_dir / "summary.csv", SUMMARY_COLUMNS, summary),
@@ -193,6 +203,7 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
     from routeplan.views.safety_text import SAFETY_COLUMNS, safety_rows
 
     paths.append(write_table(out_dir / "safety.csv", SAFETY_COLUMNS, safety_rows(plan)))
+    paths += _time_waste_tables(plan, out_dir)
     if plan.stock is not None:
         paths.append(write_table(out_dir / "stock.csv", STOCK_COLUMNS, stock_rows(plan)))
     if plan.record is not None:
@@ -200,4 +211,18 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
 
         paths.append(write_table(out_dir / "record-lots.csv", LOT_COLUMNS, lot_rows(plan)))
         paths.append(write_table(out_dir / "record-in-hand.csv", IN_HAND_COLUMNS, in_hand_rows(plan)))
+    return paths
+
+
+def _time_waste_tables(plan: "Plan", out_dir: Path) -> list[Path]:
+    """``schedule.csv`` and ``vessels.csv`` (when the plan has a schedule) and ``waste.csv``."""
+    from routeplan.views.schedule_text import BATCH_SLOT_COLUMNS, VESSEL_USE_COLUMNS, batch_rows, vessel_rows
+    from routeplan.views.waste_cost_text import WASTE_COLUMNS, waste_rows
+
+    paths = []
+    if plan.schedule is not None:
+        paths.append(write_table(out_dir / "schedule.csv", BATCH_SLOT_COLUMNS, batch_rows(plan)))
+        paths.append(write_table(out_dir / "vessels.csv", VESSEL_USE_COLUMNS, vessel_rows(plan)))
+    if plan.waste is not None:
+        paths.append(write_table(out_dir / "waste.csv", WASTE_COLUMNS, waste_rows(plan)))
     return paths

@@ -130,6 +130,9 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
         out["source"] = {"file": route.source.path, "sha256": route.source.sha256}
     if plan.metrics is not None:
         out["metrics"] = plan.metrics.to_dict()
+    from routeplan.export.json_time_waste import time_waste_dict
+
+    out.update(time_waste_dict(plan))  # schedule, waste, cost of goods
     if plan.stock is not None:
         s = plan.stock
         out["stock"] = {

@@ -200,6 +200,23 @@ def _raw_table(plan, new_table=Table) -> Table:
     return t
 
 
+def _print_time_waste_cost(con: "Printer", plan: "Plan") -> None:
+    """The schedule's timeline, the waste streams and the cost of goods (headings in bold)."""
+    from routeplan.views.schedule_text import schedule_lines
+    from routeplan.views.waste_cost_text import cost_lines, waste_lines
+
+    for block in (schedule_lines(plan), waste_lines(plan), cost_lines(plan)):
+        if not block:
+            continue
+        con()
+        con(f"[bold]{escape(block[0])}[/bold]")
+        for line in block[1:]:
+            if con.plain:
+                con(escape(line))
+            else:  # on a terminal too, a timeline lane must not be folded
+                con.console.print(escape(line), soft_wrap=True)
+
+
 def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = True) -> None:
     """Print the plan to the terminal (standard output by default).
 
@@ -244,6 +261,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
     if plan.metrics is not None:
         for line in metrics_lines(plan.metrics, plan.target_material):
             con(line)
+    _print_time_waste_cost(con, plan)
     if plan.stock is not None:
         from routeplan.views.stock_text import stock_lines
 

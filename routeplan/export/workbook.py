@@ -19,6 +19,11 @@ one charge sheet per step and batch
 ``Materials``
     Every material of the route: formula, molar mass, assay, density, solution data,
     price, hazards.
+``Schedule``
+    Only when the plan has a schedule (every step has a ``cycle_time``; otherwise the
+    Summary says which steps lack one): every batch on its vessel in time, each
+    vessel's busy and idle hours, and a timeline; see
+    :mod:`routeplan.export.workbook_schedule`.
 
 The workbook reads only the Plan (through :mod:`routeplan.views.tables`); it is
 written with xlsxwriter into a temporary file beside the target, then renamed over it.
@@ -59,7 +64,7 @@ MAX_SHEET_NAME = 31
 # Characters a sheet name may not hold, plus control characters.
 _BAD_SHEET_CHARS = re.compile(r"[\[\]:*?/\\\x00-\x1f\x7f]")
 # Names taken before any step: our own sheets, and one that spreadsheets reserve.
-_RESERVED = (SUMMARY_SHEET, MATERIALS_SHEET, "History")
+_RESERVED = (SUMMARY_SHEET, MATERIALS_SHEET, "History", "Schedule")
 
 
 def _utf16_len(text: str) -> int:
@@ -199,6 +204,10 @@ def write_workbook(plan: "Plan", path: str | os.PathLike, *, written: datetime |
         for sp, k, name in names:
             write_charge_sheet(wb.add_worksheet(name), st, plan, sp, k, context)
         write_materials(wb.add_worksheet(MATERIALS_SHEET), st, plan, context)
+        from routeplan.export.workbook_schedule import SCHEDULE_SHEET, write_schedule_sheet
+
+        if plan.schedule is not None:
+            write_schedule_sheet(wb.add_worksheet(SCHEDULE_SHEET), st, plan, context)
         summary.activate()
         try:
             wb.close()

@@ -3,9 +3,11 @@
 Summary (columns A to L): title, caution, the plan's key facts (route, route file and
 SHA-256, date, target, overall yield, cost), the route metrics read from
 ``plan.metrics`` (process mass intensity, complete and simple E-factor, raw-material
-cost per kg of target and the raw materials without a price), the yield uncertainty
-when ``plan.uncertainty`` is set (percentiles of the delivery, its probability, the
-target and purchases for the confidence, the step shares of the spread), a line per step with the
+cost per kg of target and the raw materials without a price), the campaign's duration,
+waste streams and cost of goods by part (:mod:`routeplan.views.waste_cost_text`), the
+yield uncertainty when ``plan.uncertainty`` is set (percentiles of the delivery, its
+probability, the target and purchases for the confidence, the step shares of the
+spread), a line per step with the
 names of its charge sheets and the step metrics (step and cumulative PMI, atom economy,
 reaction mass efficiency) and, under a step that takes its product from stock or does
 not run, a line that says so (a step that does not run has no charge sheet), the
@@ -215,7 +217,8 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
     dict
         0-based rows: ``facts`` (first fact line), ``metrics`` (first metric line, -1
         without metrics), ``steps`` and ``raw`` (heading rows of the two tables),
-        ``raw_total`` (the total cost line, -1 without one), ``uncertainty`` (first
+        ``raw_total`` (the total cost line, -1 without one), ``time_waste`` (first line
+        of the campaign time, waste and cost-of-goods facts, -1 without them), ``uncertainty`` (first
         line of the yield-uncertainty block, -1 without ``--confidence``), ``stock`` (heading row of
         the stock table, -1 without stock), ``safety`` (first line of the safety
         summary) and ``warnings`` (first warning line, -1 without one).
@@ -244,6 +247,18 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
         put(ws, r, 0, "Mass efficiency and cost, per kg of target as delivered", st.subtitle)
         out["metrics"] = r + 1
         for row in metrics:
+            r += 1
+            sh.fact(r, row)
+
+    from routeplan.views.waste_cost_text import waste_cost_facts
+
+    out["time_waste"] = -1
+    time_waste = waste_cost_facts(plan)
+    if time_waste:
+        r += 1
+        put(ws, r, 0, "Campaign time, waste streams and cost of goods", st.subtitle)
+        out["time_waste"] = r + 1
+        for row in time_waste:
             r += 1
             sh.fact(r, row)
 

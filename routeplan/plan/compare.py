@@ -410,6 +410,51 @@ def _cost_row(plans: Sequence["Plan"]) -> CompareRow:
                 LOWER, values, labels, note)
 
 
+def _cog_row(plans: Sequence["Plan"], key: str, heading: str, short: str, part: str | None) -> CompareRow:
+    """A cost-of-goods row per kg of target: the whole (``part`` None) or one part."""
+    cogs = [p.cost_of_goods for p in plans]
+    currencies = {None if c is None else c.currency for c in cogs}
+    currency = next(iter(currencies)) if len(currencies) == 1 else None
+    values = [None if c is None else (c.per_kg if part is None else c.part_per_kg(part)) for c in cogs]
+
+    def gaps(c) -> tuple[str, ...]:
+        if c is None:
+            return ()
+        parts = c.parts.values() if part is None else [c.parts[part]]
+        return tuple(k for p in parts for k in p.unpriced)
+
+    note = None
+    if len(currencies) > 1:
+        note = "not ranked: the routes give prices in different currencies (" + \
+               ", ".join(sorted(str(c) for c in currencies)) + ")"
+    elif any(v is None for v in values):
+        note = "not ranked: a route has nothing priced here (no currency, prices, rates or waste prices)"
+    elif any(gaps(c) for c in cogs):
+        listed = "; ".join(f"{p.route.name}: {', '.join(gaps(c))}" for p, c in zip(plans, cogs) if gaps(c))
+        note = f"not ranked: priced items only, some have no price ({listed})"
+    labels = ["priced items only" if gaps(c) and v is not None else None for c, v in zip(cogs, values)]
+    return _row(key, heading, short, f"{currency}/kg" if currency else "currency/kg", "money", LOWER, values,
+                labels if any(labels) else [], note)
+
+
+def _time_waste_rows(plans: Sequence["Plan"]) -> tuple[CompareRow, ...]:
+    """Campaign duration, halogenated waste and the cost of goods, whole and by part."""
+    hours = [None if p.schedule is None else p.schedule.campaign_h for p in plans]
+    note = ("not ranked: a route has no schedule (a step without cycle_time)"
+            if any(h is None for h in hours) else None)
+    halogenated = [None if p.waste is None else p.waste.total.halogenated_kg / p.waste.product_kg for p in plans]
+    return (
+        _row("campaign_h", "campaign duration, first batch to last", "campaign duration", "h", "ratio", LOWER,
+             hours, [f"pace: {p.schedule.pace_step}" for p in plans] if note is None else [], note),
+        _row("halogenated_waste_per_kg", "halogenated waste per kg of target", "halogenated waste", "kg/kg",
+             "ratio", LOWER, halogenated),
+        _cog_row(plans, "cost_of_goods_per_kg", "cost of goods per kg of target (materials, plant, waste)",
+                 "cost of goods", None),
+        _cog_row(plans, "plant_cost_per_kg", "plant time per kg of target", "plant time", "plant"),
+        _cog_row(plans, "waste_cost_per_kg", "waste disposal per kg of target", "waste disposal", "waste"),
+    )
+
+
 def _uncertainty_rows(plans: Sequence["Plan"]) -> tuple[CompareRow, ...]:
     """Probability of delivering and the confidence target, when the yields were drawn.
 
@@ -461,7 +506,7 @@ def _rows(plans: Sequence["Plan"]) -> tuple[CompareRow, ...]:
         _row("largest_raw_material", "largest single raw material", "largest single raw material", "kg",
              "mass", LOWER, [None if x is None else x[1] for x in largest],
              [None if x is None else x[0] for x in largest]),
-    ) + _uncertainty_rows(plans)
+    ) + _time_waste_rows(plans) + _uncertainty_rows(plans)
 
 
 def compare_plans(plans: Sequence["Plan"], notes: Sequence[str] = ()) -> Comparison:

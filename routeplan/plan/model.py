@@ -19,8 +19,11 @@ if TYPE_CHECKING:  # pragma: no cover
     import pandas as pd
     import pint
 
+    from routeplan.plan.cost_of_goods import CostOfGoods
     from routeplan.plan.metrics import Metrics
+    from routeplan.plan.schedule import Schedule
     from routeplan.plan.uncertainty import Uncertainty
+    from routeplan.plan.waste import Waste
     from routeplan.route.model import Route
 
 __all__ = [
@@ -485,6 +488,14 @@ class Plan:
         Stock comparison, when a stock list was given.
     yield_basis : str
         Which step yields the walk used: ``"expected"``, ``"low"`` or ``"high"``.
+    schedule : Schedule or None
+        Every batch on its vessel in time (:mod:`routeplan.plan.schedule`); None unless
+        every step has a ``cycle_time``.
+    waste : Waste or None
+        By-products and waste streams (:mod:`routeplan.plan.waste`), once computed.
+    cost_of_goods : CostOfGoods or None
+        Raw materials, plant time and waste disposal (:mod:`routeplan.plan.cost_of_goods`),
+        once computed.
     uncertainty : Uncertainty or None
         Yield draws around the plan (:mod:`routeplan.plan.uncertainty`), when a
         confidence was asked for.
@@ -505,6 +516,9 @@ class Plan:
     warnings: tuple[Problem, ...] = ()
     stock: StockPlan | None = None
     yield_basis: str = "expected"
+    schedule: "Schedule | None" = None
+    waste: "Waste | None" = None
+    cost_of_goods: "CostOfGoods | None" = None
     uncertainty: "Uncertainty | None" = None
     record: Any = None
 

@@ -175,6 +175,10 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         from routeplan.plan.stock import stock_plan as compare_stock
 
         stock_plan = compare_stock(draft, on_hand, source=source)
+    from routeplan.plan.cost_of_goods import schedule_waste_cost
+
+    schedule, waste, cost_of_goods, waste_warnings = schedule_waste_cost(draft)
+    warnings.extend(waste_warnings)
     uncertainty = None
     if confidence is not None:
         from routeplan.plan.uncertainty import yield_uncertainty
@@ -190,6 +194,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         target_n_mol=draft.target_n_mol, steps=steps, raw_materials=draft.raw_materials,
         overall_yield=draft.overall_yield, metrics=compute_metrics(draft),
         warnings=tuple(warnings), stock=stock_plan, yield_basis=yields, uncertainty=uncertainty,
+        schedule=schedule, waste=waste, cost_of_goods=cost_of_goods,
         record=record_plan,
     )
 

@@ -61,6 +61,7 @@ class Parts:
         hold None for each line that failed), or None; in file order.
     target : TargetModel, a partly valid stand-in, or None
     currency : str or None
+    waste_prices : WastePricesModel or None
     """
 
     material_keys: list[str] = field(default_factory=list)
@@ -69,6 +70,7 @@ class Parts:
     steps: list[StepModel | None] = field(default_factory=list)
     target: TargetModel | None = None
     currency: str | None = None
+    waste_prices: object | None = None
 
 
 @dataclass
@@ -436,6 +438,17 @@ class _Checker:
             self.add(Severity.WARNING, ("materials", priced[0], "price"),
                      f"{len(priced)} material(s) have a price but the route has no currency; "
                      "no cost will be computed", "add e.g. 'currency: EUR' at the top level")
+        if self.parts.currency is not None:
+            return
+        rated = [k for k, v in self.parts.equipment.items() if v is not None and v.rate is not None]
+        if rated:
+            self.add("warning", ("equipment", rated[0], "rate"),
+                     f"{len(rated)} vessel(s) have a rate but the route has no currency; "
+                     "no plant cost will be computed", "add e.g. 'currency: EUR' at the top level")
+        if self.parts.waste_prices is not None:
+            self.add("warning", ("waste_prices",),
+                     "the route gives waste prices but no currency; no waste cost will be computed",
+                     "add e.g. 'currency: EUR' at the top level", key=True)
 
     def target(self) -> None:
         t = self.parts.target

@@ -27,8 +27,9 @@ from pydantic import TypeAdapter, ValidationError
 from routeplan.errors import Location, Problem, RouteError
 from routeplan.route.checks import Facts, Parts, check_parts
 from routeplan.route.model import (Charge, Conditions, Dosing, Material, Route, Solution, Source, Step, Target, Thermal,
-                                   Vessel, Yield)
-from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepModel, TargetModel, VesselModel, describe_value,
+                                   Vessel, WastePrices, Yield)
+from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepModel, TargetModel, VesselModel,
+                                    WastePricesModel, describe_value,
                                     keys_of, validation_problems)
 from routeplan.route.yamlpos import Positions, read_yaml
 from routeplan.vocab import GIVEN_BASES, Basis, Role, Severity
@@ -167,7 +168,7 @@ def _sorted(problems: list[Problem]) -> list[Problem]:
 def _parts_of(model: RouteFile) -> Parts:
     return Parts(material_keys=list(model.materials), materials=dict(model.materials),
                  equipment=dict(model.equipment or {}), steps=list(model.steps), target=model.target,
-                 currency=model.currency)
+                 currency=model.currency, waste_prices=model.waste_prices)
 
 
 @functools.lru_cache(maxsize=None)
@@ -232,6 +233,7 @@ def _salvage(doc: dict) -> Parts:
         parts.steps = [_salvage_one(StepModel, s) for s in steps]
     parts.target = _salvage_one(TargetModel, doc.get("target"))
     parts.currency = doc.get("currency")
+    parts.waste_prices = _try(WastePricesModel, doc.get("waste_prices")) if "waste_prices" in doc else None
     return parts
 
 
@@ -240,13 +242,16 @@ def _salvage(doc: dict) -> Parts:
 def _build(model: RouteFile, facts: Facts, pos: Positions, source: Source, warnings: tuple) -> Route:
     materials = {key: _material(key, m, facts, pos) for key, m in model.materials.items()}
     equipment = {key: Vessel(key=key, volume=v.volume.to("L"), max_fill=v.max_fill,
-                             location=pos.at(("equipment", key), key=True))
+                             location=pos.at(("equipment", key), key=True), rate=v.rate)
                  for key, v in (model.equipment or {}).items()}
     steps = tuple(_step(i, s, facts, pos) for i, s in enumerate(model.steps))
     t = model.target
     target = Target(material=t.material, amount=t.amount.to("kg"), overage=t.overage, location=pos.at(("target",)))
+    wp = model.waste_prices
+    waste_prices = None if wp is None else WastePrices(wp.aqueous, wp.organic, wp.halogenated)
     return Route(name=model.route, target=target, materials=materials, steps=steps, equipment=equipment,
-                 currency=model.currency, format=model.format, source=source, warnings=warnings)
+                 currency=model.currency, format=model.format, source=source, warnings=warnings,
+                 waste_prices=waste_prices)
 
 
 def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Material:
@@ -262,7 +267,7 @@ def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Mater
         key=key, name=m.name if m.name is not None else key, formula=facts.formulas.get(key, m.formula),
         smiles=m.smiles, molar_mass=facts.molar_masses.get(key), assay=m.assay if m.assay is not None else 1.0,
         density=density, solution=solution, price=m.price, hazards=tuple(m.hazards or ()), notes=m.notes,
-        location=pos.at(("materials", key), key=True), phase=m.phase)
+        location=pos.at(("materials", key), key=True), phase=m.phase, stream=m.stream)
 
 
 def _default_role(basis: Basis | None, reactant: bool) -> Role:
@@ -298,7 +303,8 @@ def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
         limiting=limiting, product=facts.product[i], yield_=Yield(y.expected, y.low, y.high),
         charges=tuple(lines), isolated=s.isolated, vessel=s.vessel,
         demonstrated_batch=s.demonstrated_batch.to("kg") if s.demonstrated_batch is not None else None,
-        notes=s.notes, location=pos.at(("steps", i)), **_safety_parts(i, s, pos))
+        notes=s.notes, location=pos.at(("steps", i)),
+        cycle_time=s.cycle_time.to("h") if s.cycle_time is not None else None, **_safety_parts(i, s, pos))
 
 
 def _kelvin(q):

@@ -25,6 +25,7 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = [
     "BASES",
     "ROLES",
+    "STREAMS",
     "Solution",
     "Material",
     "Vessel",
@@ -36,6 +37,7 @@ __all__ = [
     "Step",
     "Target",
     "Source",
+    "WastePrices",
     "Route",
 ]
 
@@ -46,6 +48,9 @@ BASES: tuple[Basis, ...] = tuple(Basis)
 
 #: Roles a charge line may have: the members of :class:`routeplan.vocab.Role`.
 ROLES: tuple[Role, ...] = tuple(Role)
+
+#: Waste streams a material may be sent to (``materials.<key>.stream``, ``waste_prices``).
+STREAMS = ("aqueous", "organic", "halogenated")
 
 
 @dataclass(frozen=True)
@@ -102,6 +107,9 @@ class Material:
     phase : str or None
         ``"solid"``, ``"liquid"`` or ``"gas"`` where the file says; a material is a gas
         only when it says ``phase: gas``.
+    stream : str or None
+        Waste stream named in the route file (one of :data:`STREAMS`); None lets its
+        formula decide (:mod:`routeplan.plan.waste`).
     """
 
     key: str
@@ -117,6 +125,7 @@ class Material:
     notes: str | None = None
     location: Location | None = None
     phase: str | None = None
+    stream: str | None = None
 
 
 @dataclass(frozen=True)
@@ -131,12 +140,15 @@ class Vessel:
         Nominal volume [L].
     max_fill : float
         Largest working fraction of ``volume`` [-], default 0.8.
+    rate : float or None
+        Cost of the vessel's time per hour, in the route's currency [currency/h].
     """
 
     key: str
     volume: "pint.Quantity"
     max_fill: float = 0.8
     location: Location | None = None
+    rate: float | None = None
 
 
 @dataclass(frozen=True)
@@ -294,6 +306,8 @@ class Step:
         The dosed charge (semi-batch); None for a batch step.
     thermal : Thermal or None
         Thermal data; None: the step is not screened.
+    cycle_time : pint.Quantity or None
+        Vessel time for one batch, cleaning included [h].
     """
 
     id: str
@@ -312,6 +326,7 @@ class Step:
     conditions: Conditions | None = None
     dosing: Dosing | None = None
     thermal: Thermal | None = None
+    cycle_time: "pint.Quantity | None" = None
 
     def charge_of(self, material: str) -> Charge | None:
         """The charge line of ``material`` in this step, or None."""
@@ -349,6 +364,22 @@ class Source:
     sha256: str
 
 
+@dataclass(frozen=True)
+class WastePrices:
+    """Disposal cost per kg of each waste stream, in the route's currency [currency/kg].
+
+    None for a stream the route file gives no price.
+    """
+
+    aqueous: float | None = None
+    organic: float | None = None
+    halogenated: float | None = None
+
+    def price(self, stream: str) -> float | None:
+        """The price of ``stream`` (one of :data:`STREAMS`) [currency/kg], or None."""
+        return getattr(self, stream)
+
+
 @dataclass(frozen=True, eq=False)
 class Route:
     """A whole, checked route.
@@ -377,6 +408,8 @@ class Route:
         The file the route came from.
     warnings : tuple of Problem
         Warnings found while loading.
+    waste_prices : WastePrices or None
+        Disposal prices of the waste streams; None when the route file gives none.
     """
 
     name: str
@@ -388,6 +421,7 @@ class Route:
     format: int = 1
     source: Source | None = None
     warnings: tuple[Problem, ...] = ()
+    waste_prices: WastePrices | None = None
 
     def __post_init__(self) -> None:
         if not isinstance(self.materials, MappingProxyType):

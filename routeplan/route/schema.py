@@ -23,7 +23,7 @@ from pydantic import (AfterValidator, BaseModel, ConfigDict, Field, PlainValidat
 from pydantic_core import PydanticCustomError
 
 from routeplan.errors import Problem, QuantityError
-from routeplan.route.model import ROLES
+from routeplan.route.model import ROLES, STREAMS
 from routeplan.route.yamlpos import Positions
 from routeplan.units import DIMENSIONS, parse_fraction, parse_quantity
 from routeplan.vocab import GIVEN_BASES, Role, Severity
@@ -43,6 +43,7 @@ __all__ = [
     "DosingModel",
     "ThermalModel",
     "PHASES",
+    "WastePricesModel",
     "CHARGE_BASES",
     "describe_value",
     "model_at",
@@ -221,12 +222,20 @@ def _material_key(value: Any) -> str:
                 "without spaces or '+'")
 
 
-def _role(value: Any) -> Role:
-    if isinstance(value, str) and value in ROLES:
-        return Role(value)
-    near = difflib.get_close_matches(str(value).lower(), ROLES, n=1, cutoff=0.6)
-    hint = f"did you mean '{near[0]}'?" if near else None
-    raise _fail(f"must be one of {', '.join(ROLES)}; got {describe_value(value)}", hint)
+def _one_of(words: tuple[str, ...], make=str):
+    """A validator of one word out of ``words`` (returned as ``make(word)``), suggesting the nearest on a typo."""
+    def check(value: Any):
+        if isinstance(value, str) and value in words:
+            return make(value)
+        near = difflib.get_close_matches(str(value).lower(), [str(w) for w in words], n=1, cutoff=0.6)
+        hint = f"did you mean '{near[0]}'?" if near else None
+        raise _fail(f"must be one of {', '.join(str(w) for w in words)}; got {describe_value(value)}", hint)
+
+    return check
+
+
+_role = _one_of(ROLES, Role)
+_stream = _one_of(STREAMS)
 
 
 def _currency(value: Any) -> str:
@@ -353,6 +362,10 @@ class MaterialModel(_Model):
                                      "description": "solid, liquid or gas; a product with phase gas is gas "
                                                     "evolved, a reactant with phase gas is gas taken up"})] = None
     notes: Text("free text") = None
+    stream: Annotated[Any, PlainValidator(_stream),
+                      WithJsonSchema({"enum": list(STREAMS),
+                                      "description": "waste stream this material goes to when it leaves "
+                                                     "a step (decides over its formula)"})] = None
 
 
 class VesselModel(_Model):
@@ -360,6 +373,7 @@ class VesselModel(_Model):
 
     volume: Quantity("volume", "nominal vessel volume")
     max_fill: Percent("largest working fraction of volume, default 80 %") = 0.8
+    rate: Number("cost of the vessel's time per hour, in the route's currency", positive=False) = None
 
 
 class YieldModel(_Model):
@@ -433,7 +447,16 @@ class StepModel(_Model):
     conditions: ConditionsModel = Field(None, description="reaction temperature and absolute pressure")
     dosing: DosingModel = Field(None, description="the charge dosed over a time; without it the step is a batch")
     thermal: ThermalModel = Field(None, description="thermal data for the heat screening estimate")
+    cycle_time: Quantity("time", "vessel time for one batch of the step, cleaning included") = None
     notes: Text("free text, carried onto the charge sheet") = None
+
+
+class WastePricesModel(_Model):
+    """``waste_prices``: disposal cost per kg of each waste stream, in the route's currency."""
+
+    aqueous: Number("disposal cost per kg of aqueous waste", positive=False) = None
+    organic: Number("disposal cost per kg of organic (non-halogenated) waste", positive=False) = None
+    halogenated: Number("disposal cost per kg of halogenated waste", positive=False) = None
 
 
 class RouteFile(_Model):
@@ -449,6 +472,8 @@ class RouteFile(_Model):
     materials: Annotated[dict[MaterialKey, MaterialModel], AfterValidator(_nonempty("material"))]
     equipment: dict[Text("vessel key"), VesselModel] = Field(None, description="vessels, by key")
     steps: Annotated[list[StepModel], AfterValidator(_nonempty("step"))]
+    waste_prices: WastePricesModel = Field(None, description="disposal cost per kg of the aqueous, organic and "
+                                                             "halogenated waste streams, in the route's currency")
 
 
 #: Short help for a required key that is missing: (model, key) -> what to write.

@@ -1,0 +1,401 @@
+"""By-products and waste of every step, sorted into the streams a waste contractor takes.
+
+Definitions (ROUTE-FORMAT.md, "Time, plant and waste" and its readings)
+    *Inputs of a step*: every charge of the step at its mass as charged [kg]; the
+    product of a telescoped step comes in as the compound (``ChargePlan.mass``), so the
+    solvents of the telescoped step are waste of that step, not of the next.
+    Masses are read from the plan's float fields (``ChargePlan.m_kg``, ``m_kg_batch``).
+    *Product taken on*: the step's product as isolated (``StepPlan.product_m_kg``).
+    *Waste of a step* = inputs - product taken on.
+    *Streams*: charges of role ``solvent`` or ``workup``, and every charge of a material
+    that names a ``stream``, go to the stream :func:`stream_of` gives; an intermediate
+    charged is never in a stream (it is the compound, taken on).
+    *Residue* = waste - the three streams: by-products, unreacted reagents, salts, lost
+    product, and solvent or work-up charges with no stream (no formula, inorganic).
+    *By-products from the equation*: for each product of the step's equation other than
+    its main product, ``n = nu_bp / nu_product * n_product`` (moles formed with the
+    product made) and ``m = n * M`` [kg] (the compound itself).
+    *Gas to the scrubber*: the by-products whose material says ``phase: gas``
+    (:func:`gas_evolved_kg`); they are part of the residue.
+
+Mass balance
+    Over the route, inputs (raw materials charged and intermediates taken from stock)
+    = product (the target delivered, with overage) + waste (streams + residue): every
+    intermediate made is charged again by the steps that take it, at the same mass.
+    By-products from the equation cannot exceed a step's waste; where they do, the
+    equation or the yield is likely wrong, and the step gets a warning.
+
+Plain floats in fixed units: masses [kg], amounts [mol].
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from typing import TYPE_CHECKING, Mapping
+
+from routeplan.errors import Problem
+from routeplan.route.model import STREAMS
+from routeplan.units import unit
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.plan.model import Plan, StepPlan
+    from routeplan.route.model import Material, Route
+
+__all__ = [
+    "STREAMS",
+    "HALOGENS",
+    "STREAM_ROLES",
+    "ByProduct",
+    "StreamMasses",
+    "StepWaste",
+    "Waste",
+    "stream_of",
+    "by_products",
+    "gas_evolved_kg",
+    "step_waste",
+    "route_waste",
+]
+
+#: Elements that make a material halogenated waste (group 17 of the periodic table, less
+#: astatine and tennessine, which no process charges).
+HALOGENS = ("F", "Cl", "Br", "I")
+
+#: Charge roles that go to a waste stream by their material (ROUTE-FORMAT.md readings).
+STREAM_ROLES = ("solvent", "workup")
+
+#: Relative slack before by-products count as exceeding the waste [-] (round-off only).
+_SLACK = 1e-9
+
+
+def stream_of(material: "Material") -> str | None:
+    """The waste stream of ``material``, or None for the reaction residue.
+
+    In this order: the material's ``stream`` key; water (formula H2O) or any solution:
+    ``"aqueous"``; a formula holding F, Cl, Br or I: ``"halogenated"``; another formula
+    holding carbon: ``"organic"``; anything else (no formula, an inorganic solid): None.
+
+    Examples
+    --------
+    >>> from routeplan.route.model import Material
+    >>> stream_of(Material(key="DCM", name="dichloromethane", formula="CH2Cl2"))
+    'halogenated'
+    >>> stream_of(Material(key="celite", name="filter aid")) is None
+    True
+    """
+    from routeplan.chemistry.formula import element_counts
+    from routeplan.plan.metrics import is_water
+
+    if material.stream is not None:
+        return material.stream
+    if material.solution is not None or is_water(material):
+        return "aqueous"
+    if not material.formula:
+        return None
+    try:
+        counts = element_counts(material.formula)
+    except Exception:  # noqa: BLE001 - an unreadable formula was refused at load; be safe
+        return None
+    if any(counts.get(x) for x in HALOGENS):
+        return "halogenated"
+    if counts.get("C"):
+        return "organic"
+    return None
+
+
+@dataclass(frozen=True)
+class ByProduct:
+    """A by-product of a step from its equation.
+
+    Attributes
+    ----------
+    material : str
+        Material key.
+    mol : float
+        Moles formed with the product made [mol].
+    mass_kg : float or None
+        ``mol * M`` [kg]; None without a molar mass.
+    gas : bool
+        True when the material says ``phase: gas``.
+    """
+
+    material: str
+    mol: float
+    mass_kg: float | None
+    gas: bool = False
+
+
+@dataclass(frozen=True)
+class StreamMasses:
+    """Masses of waste by stream [kg].
+
+    Attributes
+    ----------
+    aqueous_kg, organic_kg, halogenated_kg : float
+        The three streams [kg].
+    residue_kg : float
+        The rest of the waste [kg].
+    """
+
+    aqueous_kg: float = 0.0
+    organic_kg: float = 0.0
+    halogenated_kg: float = 0.0
+    residue_kg: float = 0.0
+
+    def stream(self, name: str) -> float:
+        """The mass of stream ``name`` (one of :data:`STREAMS`) [kg]."""
+        return getattr(self, f"{name}_kg")
+
+    @property
+    def total_kg(self) -> float:
+        """All of it: the three streams and the residue [kg]."""
+        return self.aqueous_kg + self.organic_kg + self.halogenated_kg + self.residue_kg
+
+    def plus(self, other: "StreamMasses") -> "StreamMasses":
+        """The sum of two [kg]."""
+        return StreamMasses(self.aqueous_kg + other.aqueous_kg, self.organic_kg + other.organic_kg,
+                            self.halogenated_kg + other.halogenated_kg, self.residue_kg + other.residue_kg)
+
+
+@dataclass(frozen=True)
+class StepWaste:
+    """What leaves one step besides its product.
+
+    Attributes
+    ----------
+    step : str
+        Step id.
+    batches : int
+        Batches of the step [-] (0 when it does not run).
+    inputs_kg : float
+        Every charge at its mass as charged [kg].
+    product_kg : float
+        Product taken on, as isolated [kg].
+    campaign : StreamMasses
+        Waste of the step over the campaign, by stream [kg].
+    per_batch : StreamMasses or None
+        The same for one batch [kg]; None for a step that does not run.
+    by_products : tuple of ByProduct
+        From the equation, in its order.
+    stream_materials : Mapping[str, tuple of str]
+        Stream -> keys of the materials sent to it, in order of addition.
+    gas_kg : float
+        By-products that leave as gas to the scrubber [kg] (part of the residue).
+    raw_kg : float
+        The raw materials among the inputs (every charge but an intermediate) [kg].
+    """
+
+    step: str
+    batches: int
+    inputs_kg: float
+    product_kg: float
+    campaign: StreamMasses
+    per_batch: StreamMasses | None
+    by_products: tuple[ByProduct, ...] = ()
+    stream_materials: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
+    gas_kg: float = 0.0
+    raw_kg: float = 0.0
+
+    @property
+    def waste_kg(self) -> float:
+        """Inputs - product taken on [kg]."""
+        return self.inputs_kg - self.product_kg
+
+    @property
+    def by_products_kg(self) -> float:
+        """By-products from the equation with a molar mass [kg]."""
+        return sum(b.mass_kg for b in self.by_products if b.mass_kg is not None)
+
+
+@dataclass(frozen=True)
+class Waste:
+    """Waste of the whole campaign.
+
+    Attributes
+    ----------
+    steps : tuple of StepWaste
+        In execution order.
+    total : StreamMasses
+        Over every step [kg].
+    inputs_kg : float
+        Raw materials charged plus intermediates taken from stock [kg].
+    product_kg : float
+        Target delivered, as isolated with overage [kg].
+    gas_kg : float
+        By-products that leave as gas to the scrubber, all steps [kg].
+    warnings : tuple of Problem
+        Steps whose by-products from the equation exceed their waste; residues below 0.
+    """
+
+    steps: tuple[StepWaste, ...]
+    total: StreamMasses
+    inputs_kg: float
+    product_kg: float
+    gas_kg: float = 0.0
+    warnings: tuple[Problem, ...] = ()
+
+    @property
+    def waste_kg(self) -> float:
+        """All waste: streams and residue [kg]."""
+        return self.total.total_kg
+
+    @property
+    def balance_error(self) -> float:
+        """``(inputs - product - waste) / inputs`` [-]; 0 when the balance holds."""
+        return (self.inputs_kg - self.product_kg - self.waste_kg) / self.inputs_kg if self.inputs_kg else 0.0
+
+    def step(self, step_id: str) -> StepWaste:
+        """The waste of step ``step_id``."""
+        return next(s for s in self.steps if s.step == step_id)
+
+
+def _is_gas(material: "Material") -> bool:
+    """True when the material says ``phase: gas``.
+
+    Hook for the phase extension (``materials.<key>.phase``): ``Material.phase`` is read
+    where the route model has it; a route model without it has no gas.
+    """
+    return getattr(material, "phase", None) == "gas"
+
+
+def by_products(route: "Route", step_id: str, product_mol: float) -> tuple[ByProduct, ...]:
+    """By-products of a step formed with ``product_mol`` of its main product.
+
+    ``n_bp = nu_bp / nu_product * product_mol`` [mol], ``m = n_bp * M`` [kg].
+
+    Parameters
+    ----------
+    route : Route
+    step_id : str
+    product_mol : float
+        Moles of main product made [mol].
+
+    Returns
+    -------
+    tuple of ByProduct
+        In the order of the equation.
+    """
+    step = route.step(step_id)
+    nu_p = step.equation.coefficient(step.product)
+    out = []
+    for t in step.equation.products:
+        if t.key == step.product:
+            continue
+        mat = route.materials[t.key]
+        n = t.coefficient / nu_p * product_mol
+        mass = None if mat.molar_mass is None else n * _in(mat.molar_mass, unit("g/mol")) / 1000.0  # g -> kg
+        out.append(ByProduct(t.key, n, mass, _is_gas(mat)))
+    return tuple(out)
+
+
+def gas_evolved_kg(items: tuple[ByProduct, ...]) -> float:
+    """Mass of the by-products that leave as gas to the scrubber [kg]."""
+    return sum((b.mass_kg for b in items if b.gas and b.mass_kg is not None), 0.0)
+
+
+def _streams(route: "Route", charges, masses) -> tuple[StreamMasses, dict[str, list[str]]]:
+    """Stream masses of ``charges``, the mass of each given in ``masses`` [kg]."""
+    mats = route.materials
+    kg = {s: 0.0 for s in STREAMS}
+    names: dict[str, list[str]] = {s: [] for s in STREAMS}
+    for c, m in zip(charges, masses):
+        if c.intermediate:
+            continue
+        mat = mats[c.material]
+        if c.role not in STREAM_ROLES and mat.stream is None:
+            continue
+        s = stream_of(mat)
+        if s is None:
+            continue
+        kg[s] += m
+        if c.material not in names[s]:
+            names[s].append(c.material)
+    return StreamMasses(kg["aqueous"], kg["organic"], kg["halogenated"]), names
+
+
+def _with_residue(streams: StreamMasses, waste: float) -> StreamMasses:
+    rest = waste - (streams.aqueous_kg + streams.organic_kg + streams.halogenated_kg)
+    return StreamMasses(streams.aqueous_kg, streams.organic_kg, streams.halogenated_kg, rest)
+
+
+def _in(q, u) -> float:
+    """Magnitude of ``q`` in unit ``u``, without a conversion where it is in ``u`` already."""
+    return float(q.magnitude) if q.units == u else float(q.m_as(u))
+
+
+def step_waste(route: "Route", sp: "StepPlan") -> StepWaste:
+    """The waste of one planned step (see the module text).
+
+    Parameters
+    ----------
+    route : Route
+    sp : StepPlan
+        The planned step, with its batches sized.
+
+    Returns
+    -------
+    StepWaste
+    """
+    masses = [c.m_kg for c in sp.charges]
+    inputs = sum(masses)
+    product = sp.product_m_kg
+    streams, names = _streams(route, sp.charges, masses)
+    per_batch = None
+    if sp.runs and sp.batch is not None and sp.batches > 0:
+        b_masses = [c.m_kg_batch for c in sp.charges]
+        b_streams, _ = _streams(route, sp.charges, b_masses)
+        per_batch = _with_residue(b_streams, sum(b_masses) - sp.batch.per_batch(sp.batch.product_m_kg))
+    items = by_products(route, sp.id, sp.product_n_mol)
+    raw = sum(m for c, m in zip(sp.charges, masses) if not c.intermediate)
+    return StepWaste(step=sp.id, batches=sp.batches if sp.runs else 0, inputs_kg=inputs, product_kg=product,
+                     raw_kg=raw,
+                     campaign=_with_residue(streams, inputs - product), per_batch=per_batch, by_products=items,
+                     stream_materials={k: tuple(v) for k, v in names.items() if v},
+                     gas_kg=gas_evolved_kg(items))
+
+
+def _warnings(route: "Route", sw: StepWaste) -> list[Problem]:
+    out = []
+    step = route.step(sw.step)
+    if sw.by_products_kg > sw.waste_kg * (1 + _SLACK) + 1e-12:
+        out.append(Problem(
+            "warning",
+            f"step {sw.step}: the by-products from its equation ({sw.by_products_kg:.4g} kg) exceed its waste "
+            f"({sw.waste_kg:.4g} kg, everything charged less the product taken on)",
+            location=step.location, step=sw.step,
+            hint="check the equation's coefficients and the step's yield"))
+    if sw.campaign.residue_kg < -_SLACK * max(sw.inputs_kg, 1e-12):
+        out.append(Problem(
+            "warning",
+            f"step {sw.step}: its solvent and work-up charges ({sw.waste_kg - sw.campaign.residue_kg:.4g} kg) "
+            f"exceed its waste ({sw.waste_kg:.4g} kg), so the residue is negative",
+            location=step.location, step=sw.step,
+            hint="a material charged as solvent or work-up is also taken up in the product; check its role"))
+    return out
+
+
+def route_waste(plan: "Plan") -> Waste:
+    """The waste of every step of a plan and of the campaign.
+
+    Parameters
+    ----------
+    plan : Plan
+        A plan with its batches sized.
+
+    Returns
+    -------
+    Waste
+        Per step and in total; ``inputs_kg`` counts raw materials and intermediates taken
+        from stock, ``product_kg`` the target delivered.
+    """
+    route = plan.route
+    steps = tuple(step_waste(route, sp) for sp in plan.steps)
+    total = StreamMasses()
+    warnings: list[Problem] = []
+    for sw in steps:
+        total = total.plus(sw.campaign)
+        if sw.batches:
+            warnings += _warnings(route, sw)
+    inputs = sum(sw.raw_kg for sw in steps)
+    inputs += sum(sp.stock_m_kg for sp in plan.steps if sp.stock_m_kg is not None)
+    return Waste(steps=steps, total=total, inputs_kg=inputs, product_kg=plan.target_kg,
+                 gas_kg=sum((sw.gas_kg for sw in steps), 0.0), warnings=tuple(warnings))
