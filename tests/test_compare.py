@@ -49,7 +49,14 @@ def _expected(plan):
     """Every ranked measure of one plan, recomputed here from its charges and totals."""
     target = plan.target_mass.m_as("kg")
     pmi = _raw_kg(plan) / target
-    no_solvent = _raw_kg(plan, lambda c, mat: c.role not in ("solvent", "workup") and mat.formula != "H2O")
+    # sEF (Roschangar, Sheldon and Senanayake, Green Chem. 2015): solvents and water out, the
+    # solute of a solution in (n x M), work-up reagents by mass in, a work-up wash by volumes out
+    def solute(c, mat):
+        return c.mol.m_as("mol") * mat.molar_mass.m_as("kg/mol") if mat.solution is not None else c.mass.m_as("kg")
+    mats = plan.route.materials
+    no_solvent = sum(solute(c, mats[c.material]) for sp in plan.steps for c in sp.charges
+                     if not c.intermediate and c.role != "solvent" and mats[c.material].formula != "H2O"
+                     and not (c.role == "workup" and c.basis == "volumes"))
     largest = max(plan.raw_materials, key=lambda r: r.mass.m_as("kg"))
     return {
         "steps": len(plan.steps),

@@ -271,7 +271,9 @@ def test_shared_intermediate_is_counted_once():
 
 def test_is_water():
     assert is_water(Material(key="pw", name="process water", formula="H2O"))
-    assert is_water(Material(key="water", name="water"))
+    # water by its formula, never by its key: renaming it changes nothing, a key alone is not water
+    assert is_water(Material(key="aqua", name="aqua", formula="H2O"))
+    assert not is_water(Material(key="water", name="water"))
     assert not is_water(Material(key="ethanol", name="ethanol", formula="C2H6O"))
     brine = Solution(density=Q(1.2, "g/mL"), mass_fraction=0.26)
     assert not is_water(Material(key="brine", name="brine", formula="H2O", solution=brine))

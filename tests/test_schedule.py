@@ -142,3 +142,4 @@ def test_terminal_shows_the_timeline(tmp_path):
     assert result.exit_code == 0
     out = result.stdout
     assert "Schedule" in out and "R250 |B1" in out and "pace is set by B3" in out
+    assert "balance: inputs" in out and "mass balance: inputs" in out

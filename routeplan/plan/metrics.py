@@ -39,13 +39,15 @@ __all__ = [
     "reaction_mass_efficiency",
     "raw_material_cost",
     "is_water",
+    "is_solvent_charge",
+    "solution_split",
     "stock_input_kg",
 ]
 
-#: Charge roles left out of the simple E-factor, besides any charge of water
-#: (Roschangar, Sheldon and Senanayake, Green Chem. 2015, 17, 752: sEF ignores solvents
-#: and water).
-SOLVENT_ROLES = ("solvent", "workup")
+#: Charge roles left out of the simple E-factor whole, besides any charge of water and a
+#: work-up charge by volumes (Roschangar, Sheldon and Senanayake, Green Chem. 2015, 17,
+#: 752: sEF ignores solvents and water).
+SOLVENT_ROLES = ("solvent",)
 
 
 def _ratio(num: float, den: float) -> float | None:
@@ -179,36 +181,67 @@ def cumulative_pmi(plan: "Plan") -> dict[str, float | None]:
 
 
 def is_water(material: "Material") -> bool:
-    """True when ``material`` is water: formula H2O, or, without a formula, key ``water``/``H2O``.
+    """True when ``material`` is water: its formula is H2O (whatever its key).
 
-    A solution is never water (its formula is the solute's).
+    A material without a formula is not taken for water from its key or name (that would
+    make a metric follow a spelling), and a solution is never water (its formula is the
+    solute's; its solvent is counted by :func:`solution_split`).
 
     Examples
     --------
     >>> from routeplan.route.model import Material
-    >>> is_water(Material(key="pw", name="process water", formula="H2O"))
+    >>> is_water(Material(key="aqua", name="process water", formula="H2O"))
     True
+    >>> is_water(Material(key="water", name="water"))
+    False
     """
-    if material.solution is not None:
+    if material.solution is not None or not material.formula:
         return False
-    if material.formula:
-        try:
-            from routeplan.chemistry.formula import element_counts
+    try:
+        from routeplan.chemistry.formula import element_counts
 
-            return element_counts(material.formula) == {"H": 2, "O": 1}
-        except Exception:  # noqa: BLE001 - an unreadable formula is not water
-            return False
-    return material.key.lower() in ("water", "h2o")
+        return element_counts(material.formula) == {"H": 2, "O": 1}
+    except Exception:  # noqa: BLE001 - an unreadable formula is not water
+        return False
+
+
+def solution_split(material: "Material", c: "ChargePlan") -> tuple[float, float]:
+    """The solute and the solvent in a charge [kg]: ``(m, 0)`` for anything but a solution.
+
+    For a solution the solute is ``n * M`` (moles of the compound times its molar mass)
+    and the solvent the rest of the charge's mass; without a molar mass the whole charge
+    is taken for solute.
+    """
+    if material.solution is None or c.n_mol is None or material.molar_mass is None:
+        return c.m_kg, 0.0
+    from routeplan.units import magnitude
+
+    solute = c.n_mol * magnitude(material.molar_mass, "kg/mol")  # [mol] * [kg/mol]
+    return solute, c.m_kg - solute
+
+
+def is_solvent_charge(material: "Material", c: "ChargePlan") -> bool:
+    """True for a charge the simple E-factor leaves out whole: a solvent or water.
+
+    A solvent is a charge of role ``solvent``, or a work-up charge measured by
+    ``volumes`` (a wash or an extraction solvent); water is any charge of water
+    (:func:`is_water`) whatever its role.  A work-up reagent charged by mass or by
+    moles (a filter aid, charcoal, a quench salt) is not a solvent and stays in.
+    """
+    if is_water(material) or c.role == "solvent":
+        return True
+    return c.role == "workup" and c.basis == "volumes"
 
 
 def simple_e_factor(plan: "Plan") -> float:
     """Simple E-factor of the route [kg/kg].
 
-    ``sEF = (mass of raw materials other than solvents and water + mass of
-    intermediates taken from stock - mass of target) / mass of target``.  Left out:
-    every charge with role ``solvent`` or ``workup`` (:data:`SOLVENT_ROLES`) and every
-    charge of water (:func:`is_water`) whatever its role.  A reagent bought as a
-    solution counts at its whole mass.
+    ``sEF = (mass of every raw material charged, solvents and water left out, + mass of
+    intermediates taken from stock - mass of target) / mass of target``.  Left out: a
+    solvent or water charge (:func:`is_solvent_charge`: role ``solvent``, a work-up
+    charge by ``volumes``, any charge of water whatever its role) and the solvent part
+    of a reagent bought as a solution (:func:`solution_split`: its solute counts as
+    reagent).  Work-up reagents (a filter aid, charcoal, a quench salt) count.
 
     Source: F. Roschangar, R. A. Sheldon and C. H. Senanayake, Green Chem. 2015, 17,
     752 (sEF leaves out solvents and water; cEF counts them all, without recycling).
@@ -222,9 +255,10 @@ def simple_e_factor(plan: "Plan") -> float:
     kept = 0.0
     for sp in plan.steps:
         for c in sp.charges:
-            if c.intermediate or c.role in SOLVENT_ROLES or is_water(materials[c.material]):
+            mat = materials[c.material]
+            if c.intermediate or is_solvent_charge(mat, c):
                 continue
-            kept += c.m_kg
+            kept += solution_split(mat, c)[0]
     shelf = stock_input_kg(plan)
     if shelf:
         kept += sum(shelf.values())

@@ -8,7 +8,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import OverallYield, RawMaterialTotal, StepPlan
     from routeplan.route.model import Route
 
-__all__ = ["raw_material_totals", "overall_yield", "downstream_factors", "stoichiometric_factor", "made_fraction"]
+__all__ = ["raw_material_totals", "overall_yield", "starting_materials", "downstream_factors", "stoichiometric_factor", "made_fraction"]
 
 
 def raw_material_totals(route: "Route", steps: "tuple[StepPlan, ...]") -> "tuple[RawMaterialTotal, ...]":
@@ -80,6 +80,19 @@ def stoichiometric_factor(route: "Route", step_id: str, material: str,
     return factor * down.get(step.product, 0.0)
 
 
+def starting_materials(route: "Route") -> frozenset[str]:
+    """The starting materials of the route: bought limiting reagents and those the route marks.
+
+    They begin a branch (the first reactant of its first step, unless the step names
+    another limiting reagent), so their atoms end up in the target; reagents, bases,
+    acids and quench salts do not, and an overall yield "from" them would be noise.  A
+    bought co-reactant whose atoms do end up in the target (an alkylating agent, say) is
+    marked in the route file with ``starting_material: true``.
+    """
+    marked = {k for k, m in route.materials.items() if m.starting_material}
+    return frozenset(s.limiting for s in route.steps if not route.is_intermediate(s.limiting)) | marked
+
+
 def linear_sequence(route: "Route") -> tuple[str, ...]:
     """The longest linear sequence (:func:`routeplan.route.graph.longest_linear_sequence`), once per route."""
     cached = route.__dict__.get("_lls")
@@ -91,7 +104,7 @@ def linear_sequence(route: "Route") -> tuple[str, ...]:
 
 
 def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: float) -> "OverallYield":
-    """Overall yield along the longest linear sequence, and from each raw reactant.
+    """Overall yield along the longest linear sequence, and from each starting material.
 
     The yield along the longest linear sequence is the product of its expected step
     yields [-]; ``low`` and ``high`` are the products of the steps' low and high yields
@@ -117,14 +130,14 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: float
         high *= step_yield.high if step_yield.high is not None else step_yield.expected
     made = made_fraction(steps) if any(sp.stock_n_mol is not None for sp in steps) else None
     down = downstream_factors(route)
+    starting = starting_materials(route)
     sum_n: dict[str, float] = {}
     sum_inv_f: dict[str, float] = {}
     n_t = n_target
     for sp in steps:
         step = route.step(sp.id)
-        reactants = {t.key for t in step.equation.reactants}
         for c in sp.charges:
-            if c.intermediate or c.material not in reactants or c.n_mol is None:
+            if c.intermediate or c.material not in starting or c.n_mol is None:
                 continue
             f = stoichiometric_factor(route, sp.id, c.material, down)
             if f > 0:

@@ -267,6 +267,7 @@ def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Mater
         key=key, name=m.name if m.name is not None else key, formula=facts.formulas.get(key, m.formula),
         smiles=m.smiles, molar_mass=facts.molar_masses.get(key), assay=m.assay if m.assay is not None else 1.0,
         density=density, solution=solution, price=m.price, hazards=tuple(m.hazards or ()), notes=m.notes,
+        starting_material=m.starting_material,
         location=pos.at(("materials", key), key=True), phase=m.phase, stream=m.stream)
 
 

@@ -107,6 +107,9 @@ class Material:
     phase : str or None
         ``"solid"``, ``"liquid"`` or ``"gas"`` where the file says; a material is a gas
         only when it says ``phase: gas``.
+    starting_material : bool
+        Marked by the route as a starting material (its atoms end up in the target),
+        besides the bought limiting reagents, which are starting materials anyway.
     stream : str or None
         Waste stream named in the route file (one of :data:`STREAMS`); None lets its
         formula decide (:mod:`routeplan.plan.waste`).
@@ -125,6 +128,7 @@ class Material:
     notes: str | None = None
     location: Location | None = None
     phase: str | None = None
+    starting_material: bool = False
     stream: str | None = None
 
 

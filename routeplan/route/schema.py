@@ -362,6 +362,9 @@ class MaterialModel(_Model):
                                      "description": "solid, liquid or gas; a product with phase gas is gas "
                                                     "evolved, a reactant with phase gas is gas taken up"})] = None
     notes: Text("free text") = None
+    starting_material: Boolean = Field(False, description="true for a bought reactant whose atoms end up in the "
+                                                          "target besides the limiting reagents (an overall yield is "
+                                                          "reported from it)")
     stream: Annotated[Any, PlainValidator(_stream),
                       WithJsonSchema({"enum": list(STREAMS),
                                       "description": "waste stream this material goes to when it leaves "

@@ -145,6 +145,8 @@ def waste_lines(plan: "Plan") -> list[str]:
         by = ", ".join(f"{b.material} {kg(b.mass_kg)}" for b in sw.by_products if b.mass_kg is not None)
         per = f"; per batch {kg(sw.per_batch.total_kg)}" if sw.per_batch is not None and sw.batches > 1 else ""
         lines.append(f"  {sw.step}: {', '.join(parts)}{per}" + (f"; by-products from the equation {by}" if by else ""))
+        lines.append(f"    balance: inputs {kg(sw.inputs_kg)} = product taken on {kg(sw.product_kg)}"
+                     f" + by-products {kg(sw.by_products_kg)} + the rest {kg(sw.waste_kg - sw.by_products_kg)}")
     lines.append(f"  mass balance: inputs {kg(w.inputs_kg)} = product {kg(w.product_kg)} + waste {kg(w.waste_kg)}")
     return lines
 
