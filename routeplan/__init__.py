@@ -28,6 +28,7 @@ __all__ = [
     "plan_route",
     "plan_to_dict",
     "plan_frame",
+    "report",
 ]
 
 #: The caution every human-facing output carries.
@@ -45,6 +46,7 @@ _LAZY = {
     "plan_route": ("routeplan.plan.planner", "plan_route"),
     "plan_to_dict": ("routeplan.export.json", "plan_to_dict"),
     "plan_frame": ("routeplan.views.tables", "charges_frame"),
+    "report": ("routeplan.export.html", "notebook_report"),
 }
 
 

@@ -9,6 +9,7 @@ a hint to rerun with ``--debug``.
 
 from __future__ import annotations
 
+import errno
 import os
 import signal
 import sys
@@ -24,7 +25,27 @@ EXIT_BROKEN_PIPE = 141  # 128 + SIGPIPE, what a shell reports for a writer whose
 
 
 def _err(text: str) -> None:
-    click.echo(text, err=True)
+    try:
+        click.echo(text, err=True)
+    except OSError:  # pragma: no cover - standard error itself cannot be written
+        pass
+
+
+#: Faults of the machine, not of routeplan, met while writing: a full disk (ENOSPC), a
+#: file-size limit (EFBIG, e.g. ``ulimit -f``), a disk quota (EDQUOT), a read-only file
+#: system (EROFS), a device error (EIO).
+_WRITE_FAULTS = {getattr(errno, name) for name in ("ENOSPC", "EFBIG", "EDQUOT", "EROFS", "EIO")
+                 if hasattr(errno, name)}
+
+
+def _write_fault(exc: OSError) -> str:
+    """One sentence for a write fault: what happened, where, and that nothing was left half written."""
+    where = f" '{exc.filename}'" if exc.filename else " (standard output or an output file)"
+    what = {errno.ENOSPC: "the disk is full", errno.EFBIG: "a file-size limit was reached"}.get(
+        exc.errno, exc.strerror or "the system refused the write")
+    return (f"cannot write{where}: {what} ({exc.strerror or os.strerror(exc.errno)}); the outputs of this run "
+            "were not moved into place, so every earlier output is as it was "
+            "(free some space or raise the limit, and run again)")
 
 
 class _Funnel(click.Group):
@@ -45,6 +66,20 @@ class _Funnel(click.Group):
             devnull = os.open(os.devnull, os.O_WRONLY)
             os.dup2(devnull, sys.stdout.fileno())
             ctx.exit(EXIT_BROKEN_PIPE)
+        except OSError as exc:
+            if exc.errno not in _WRITE_FAULTS:
+                if ctx.obj and ctx.obj.get("debug"):
+                    raise
+                _err(f"internal error: {type(exc).__name__}: {exc}")
+                _err("This is a bug in routeplan, not in your file. Rerun with --debug to see the traceback.")
+                ctx.exit(EXIT_INTERNAL)
+            _err(f"error: {_write_fault(exc)}")
+            try:  # what is still buffered for standard output cannot be written either
+                devnull = os.open(os.devnull, os.O_WRONLY)
+                os.dup2(devnull, sys.stdout.fileno())
+            except (OSError, ValueError, AttributeError):  # pragma: no cover - not a real stream
+                pass
+            ctx.exit(EXIT_BAD_INPUT)
         except KeyboardInterrupt:  # pragma: no cover - interactive
             _err("interrupted")
             ctx.exit(130)

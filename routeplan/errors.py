@@ -44,6 +44,7 @@ __all__ = [
     "RecordError",
     "OutputError",
     "CompareError",
+    "not_a_regular_file",
 ]
 
 
@@ -362,3 +363,30 @@ class OutputError(RouteplanError, OSError):
 
 class CompareError(RouteplanError, ValueError):
     """Routes that cannot be compared (different targets, fewer than two routes)."""
+
+
+def not_a_regular_file(path) -> str | None:
+    """Why ``path`` cannot be read as an input file, or None for a regular file (or one
+    that does not exist, which the caller reports).
+
+    A named pipe would block the reader until something writes to it, a device may never
+    end, a socket cannot be opened: none of them is a route or stock file.
+
+    Examples
+    --------
+    >>> not_a_regular_file("/dev/null")
+    'is a character device, not a regular file'
+    """
+    import os
+    import stat
+
+    try:
+        mode = os.stat(path).st_mode
+    except OSError:
+        return None
+    if stat.S_ISREG(mode):
+        return None
+    kind = ("a folder" if stat.S_ISDIR(mode) else "a named pipe (FIFO)" if stat.S_ISFIFO(mode)
+            else "a character device" if stat.S_ISCHR(mode) else "a block device" if stat.S_ISBLK(mode)
+            else "a socket" if stat.S_ISSOCK(mode) else "not a file")
+    return f"is {kind}, not a regular file"

@@ -45,6 +45,29 @@ DIMENSIONS: dict[str, tuple[str, str]] = {
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
 _QUANTITY_RE = re.compile(rf"^\s*(?P<num>{_NUMBER})\s*(?P<unit>.*?)\s*$")
 _DECIMAL_COMMA_RE = re.compile(r"^\s*[+-]?\d+,\d")
+# '1,000 L': a thousands separator or a decimal comma; the two readings differ 1000-fold
+_THOUSANDS_RE = re.compile(r"^\s*(?P<sign>[+-]?)(?P<head>\d{1,3})(?P<groups>(?:,\d{3})+)(?![\d.,])(?P<rest>.*)$")
+
+
+def _comma_error(text: str, where, expect: str | None = None, *, dimension: str | None = None) -> QuantityError:
+    """The error for a number written with a comma: both readings where the comma may
+    separate thousands (``1,000 L``), else the decimal point to write."""
+    m = _THOUSANDS_RE.match(text)
+    if m:
+        rest = m.group("rest").strip()
+        unit = f" {rest}" if rest else ""
+        whole = m.group("sign") + m.group("head") + m.group("groups").replace(",", "")
+        parts = m.group("groups").split(",")[1:]
+        decimal = m.group("sign") + m.group("head") + "." + "".join(parts) if len(parts) == 1 else None
+        if decimal is not None:
+            message = (f"'{text.strip()}' can be read two ways: {whole}{unit} (a thousands separator) or "
+                       f"{decimal}{unit} (a decimal comma)")
+        else:
+            message = f"'{text.strip()}' has thousands separators ({whole}{unit}?), which are not read"
+        return QuantityError(message, location=where, text=text, dimension=dimension,
+                             hint="write the amount meant without a comma")
+    return QuantityError(f"'{text}' uses a decimal comma" + (f"; expected {expect}" if expect else ""),
+                         location=where, text=text, dimension=dimension, hint=f"write '{text.replace(',', '.', 1).strip()}' with a decimal point")
 # a percent or a bare count inside a quantity would be multiplied in silently ('10 % kg')
 _NOT_IN_A_QUANTITY = re.compile(r"%|\bpercent\b|\bdimensionless\b|\bppm\b|\bppb\b")
 _TON = re.compile(r"\btons?\b")
@@ -172,11 +195,7 @@ def parse_quantity(text: Any, dimension: str, *, where: Location | None = None) 
             hint=f"write it with its unit, e.g. '{text} {example.split()[1]}'",
         )
     if _DECIMAL_COMMA_RE.match(text):
-        raise QuantityError(
-            f"'{text}' uses a decimal comma; expected {expect}",
-            location=where, text=text, dimension=dimension,
-            hint=f"write '{text.replace(',', '.', 1).strip()}' with a decimal point",
-        )
+        raise _comma_error(text, where, expect, dimension=dimension)
     m = _QUANTITY_RE.match(text)
     if not m:
         raise QuantityError(f"'{text}' is not a number followed by a unit; expected {expect}",
@@ -266,8 +285,7 @@ def parse_fraction(value: Any, *, where: Location | None = None, allow_zero: boo
                                 location=where, text=value, hint=hint)
     elif isinstance(value, str):
         if _DECIMAL_COMMA_RE.match(value):
-            raise QuantityError(f"'{value}' uses a decimal comma", location=where, text=value,
-                                hint=f"write '{value.replace(',', '.', 1).strip()}' with a decimal point")
+            raise _comma_error(value, where)
         m = _PERCENT_RE.match(value)
         if m:
             frac = float(m.group("num")) / 100.0

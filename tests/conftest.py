@@ -7,6 +7,7 @@ Use them from any test module::
 
 from __future__ import annotations
 
+import os
 from pathlib import Path
 
 import pytest
@@ -21,6 +22,13 @@ def write_route(tmp_path: Path, text: str, name: str = "route.yaml") -> Path:
     path = Path(tmp_path) / name
     path.write_text(text, encoding="utf-8")
     return path
+
+
+def missing_tool(reason: str) -> None:
+    """Skip on a developer's machine without an outside tool; under CI (CI set) fail instead."""
+    if os.environ.get("CI"):
+        pytest.fail(reason)
+    pytest.skip(reason)
 
 
 def run_cli(*args: str):
@@ -40,3 +48,13 @@ def run_cli(*args: str):
 def good_text() -> str:
     """The text of :data:`GOOD_ROUTE`."""
     return GOOD_ROUTE.read_text(encoding="utf-8")
+
+
+def run_edited(tmp_path: Path, base: str, edits, *args: str, command: str = "check"):
+    """Apply ``edits`` ((old, new) pairs) to the route text ``base``, write it, and run
+    ``routeplan COMMAND ROUTE ARGS...``; return (text, path, result)."""
+    from test_load_bad_routes import change
+
+    text = change(base, edits)
+    path = write_route(tmp_path, text)
+    return text, path, run_cli(command, path, *args)

@@ -29,7 +29,7 @@ def test_help_lists_commands_and_caution():
 def test_import_pulls_in_nothing_heavy():
     code = ("import sys, routeplan, routeplan.cli; "
             "import json; print(json.dumps(sorted(m for m in ('pint','networkx','pandas','xlsxwriter',"
-            "'openpyxl','pydantic','ruamel','numpy','rich') if m in sys.modules)))")
+            "'openpyxl','pydantic','ruamel','numpy','rich','jinja2','matplotlib','rdkit') if m in sys.modules)))")
     out = _run("-c", code)
     assert out.returncode == 0, out.stderr
     assert json.loads(out.stdout) == []

@@ -10,6 +10,8 @@ from pathlib import Path
 
 import openpyxl
 import pytest
+
+from routeplan.views.compare_text import tradeoff, tradeoff_sentence
 from click.testing import CliRunner
 
 from routeplan import CAUTION
@@ -23,7 +25,6 @@ from routeplan.plan.compare import (
     compare_plans,
     compare_routes,
     plan_for_comparison,
-    tradeoff_sentence,
 )
 from routeplan.route.load import load_route, load_route_text
 
@@ -140,8 +141,8 @@ def test_demo_tradeoff_names_the_winner(demo):
     _, cmp = demo
     winners = {cmp.labels[i] for r in cmp.rows for i in r.best}
     for label in winners:
-        assert label in cmp.tradeoff
-    assert cmp.tradeoff.endswith(".") and cmp.tradeoff.count(".") == 1
+        assert label in tradeoff(cmp)
+    assert tradeoff(cmp).endswith(".") and tradeoff(cmp).count(".") == 1
 
 
 def test_best_indices_and_ties():
@@ -233,7 +234,7 @@ def test_json_output_has_rows_best_and_caution(demo):
         assert row["best"] == [cmp.labels[i] for i in mine.best]
     largest = next(r for r in d["rows"] if r["key"] == "largest_raw_material")
     assert largest["labels"] == [p.metrics.largest_raw_material[0] for p in cmp.plans]
-    assert d["tradeoff"] == cmp.tradeoff
+    assert d["tradeoff"] == tradeoff(cmp)
     assert "CAUTION" in res.stderr
 
 
@@ -283,7 +284,7 @@ def test_unpriced_cost_is_not_ranked(tmp_path):
     row = cmp.row("cost_per_kg")
     assert row.best == () and "KI" in row.note
     assert row.labels[1] == "priced materials only"
-    assert "raw-material cost and cost of goods cannot be ranked" in cmp.tradeoff
+    assert "raw-material cost and cost of goods cannot be ranked" in tradeoff(cmp)
 
 
 def test_plans_for_different_masses_are_refused():

@@ -57,7 +57,7 @@ def test_files_written(plan, out):
     folder, paths = out
     names = [p.name for p in paths]
     assert names == ["summary.csv", "steps.csv", "charges-01-A_1_prep.csv", "charges-02-A_1_prep.csv",
-                     "charges-03-a_step_id_that_is_far_longer_than_thirty.csv", "raw-materials.csv",
+                     "charges-03-a_step_id_that_is_far_longer_than_thirty.csv", "raw-materials.csv", "purchases.csv",
                      "materials.csv", "safety.csv", "waste.csv"]
     assert sorted(p.name for p in folder.iterdir()) == sorted(names)
 

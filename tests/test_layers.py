@@ -26,11 +26,8 @@ UPPER = ("routeplan.views", "routeplan.export")
 NO_WRITER_LIBRARIES = ("routeplan.plan", "routeplan.route", "routeplan.chemistry")
 WRITER_LIBRARIES = {"rich", "xlsxwriter", "openpyxl", "jinja2"}
 
-#: Known arrows up, removed by the engine refactor (plan/compare.py is the one left; the lead
-#: is moving its rows to views/); nothing else may be added here.
-KNOWN_UP = {
-    ("routeplan.plan.compare", "routeplan.export.compare_out"),
-}
+#: Known arrows up: none are left since the engine refactor; nothing may be added here.
+KNOWN_UP: set[tuple[str, str]] = set()
 
 
 def _module_name(path: Path) -> str:

@@ -92,6 +92,11 @@ def test_every_charge_sheet_has_its_safety_block_and_the_summary_a_summary(tmp_p
         rows = {c.value: c.row for row in wb[name].iter_rows() for c in row if isinstance(c.value, str)}
         safety_row = next(r for v, r in rows.items() if v.startswith("Safety per batch"))
         assert safety_row < rows["Sign-off (fill in at the vessel)"]
+        # the sheet is protected and the block is planned text: locked, not a fill-in cell
+        assert wb[name].protection.sheet
+        block = [c for row in wb[name].iter_rows(min_row=safety_row, max_row=safety_row + 3) for c in row
+                 if isinstance(c.value, str)]
+        assert block and all(c.protection.locked for c in block)
     s2 = _texts(wb["S2"])
     assert "gas evolved: CO2" in s2
     assert any("1787 L per batch" in t and "mean rate 9.93 L/min" in t for t in s2)

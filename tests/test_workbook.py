@@ -204,7 +204,7 @@ def test_stored_charge_values_equal_the_plan(plan, book):
             assert close(cell("mass to charge [kg]"), c.mass.m_as("kg") / n)
             assert close(cell("volume to charge [L]"), None if c.volume is None else c.volume.m_as("L") / n)
             assert (cell("hazards") or "") == "; ".join(m.hazards)
-            for fill_in in ("lot number", "lot assay [%]", "actual mass charged [kg]", "checked by"):
+            for fill_in in ("lot number", "lot assay or titre", "actual mass charged [kg]", "checked by"):
                 assert cell(fill_in) is None
             checked += 1
     assert checked == sum(len(sp.charges) * sp.batches for sp in plan.steps)
@@ -266,17 +266,17 @@ def test_intermediate_in_solution_is_transferred_not_weighed(plan, book):
     assert mass.data_type == "n" and close(mass.value, c.mass.m_as("kg") / sp.batches)
     assert mass.font.i and not mass.font.b
     assert close(wv.cell(r, col["mass to charge [kg]"]).value, c.mass.m_as("kg") / sp.batches)
-    # the lot-assay cell is grey like that of the solution by molarity (HCl6M), and only recorded
-    lot = ws.cell(r, col["lot assay [%]"])
-    hcl_r = rows[[x.material for x in sp.charges].index("HCl6M")]
-    assert lot.fill.fgColor.rgb == ws.cell(hcl_r, col["lot assay [%]"]).fill.fgColor.rgb
+    # the lot-assay cell is grey like that of the solvent by volumes (acetone), and only recorded
+    lot = ws.cell(r, col["lot assay or titre"])
+    grey_r = rows[[x.material for x in sp.charges].index("acetone")]
+    assert lot.fill.fgColor.rgb == ws.cell(grey_r, col["lot assay or titre"]).fill.fgColor.rgb
     assert lot.fill.fgColor.rgb != ws.cell(rows[1], col["lot number"]).fill.fgColor.rgb  # not the fill-in green
     rules = _lot_rules(ws)
     assert rules[lot.coordinate].type in (None, "any")
     assert "no lot assay" in rules[lot.coordinate].prompt
     assert "nothing is weighed" in rules[mass.coordinate].prompt
     used = " ".join(str(x.value) for row in ws.iter_rows() for x in row if x.data_type == "f")
-    assert f"{L(col['lot assay [%]'])}{r}" not in used
+    assert f"{L(col['lot assay or titre'])}{r}" not in used
     # the acetone by volumes still follows the limiting salt's (now plain) mass cell
     acetone_r = rows[[x.material for x in sp.charges].index("acetone")]
     assert f"{L(col['mass to charge [kg]'])}{r}" in ws.cell(acetone_r, col["volume to charge [L]"]).value
@@ -294,7 +294,7 @@ def test_formulas_follow_the_design(plan, book):
     lim_r = rows[0]
     lim_mass = f"{L(col['mass to charge [kg]'])}{lim_r}"
     r, _c = by[1]  # aminophenol, limiting, molar
-    assert f"{L(col['lot assay [%]'])}{r}" in ws.cell(r, col["mass to charge [kg]"]).value
+    assert f"{L(col['lot assay or titre'])}{r}" in ws.cell(r, col["mass to charge [kg]"]).value
     for order in (2, 4, 5):  # water (volumes), charcoal (mass ratio), water (volumes)
         r, c = by[order]
         target = "volume to charge [L]" if c.basis == "volumes" else "mass to charge [kg]"
@@ -305,6 +305,12 @@ def test_formulas_follow_the_design(plan, book):
     assert f"{L(col['concentration [mol/L]'])}{r}" in last.cell(r, col["volume to charge [L]"]).value
 
 
+#: The tokens routeplan's formulas are made of, as they appear in the XML of a sheet
+#: (``&amp;`` joins text, ``&lt;`` and ``&gt;`` compare; quoted words are our own).
+ALLOWED_FORMULA = re.compile(r'^(?:[A-Z]{1,3}[0-9]+|[0-9.e+-]+|[*/(),:=]|&amp;|&lt;|&gt;|"[a-zA-Z ±%]*"'
+                             r'|IF|ISNUMBER|SUM|ABS|AND|FIXED|MAX)+$')
+
+
 def _formulas_in(path: Path) -> list[str]:
     with zipfile.ZipFile(path) as z:
         return [m for name in z.namelist() if name.startswith("xl/worksheets/sheet")
@@ -313,9 +319,10 @@ def _formulas_in(path: Path) -> list[str]:
 
 def test_only_our_formulas_are_in_the_file(book):
     """Every <f> element of the package is one of routeplan's arithmetic formulas: cell
-    references, numbers, * and /, IF, ISNUMBER and SUM (Office Open XML, ECMA-376 Part 1:
-    a cell's formula is held in its <f> element; from memory)."""
-    allowed = re.compile(r"^(?:[A-Z]{1,3}[0-9]+|[0-9.e+-]+|[*/(),:]|IF|ISNUMBER|SUM)+$")
+    references, numbers, * and /, comparisons, IF, ISNUMBER, SUM, ABS, AND, FIXED and the
+    joining of short quoted words (Office Open XML, ECMA-376 Part 1: a cell's formula is
+    held in its <f> element; from memory)."""
+    allowed = ALLOWED_FORMULA
     formulas = _formulas_in(book.path)
     assert formulas
     for f in formulas:
@@ -437,7 +444,7 @@ def test_print_setup_panes_formats(plan, book):
             assert width >= longest_word, (name, heading, width)
         r = rows[0]
         assert "%" in ws.cell(r, col["assay [%]"]).number_format
-        assert "%" in ws.cell(r, col["lot assay [%]"]).number_format
+        assert "%" in ws.cell(r, col["lot assay or titre"]).number_format
         assert re.fullmatch(r"#,##0\.0+", ws.cell(r, col["mass to charge [kg]"]).number_format)
 
 
@@ -449,15 +456,17 @@ def test_lot_assay_cells_accept_only_a_fraction(plan, book):
     for sp, _k, name in charge_sheet_names(plan):
         ws = book.f[name]
         _h, col, rows = charge_table(ws)
-        lot = openpyxl.utils.get_column_letter(col["lot assay [%]"])
+        lot = openpyxl.utils.get_column_letter(col["lot assay or titre"])
         rules = _lot_rules(ws)
         for r, c in zip(rows, sp.charges):
             dv = rules[f"{lot}{r}"]
             sol = plan.route.materials[c.material].solution
-            asked = c.equiv is not None and c.carried_from is None and not (sol and sol.molarity is not None)
+            asked = c.equiv is not None and c.carried_from is None
+            titre = sol is not None and sol.molarity is not None
             if asked:
                 assert dv.type == "decimal" and dv.operator in (None, "between")  # "between" is the default
-                assert float(dv.formula1) > 0 and float(dv.formula2) == 1
+                # an assay is a fraction up to 1; a titre a concentration up to 60 mol/L
+                assert float(dv.formula1) > 0 and float(dv.formula2) == (60.0 if titre else 1)
             else:
                 assert dv.type is None or dv.type == "any", (name, c.material)  # recorded only
             kinds.add(asked)

@@ -20,9 +20,8 @@ from routeplan import CAUTION
 from routeplan.export.workbook import MAX_BATCH_SHEETS, charge_sheet_names, write_workbook
 from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
-from routeplan.views.safety_text import sheet_safety_pairs
 from test_workbook import ROUTE_NAME, ROUTE_TEXT, WRITTEN, charge_table, close, header_value, make_plan
-from test_workbook_summary import table
+from test_workbook_summary import last_labelled_row, table
 
 
 def plan_with_batches(n: int):
@@ -99,8 +98,7 @@ def test_many_batches_share_one_sheet(tmp_path, n):
     labels = [ws.cell(r, 1).value for r in range(rows[-1] + 1, ws.max_row + 1)]
     assert f"batch number (1 to {n})" in labels
     area = book.f[shared].print_area.split("!")[1].replace("$", "")
-    safety = len(sheet_safety_pairs(sp)) + 2  # the safety block between the table and the sign-off
-    assert area.endswith(str(rows[-1] + 8 + safety))
+    assert area.endswith(str(last_labelled_row(ws, "remarks")))
     # the Summary's steps table says one sheet stands for every batch
     summary = book.v["Summary"]
     _h, scol, srows = table(summary, "step", "name")

@@ -24,8 +24,7 @@ from routeplan.export.workbook_styles import px_width, sheet_title
 from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 from routeplan.units import Q
-from routeplan.views.safety_text import sheet_safety_pairs
-from test_workbook import ROUTE_NAME, ROUTE_TEXT, WRITTEN, charge_table, close, make_plan
+from test_workbook import ALLOWED_FORMULA, ROUTE_NAME, ROUTE_TEXT, WRITTEN, charge_table, close, make_plan
 
 #: Stock on hand for :data:`test_workbook.ROUTE_TEXT` (invented numbers): enough
 #: aminophenol and acetone, too little ethyl bromoacetate (it limits the target) and
@@ -80,6 +79,11 @@ def stock_table(ws):
     """The stock table of a Summary sheet (the raw-material table has the same first
     headings, so it is told apart by ``need [kg]``)."""
     return next(t for t in tables(ws, "key", "material") if "need [kg]" in t[1])
+
+
+def last_labelled_row(ws, label: str) -> int:
+    """The 1-based row whose column A says ``label`` (the last such row)."""
+    return max(r for r in range(1, ws.max_row + 1) if ws.cell(r, 1).value == label)
 
 
 def column_widths(ws) -> dict[int, float]:
@@ -171,24 +175,43 @@ def test_step_metric_columns_equal_plan_metrics(plan, book):
     ws, m = book.v["Summary"], plan.metrics
     _h, col, rows = table(ws, "step", "name")
     assert len(rows) == len(plan.steps)
+    assert "step PMI [kg/kg]" not in col and "cumulative PMI [kg/kg]" not in col  # not a grid of PMIs
     for r, sp in zip(rows, plan.steps):
         assert ws.cell(r, col["step"]).value == sp.id
-        assert close(ws.cell(r, col["step PMI [kg/kg]"]).value, m.pmi_by_step[sp.id])
-        assert close(ws.cell(r, col["cumulative PMI [kg/kg]"]).value, m.pmi_cumulative_by_step[sp.id])
         assert close(ws.cell(r, col["atom economy [%]"]).value, m.atom_economy_by_step[sp.id])
         assert close(ws.cell(r, col["reaction mass efficiency [%]"]).value,
                      m.reaction_mass_efficiency_by_step[sp.id])
         assert "%" in ws.cell(r, col["atom economy [%]"]).number_format
-    # the cumulative PMI of the step that makes the target is the route PMI
-    assert close(ws.cell(rows[-1], col["cumulative PMI [kg/kg]"]).value, m.pmi)
+
+
+def test_mass_intensity_by_material_and_per_step_line(plan, book):
+    """The mass intensity in our layout: kg per kg of target by input, adding up to the
+    route PMI (a law: the route PMI is the sum over inputs), and one line per step with
+    its step PMI and cumulative PMI in words."""
+    ws, m = book.v["Summary"], plan.metrics
+    _h, col, rows = table(ws, "key", "input")
+    values = {ws.cell(r, 1).value: ws.cell(r, col["per kg of target [kg/kg]"]).value for r in rows}
+    for key, value in m.mass_per_kg_target.items():
+        assert close(values[key], value), key
+    total_r = rows[-1] + 1
+    assert ws.cell(total_r, 2).value == "route PMI (all inputs)"
+    total = ws.cell(total_r, col["per kg of target [kg/kg]"]).value
+    assert close(total, m.pmi)
+    assert close(sum(values.values()), m.pmi, rel=1e-9)
+    shares = [ws.cell(r, col["share of the route PMI [%]"]).value for r in rows]
+    assert close(sum(shares), 1.0, rel=1e-9)
+    texts = [c.value for row in ws.iter_rows() for c in row if isinstance(c.value, str)]
+    for sp in plan.steps:
+        line = next(t for t in texts if t.startswith(f"{sp.id} (") or t.startswith(f"{sp.id}:"))
+        assert f"{m.pmi_by_step[sp.id]:.4g} kg of inputs per kg of {sp.product}" in line
+        assert f"{m.pmi_cumulative_by_step[sp.id]:.4g} kg of raw materials up to and including it" in line
 
 
 def test_without_metrics_the_workbook_is_still_written(plan, tmp_path):
     b = _write(replace(plan, metrics=None), tmp_path, "no-metrics.xlsx")
     ws = b.v["Summary"]
     assert not has_label(ws, "process mass intensity, route [kg/kg]")
-    _h, col, rows = table(ws, "step", "name")
-    assert all(ws.cell(r, col["step PMI [kg/kg]"]).value is None for r in rows)
+    assert not any(t[0] for t in tables(ws, "key", "input"))
 
 
 # --- stock ----------------------------------------------------------------------------
@@ -232,7 +255,7 @@ def test_stock_formulas_are_only_ours(stock_book):
     """Every formula of the stock workbook is arithmetic on cells (now with MAX)."""
     import zipfile
 
-    allowed = re.compile(r"^(?:[A-Z]{1,3}[0-9]+|[0-9.e+-]+|[*/(),:]|IF|ISNUMBER|SUM|MAX)+$")
+    allowed = ALLOWED_FORMULA
     with zipfile.ZipFile(stock_book.path) as z:
         formulas = [m for name in z.namelist() if name.startswith("xl/worksheets/sheet")
                     for m in re.findall(r"<f>(.*?)</f>", z.read(name).decode("utf-8"))]
@@ -273,8 +296,7 @@ def test_charge_sheets_print_the_plant_columns_readably(plan, book):
         h, col, rows = charge_table(ws)
         last_letter = openpyxl.utils.get_column_letter(len(printed))
         area = ws.print_area.split("!")[1].replace("$", "")
-        safety = len(sheet_safety_pairs(sp)) + 2  # the safety block between the table and the sign-off
-        assert area == f"A1:{last_letter}{rows[-1] + 7 + safety}"  # down to the sign-off block
+        assert area == f"A1:{last_letter}{last_labelled_row(ws, 'remarks')}"  # down to the sign-off block
         assert [ws.cell(h, c).value for c in range(1, len(printed) + 1)] == printed
         assert [ws.cell(h, c).value for c in range(len(printed) + 1, len(printed) + 1 + len(reference))] == reference
         assert ws.page_setup.orientation == "landscape"
@@ -328,8 +350,10 @@ def test_every_percentage_has_one_number_format(stock_plan, stock_book):
     for _sp, _k, name in charge_sheet_names(stock_plan):
         sheet = wb[name]
         _h, ccol, crows = charge_table(sheet)
-        for r in crows:
+        for r, c in zip(crows, _sp.charges):
             assert sheet.cell(r, ccol["assay [%]"]).number_format == "0.0%"
-            assert sheet.cell(r, ccol["lot assay [%]"]).number_format == "0.0%"
+            sol = stock_plan.route.materials[c.material].solution
+            titre = sol is not None and sol.molarity is not None and c.equiv is not None
+            assert sheet.cell(r, ccol["lot assay or titre"]).number_format == ('0.000" mol/L"' if titre else "0.0%")
         assert sheet.cell(*_where(stock_book.v[name], "yield (expected) [%]")).number_format == "0.0%"
 

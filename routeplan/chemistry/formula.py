@@ -8,6 +8,7 @@ Grammar (whitespace between tokens is ignored, but never inside a number)::
     SEP      := "·" | "." | "*"           (also "•", "∙", "⋅")
     count    := 12 | 0.5 | 1.5            (positive; integer or decimal)
     charge   := "-2" | "+3" | "+" | "--" | "^2-" | "^-2" | " 2-" (at the end)
+              | "4-" right after a closing "]" at the end ("[Fe(CN)6]4-")
 
 ``CuSO4·5H2O``, ``CuSO4.5H2O`` and ``CuSO4*5H2O`` are copper sulfate pentahydrate;
 ``CaSO4·0.5H2O``, ``CaSO4*0.5H2O`` and ``CaSO4.0.5H2O`` the hemihydrate.  As the route
@@ -17,6 +18,13 @@ below 1 (``Fe0.95O``), at the end of a part (``C2H4.5``), or followed by a space
 (``Li1.2 Mn0.54O2``).  A dot that could be read either way (``C1.5.3H2O``) is an error.
 A formula that begins with a count (``2H2O``) is an error, never read as a hydrate or an
 isotope.  Unicode subscript digits and the minus sign U+2212 are read as digits and ``-``.
+
+Three slips are refused rather than read: a count of two or more digits followed by one
+sign at the end (``SO42-``: ``O4`` with charge 2−, or ``O42`` with charge 1−?) shows both
+readings; a count with a leading zero (``N03``) is taken for a zero typed in place of the
+letter O; and a count above :data:`MAX_COUNT`, or an element summed above it, is no real
+compound.  Digits and a sign right after a closing square bracket at the end are the
+charge of the bracketed ion (``[SO4]2-`` is sulfate, ``[Co(NH3)6]3+`` hexaamminecobalt(III)).
 
 Molar masses use the standard atomic weights of :mod:`routeplan.chemistry.elements`; the
 mass of the electrons gained or lost by an ion is neglected (5.5e-4 g/mol per charge).
@@ -45,6 +53,7 @@ if TYPE_CHECKING:  # pragma: no cover
     import pint
 
 __all__ = [
+    "MAX_COUNT",
     "Formula",
     "parse_formula",
     "element_counts",
@@ -74,6 +83,19 @@ _CHARGE_PATTERNS = (
     re.compile(r"(?P<sign>[+-])(?P<n>[0-9]+)\s*"),           # -2   +3
     re.compile(r"(?P<signs>\++|-+)\s*"),                  # +    --   +++
 )
+#: Digits and one or more signs up to the end: the charge of a bracketed ion after ``]``.
+_BRACKET_CHARGE = re.compile(r"(?P<n>[0-9]+)\s*(?P<sign>[+-])\s*$")
+#: A count of two or more digits followed by a single sign up to the end (``SO42-``).
+_AMBIGUOUS_CHARGE = re.compile(r"(?P<n>[0-9]+[1-9])(?P<sign>[+-])\s*$")
+
+#: Largest number of atoms of one element a formula may hold [-].  The largest molecules
+#: with a known formula, proteins such as titin, hold some 170 000 carbon atoms (from
+#: memory); a million is far beyond any compound a route charges (common practice, no
+#: source), and a count beyond it is a typo.
+MAX_COUNT = 1_000_000
+#: Longest count read [digits]; anything longer is refused before it is converted.
+_MAX_DIGITS = len(str(MAX_COUNT)) + 6
+
 _SPACED_CHARGE = re.compile(r"(?P<n>[0-9]+)\s*(?P<sign>[+-])\s*")  # " 2-" after a space
 
 
@@ -116,10 +138,12 @@ class _Parser:
         self.n = len(self.s)
         self.i = 0
         self.last_symbol: tuple[str, int] | None = None
+        self.charge_at: int | None = None  # where a charge after a closing ']' begins
 
     # -- errors -----------------------------------------------------------------
     def fail(self, what: str, token: str, pos: int, hint: str | None = None) -> FormulaError:
-        return FormulaError(f"formula '{self.text}': {what}", formula=self.text, token=token,
+        shown = self.text if len(self.text) <= 60 else f"{self.text[:40]}…({len(self.text)} characters)"
+        return FormulaError(f"formula '{shown}': {what}", formula=self.text, token=token,
                             position=pos + 1, hint=hint)
 
     # -- scanning helpers -----------------------------------------------------------
@@ -198,6 +222,8 @@ class _Parser:
             if end + 1 < self.n and self.s[end] == "." and self.s[end + 1] in _DIGITS:
                 end = self.digits(end + 1)
             tok = self.s[start:end]
+            if not first:
+                self.check_count(start, self.digits(start), multiplier=True)
             if first:
                 raise self.fail(
                     f"formula begins with a count '{tok}' at position {start + 1}", tok, start,
@@ -242,7 +268,10 @@ class _Parser:
                 at = self.i
                 self.i += 1
                 inner = self.parse_items(")" if c == "(" else "]", at)
-                k = self.read_count()
+                if c == "[" and _BRACKET_CHARGE.match(self.s, self.i):
+                    self.charge_at, k = self.i, Fraction(1)
+                else:
+                    k = self.read_count()
                 for sym, v in inner.items():
                     counts[sym] = counts.get(sym, 0) + v * k
             elif c in ")]":
@@ -259,6 +288,8 @@ class _Parser:
                 return counts
             elif c in _DIGITS:
                 tok = self.s[self.i:self.digits(self.i)]
+                if self.i == self.charge_at and closer is None:
+                    return counts        # '[SO4]2-': the digits are the charge; the caller reads it
                 if before_ws != self.i and closer is None:
                     self.i = before_ws   # maybe a charge written after a space: the caller decides
                     return counts
@@ -322,6 +353,7 @@ class _Parser:
             return Fraction(1)
         end = self.digits(start)
         whole = self.s[start:end]
+        self.check_count(start, end)
         if end + 1 < self.n and self.s[end] == "." and self.s[end + 1] in _DIGITS:
             frac_end = self.digits(end + 1)
             frac = self.s[end + 1:frac_end]
@@ -345,6 +377,34 @@ class _Parser:
                             "leave the element out instead")
         self.i = end
         return value
+
+    def check_count(self, start: int, end: int, *, multiplier: bool = False) -> None:
+        """Refuse the count ``s[start:end]`` (whole digits after an element or a bracket)
+        where it is too large, starts with a zero, or may hold the charge."""
+        whole = self.s[start:end]
+        decimal = end + 1 < self.n and self.s[end] == "." and self.s[end + 1] in _DIGITS
+        if len(whole) > _MAX_DIGITS or int(whole) > MAX_COUNT:
+            shown = whole if len(whole) <= 12 else f"{whole[:6]}…({len(whole)} digits)"
+            raise self.fail(f"count '{shown}' at position {start + 1} is beyond any real compound "
+                            f"(more than {MAX_COUNT:,} atoms)", shown, start,
+                            "check the digits of the formula")
+        if len(whole) > 1 and whole[0] == "0" and not decimal:
+            if multiplier:
+                raise self.fail(f"count '{whole}' at position {start + 1} starts with a zero", whole, start,
+                                f"write it as {int(whole)}")
+            fixed = self.text[:start] + whole.replace("0", "O", 1) + self.text[end:]
+            raise self.fail(f"count '{whole}' at position {start + 1} starts with a zero", whole, start,
+                            f"a count never does: was the letter O meant, as in '{fixed}'?")
+        m = _AMBIGUOUS_CHARGE.match(self.s, start)
+        if m and not decimal:
+            n, sign = m.group("n"), m.group("sign")
+            word = "−" if sign == "-" else "+"
+            head = self.text[:start]
+            raise self.fail(
+                f"'{n}{sign}' at position {start + 1} can be read two ways: count {n[:-1]} with charge "
+                f"{n[-1]}{word}, or count {n} with charge 1{word}", n + sign, start,
+                f"write '{head}{n[:-1]}^{n[-1]}{sign}' (or '[{head}{n[:-1]}]{n[-1]}{sign}') for the first, "
+                f"'{head}{n}^{sign}' for the second")
 
     def parse_charge(self) -> int:
         at = self.i
@@ -391,6 +451,11 @@ def _number(x: Fraction) -> Number:
 
 
 def _make(counts: Mapping[str, Fraction], charge: int, text: str) -> Formula:
+    for sym, k in counts.items():
+        if k > MAX_COUNT:
+            raise FormulaError(f"formula '{text}' holds {float(k):.4g} atoms of {sym}, beyond any real "
+                               f"compound (more than {MAX_COUNT:,})", formula=text, token=sym,
+                               position=_position_of(sym, text), hint="check the counts and the brackets")
     has_c = "C" in counts
     ordered = sorted(counts, key=lambda s: hill_sort_key(s, has_c))
     return Formula(MappingProxyType({s: _number(counts[s]) for s in ordered}), charge, text)
@@ -561,7 +626,9 @@ def hill_formula(counts: Mapping[str, Number], charge: int = 0) -> str:
     counts : Mapping[str, int | float]
         Element symbol -> atoms [-]; zero counts are left out.
     charge : int
-        Net charge [-], written at the end as ``+``, ``-``, ``+2``, ``-2``.
+        Net charge [-], written at the end as ``+``, ``-``, ``+2``, ``-2`` (a charge of
+        one after a count of two or more digits as ``^+``, ``^-``, so ``Ag12^+`` is not read
+        as ``Ag1`` with charge 2+).
 
     Returns
     -------
@@ -593,5 +660,11 @@ def hill_formula(counts: Mapping[str, Number], charge: int = 0) -> str:
         if "." in text and float(k) >= 1 and idx + 1 < len(items):
             out.append(" ")
     if charge:
-        out.append(("+" if charge > 0 else "-") + (str(abs(charge)) if abs(charge) != 1 else ""))
+        sign = "+" if charge > 0 else "-"
+        if abs(charge) != 1:
+            out.append(sign + str(abs(charge)))
+        elif out and re.search(r"[0-9]{2}$", out[-1]):
+            out.append("^" + sign)  # 'Ag12^+': 'Ag12+' could be read as Ag1 with charge 2+
+        else:
+            out.append(sign)
     return "".join(out)

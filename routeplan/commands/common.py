@@ -35,12 +35,56 @@ def write_text_output(text: str, dest: str) -> None:
     echo_err(f"wrote {dest}")
 
 
+class _Outputs:
+    """The outputs of one command: files and folders through an
+    :class:`~routeplan.export.atomic.OutputSet`, standard output (``-``) held back until
+    every file is in place, so that a failure leaves nothing half written anywhere."""
+
+    def __init__(self) -> None:
+        from routeplan.export.atomic import OutputSet
+
+        self.files = OutputSet()
+        self.stdout: list[str] = []
+
+    def text(self, dest: str, text: str) -> None:
+        if dest == "-":
+            self.stdout.append(text)
+        else:
+            self.files.text(dest, text)
+
+    def file(self, dest: str, *, suffix: str = ""):
+        return self.files.file(dest, suffix=suffix)
+
+    def folder(self, dest: str):
+        return self.files.folder(dest)
+
+    def __enter__(self) -> "_Outputs":
+        return self
+
+    def __exit__(self, kind, exc, tb) -> None:
+        self.files.__exit__(kind, exc, tb)
+
+
+def output_set() -> _Outputs:
+    """A new set of outputs for one command (see :class:`_Outputs`)."""
+    return _Outputs()
+
+
+def finish_outputs(out: _Outputs) -> None:
+    """Say what was written (standard error), then write what goes to standard output."""
+    for line in out.files.report:
+        echo_err(line)
+    for text in out.stdout:
+        click.echo(text, nl=False)
+
+
 def check_output_paths(*, json_out: str | None = None, xlsx_out: str | None = None,
-                       csv_dir: str | None = None) -> None:
+                       csv_dir: str | None = None, html_out: str | None = None) -> None:
     """Refuse an output path that cannot work, before anything is computed or written.
 
-    Each output is written atomically on its own; checking every path first means a
-    mistake in the last one does not leave the first ones written.
+    Every output is then written to a temporary file and moved into place only when all
+    are complete (:func:`output_set`); checking every path first means a mistake in the
+    last one is found before anything is computed.
 
     Raises
     ------
@@ -74,6 +118,11 @@ def check_output_paths(*, json_out: str | None = None, xlsx_out: str | None = No
         if file_target("--xlsx", xlsx_out).suffix.lower() != ".xlsx":
             raise OutputError(f"'{xlsx_out}' does not end in .xlsx", location=Location(key="--xlsx"),
                               hint="a workbook is written as FILE.xlsx, so spreadsheets open it as one")
+    if html_out is not None:
+        if html_out == "-":
+            raise OutputError("the report cannot go to standard output", location=Location(key="--html"),
+                              hint="give a file name ending in .html")
+        file_target("--html", html_out)
     if csv_dir is not None:
         if not csv_dir.strip():
             raise OutputError("needs a folder name", location=Location(key="--csv"))

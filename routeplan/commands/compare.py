@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
-                                       echo_warnings, write_text_output)
+                                       echo_warnings, finish_outputs, output_set)
 from routeplan.vocab import YieldCase
 
 
@@ -18,6 +18,8 @@ from routeplan.vocab import YieldCase
               help="Write the comparison as JSON to FILE ('-' for standard output).")
 @click.option("--xlsx", "xlsx_out", metavar="FILE",
               help="Write the comparison as a workbook to FILE.")
+@click.option("--html", "html_out", metavar="FILE",
+              help="Write the comparison as one self-contained HTML page (schemes side by side) to FILE.")
 @click.option("--yields", "yields", type=click.Choice([str(y) for y in YieldCase]), default=str(YieldCase.EXPECTED),
               show_default=True, help="Which yield of each step every route is planned with.")
 @click.option("--confidence", "confidence", metavar="PERCENT",
@@ -26,8 +28,8 @@ from routeplan.vocab import YieldCase
 @click.option("--draws", "draws", type=int, metavar="N", help="Number of yield draws with --confidence (default 100000).")
 @click.option("--seed", "seed", type=int, metavar="S", help="Seed of the yield draws with --confidence (default 1).")
 def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | None,
-                xlsx_out: str | None, yields: str, confidence: str | None, draws: int | None,
-                seed: int | None) -> None:
+                xlsx_out: str | None, html_out: str | None, yields: str, confidence: str | None,
+                draws: int | None, seed: int | None) -> None:
     """Compare two or more ROUTES to the same target, side by side.
 
     Every route is planned for the same mass of target: --target if given, else the
@@ -48,7 +50,7 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
     from routeplan.route.load import load_route
     from routeplan.units import parse_quantity
 
-    check_output_paths(json_out=json_out, xlsx_out=xlsx_out)
+    check_output_paths(json_out=json_out, xlsx_out=xlsx_out, html_out=html_out)
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
@@ -61,15 +63,20 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
         echo_warnings([p if p.location is not None and p.location.file
                        else p.__class__(p.severity, f"{label}: {p.message}", p.location, p.step, p.hint)
                        for p in plan.warnings])
-    if json_out is not None:
-        from routeplan.export.compare_out import comparison_to_json
+    with output_set() as out:  # every output complete before any is moved into place
+        if json_out is not None:
+            from routeplan.export.compare_out import comparison_to_json
 
-        write_text_output(comparison_to_json(cmp), json_out)
-    if xlsx_out is not None:
-        from routeplan.export.compare_out import write_comparison_xlsx
+            out.text(json_out, comparison_to_json(cmp))
+        if xlsx_out is not None:
+            from routeplan.export.compare_out import write_comparison_xlsx
 
-        write_comparison_xlsx(cmp, xlsx_out)
-        echo_err(f"wrote {xlsx_out}")
+            write_comparison_xlsx(cmp, out.file(xlsx_out, suffix=".xlsx"))
+        if html_out is not None:
+            from routeplan.export.html import write_compare_html
+
+            write_compare_html(cmp, out.file(html_out, suffix=".html"))
+    finish_outputs(out)
     if json_out == "-":
         echo_err(caution_line())
     else:

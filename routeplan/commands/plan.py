@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
-                                       echo_warnings, write_text_output)
+                                       echo_warnings, finish_outputs, output_set)
 from routeplan.vocab import YieldCase
 
 
@@ -19,6 +19,8 @@ from routeplan.vocab import YieldCase
               help="Write charge sheets (a workbook with live formulas) to FILE.")
 @click.option("--csv", "csv_dir", metavar="DIR",
               help="Write the plan's tables as CSV files into folder DIR (made if missing).")
+@click.option("--html", "html_out", metavar="FILE",
+              help="Write the campaign report (one self-contained HTML page: scheme, tables, charts) to FILE.")
 @click.option("--stock", "stock_file", metavar="FILE",
               help="Stock on hand (YAML, CSV or xlsx: material, amount, unit): say what it allows and what to buy.")
 @click.option("--yields", "yields", type=click.Choice([str(y) for y in YieldCase]), default=str(YieldCase.EXPECTED),
@@ -41,7 +43,8 @@ from routeplan.vocab import YieldCase
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
-             csv_dir: str | None, stock_file: str | None, yields: str, confidence: str | None, draws: int | None,
+             csv_dir: str | None, html_out: str | None, stock_file: str | None, yields: str,
+             confidence: str | None, draws: int | None,
              seed: int | None, record_file: str | None, record_yields: str, strict: bool,
              quiet: bool) -> None:
     """Plan every charge of every step of ROUTE for the target mass.
@@ -55,7 +58,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     from routeplan.route.load import load_route
     from routeplan.units import parse_quantity
 
-    check_output_paths(json_out=json_out, xlsx_out=xlsx_out, csv_dir=csv_dir)
+    check_output_paths(json_out=json_out, xlsx_out=xlsx_out, csv_dir=csv_dir, html_out=html_out)
     if record_yields != "expected" and record_file is None:
         raise click.UsageError("--record-yields applies to a campaign record; give --record FILE too")
     amount = None
@@ -70,20 +73,24 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
         n = len(plan.warnings)
         echo_err(f"{route}: {n} warning{'s' if n != 1 else ''}, counted as errors under --strict; nothing written")
         raise click.exceptions.Exit(2)
-    if json_out is not None:
-        from routeplan.export.json import plan_to_json
+    with output_set() as out:  # every output complete before any is moved into place
+        if json_out is not None:
+            from routeplan.export.json import plan_to_json
 
-        write_text_output(plan_to_json(plan), json_out)
-    if xlsx_out is not None:
-        from routeplan.export.workbook import write_workbook
+            out.text(json_out, plan_to_json(plan))
+        if xlsx_out is not None:
+            from routeplan.export.workbook import write_workbook
 
-        write_workbook(plan, xlsx_out)
-        echo_err(f"wrote {xlsx_out}")
-    if csv_dir is not None:
-        from routeplan.export.csv import write_csv
+            write_workbook(plan, out.file(xlsx_out, suffix=".xlsx"))
+        if html_out is not None:
+            from routeplan.export.html import write_plan_html
 
-        for path in write_csv(plan, csv_dir):
-            echo_err(f"wrote {path}")
+            write_plan_html(plan, out.file(html_out, suffix=".html"))
+        if csv_dir is not None:
+            from routeplan.export.csv import write_csv
+
+            write_csv(plan, out.folder(csv_dir))
+    finish_outputs(out)
     if json_out == "-" or quiet:
         echo_warnings(plan.warnings)
         echo_err(caution_line())

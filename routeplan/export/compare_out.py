@@ -10,6 +10,7 @@ from __future__ import annotations
 import json
 from typing import TYPE_CHECKING, Any
 
+from routeplan.views.compare_text import tradeoff
 from routeplan.views.tables import display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -110,7 +111,7 @@ def comparison_to_dict(cmp: "Comparison") -> dict[str, Any]:
         "routes": routes,
         "currency": cmp.currency,
         "rows": [_row_dict(cmp, r) for r in cmp.rows],
-        "tradeoff": cmp.tradeoff,
+        "tradeoff": tradeoff(cmp),
         "notes": list(cmp.notes),
         "metrics": [p.metrics.to_dict() for p in cmp.plans],
         "caution": CAUTION,
@@ -164,7 +165,7 @@ def print_comparison(cmp: "Comparison", *, console: "Console | None" = None) -> 
     for note in cmp.notes:
         con.print(f"note: {escape(note)}")
     con.print()
-    con.print(f"[bold]Trade-off[/bold]: {escape(cmp.tradeoff)}")
+    con.print(f"[bold]Trade-off[/bold]: {escape(tradeoff(cmp))}")
     con.print()
     con.print(f"[bold]CAUTION[/bold]: {escape(CAUTION)}")
 
@@ -198,55 +199,81 @@ def write_comparison_xlsx(cmp: "Comparison", path) -> None:
             wb.close()
 
 
+#: Column widths of the comparison sheet [character units]: measure, unit, better, one
+#: per route, best.  With up to four routes they add up to about 1,000 px, so the sheet
+#: fitted to one landscape page wide prints at 90 % or more on Letter.
+_COMPARE_WIDTHS = (34, 9, 9, 20, 24)
+
+
 def _fill_sheet(wb, cmp: "Comparison", caution: str) -> None:
+    """The comparison sheet: printed landscape, fitted to one page wide, its headings
+    and long texts wrapped in rows tall enough to show them whole."""
+    from routeplan.export.workbook_styles import lines_height, wrapped_lines
+
     ws = wb.add_worksheet("comparison")
-    bold = wb.add_format({"bold": True})
+    bold = wb.add_format({"bold": True, "valign": "top"})
     head = wb.add_format({"bold": True, "bottom": 1, "text_wrap": True, "valign": "top"})
     wrap = wb.add_format({"text_wrap": True, "valign": "top"})
-    dim = wb.add_format({"italic": True, "font_color": "#555555"})
-    plain = {k: wb.add_format({"num_format": f}) for k, f in _NUMBER_FORMATS.items()}
-    best = {k: wb.add_format({"num_format": f, "bold": True, "bg_color": "#D5EDD0"})
+    dim = wb.add_format({"italic": True, "font_color": "#555555", "text_wrap": True, "valign": "top"})
+    plain = {k: wb.add_format({"num_format": f, "valign": "top"}) for k, f in _NUMBER_FORMATS.items()}
+    best = {k: wb.add_format({"num_format": f, "bold": True, "bg_color": "#D5EDD0", "valign": "top"})
             for k, f in _NUMBER_FORMATS.items()}
     n = len(cmp.labels)
+    last = 3 + n
+    w_measure, w_unit, w_better, w_route, w_best = _COMPARE_WIDTHS
+    widths = [w_measure, w_unit, w_better] + [w_route] * n + [w_best]
+    for c, w in enumerate(widths):
+        ws.set_column(c, c, w)
+
+    def fit(r: int, cells: dict[int, tuple[str, int]], *, is_bold: bool = False) -> None:
+        """Raise row ``r`` to the most lines any text wraps to (column -> (text, last column))."""
+        lines = max((wrapped_lines(t, sum(widths[a:b + 1]), bold=is_bold, columns=b - a + 1)
+                     for a, (t, b) in cells.items()), default=1)
+        if lines > 1:
+            ws.set_row(r, lines_height(lines))
+
     ws.write_string(0, 0, f"Routes to {cmp.target_material}, each planned for {cmp.amount:.6g} kg "
                           "(before overage)", bold)
-    ws.merge_range(1, 0, 1, 3 + n, "", wrap)
+    ws.merge_range(1, 0, 1, last, "", wrap)
     ws.write_string(1, 0, "CAUTION: " + caution, wrap)
-    ws.set_row(1, 32)
+    fit(1, {0: ("CAUTION: " + caution, last)})
     r = 3
     headings = ["measure", "unit", "better"] + list(cmp.labels) + ["best"]
     for c, h in enumerate(headings):
         ws.write_string(r, c, h, head)
+    fit(r, {c: (h, c) for c, h in enumerate(headings)}, is_bold=True)
     for row in cmp.rows:
         r += 1
-        ws.write_string(r, 0, row.heading)
-        ws.write_string(r, 1, _shown_unit(row))
-        ws.write_string(r, 2, row.better or "")
+        ws.write_string(r, 0, row.heading, wrap)
+        ws.write_string(r, 1, _shown_unit(row), wrap)
+        ws.write_string(r, 2, row.better or "", wrap)
         for i, v in enumerate(row.values):
             if v is not None:
                 fmt = (best if i in row.best else plain)[row.kind]
                 ws.write_number(r, 3 + i, float(v), fmt)
-        ws.write_string(r, 3 + n, ", ".join(cmp.labels[i] for i in row.best))
+        best_text = ", ".join(cmp.labels[i] for i in row.best)
+        ws.write_string(r, last, best_text, wrap)
+        fit(r, {0: (row.heading, 0), last: (best_text, last)})
         if row.labels:
             r += 1
             ws.write_string(r, 0, f"{row.heading}: which", dim)
             for i, text in enumerate(row.labels):
                 if text:
                     ws.write_string(r, 3 + i, text, dim)
+            fit(r, {0: (f"{row.heading}: which", 0), **{3 + i: (t, 3 + i) for i, t in enumerate(row.labels) if t}})
     r += 2
-    ws.write_string(r, 0, "trade-off", bold)
-    ws.write_string(r, 1, cmp.tradeoff)
-    for row in cmp.rows:
-        if row.note:
-            r += 1
-            ws.write_string(r, 0, row.short)
-            ws.write_string(r, 1, row.note)
-    for note in cmp.notes:
+    texts = [("trade-off", tradeoff(cmp), bold)] + [(row.short, row.note, wrap) for row in cmp.rows if row.note] \
+        + [("note", note, wrap) for note in cmp.notes]
+    for label, text, fmt in texts:
+        ws.write_string(r, 0, label, fmt)
+        ws.merge_range(r, 1, r, last, "", wrap)
+        ws.write_string(r, 1, text, wrap)
+        fit(r, {1: (text, last)})
         r += 1
-        ws.write_string(r, 0, "note")
-        ws.write_string(r, 1, note)
-    ws.set_column(0, 0, 44)
-    ws.set_column(1, 2, 10)
-    ws.set_column(3, 2 + n, 24)
-    ws.set_column(3 + n, 3 + n, 30)
+    ws.set_landscape()
+    ws.fit_to_pages(1, 0)
+    ws.repeat_rows(3)
+    ws.print_area(0, 0, max(r - 1, 3), last)
+    ws.set_margins(left=0.4, right=0.4, top=0.6, bottom=0.7)
+    ws.set_footer("&L&7CAUTION: planning estimates only; see the sheet&R&8page &P of &N")
     ws.freeze_panes(4, 1)

@@ -1,6 +1,7 @@
 """The plan's tables as CSV files (``routeplan plan ROUTE --csv DIR``), for other tools.
 
-Files written into ``DIR`` (made if missing), each atomically:
+Files written into ``DIR`` (made if missing), each atomically; the command line writes
+the whole folder as one unit (:class:`routeplan.export.atomic.OutputSet`):
 
 ``summary.csv``
     item, value, unit: route, route file and SHA-256, date, target, overall yield,
@@ -199,6 +200,9 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
     for i, sp in enumerate(plan.steps, start=1):
         paths.append(write_table(out_dir / step_file_name(i, sp.id), CHARGE_COLUMNS, step_charge_rows(sp)))
     paths.append(write_table(out_dir / "raw-materials.csv", raw_export_columns(plan), raw_export_rows(plan)))
+    from routeplan.views.purchase_rows import PURCHASE_COLUMNS, purchase_rows
+
+    paths.append(write_table(out_dir / "purchases.csv", PURCHASE_COLUMNS, purchase_rows(plan)))
     paths.append(write_table(out_dir / "materials.csv", material_columns(plan), material_rows(plan)))
     from routeplan.views.safety_text import SAFETY_COLUMNS, safety_rows
 

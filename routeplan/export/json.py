@@ -110,7 +110,7 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
         "steps": [_step(sp) for sp in plan.steps],
         "raw_materials": [
             {"material": r.material, "mass_kg": magnitude(r.mass, "kg"), "volume_L": magnitude(r.volume, "L"),
-             "mol": magnitude(r.mol, "mol"), "cost": r.cost, "steps": list(r.steps)}
+             "mol": magnitude(r.mol, "mol"), "cost": r.cost, "steps": list(r.steps), **_buying(r)}
             for r in plan.raw_materials
         ],
         "overall_yield": {
@@ -208,3 +208,16 @@ def uncertainty_to_dict(u) -> dict[str, Any]:
 def plan_to_json(plan: "Plan", *, indent: int = 2) -> str:
     """The plan as a JSON text (UTF-8, no NaN)."""
     return json.dumps(plan_to_dict(plan), indent=indent, ensure_ascii=False, allow_nan=False) + "\n"
+
+
+def _buying(r) -> dict[str, Any]:
+    """The buying keys of a raw material: ``bought``, ``pack`` (``{"mass_kg": ...}`` or
+    ``{"volume_L": ...}``, null without one), ``packs`` [-] and ``ordered`` (the same form
+    as ``pack``)."""
+
+    def size(q):
+        if q is None:
+            return None
+        return {"mass_kg": magnitude(q, "kg")} if q.check("[mass]") else {"volume_L": magnitude(q, "L")}
+
+    return {"bought": r.bought, "pack": size(r.pack), "packs": r.packs, "ordered": size(r.ordered)}

@@ -15,7 +15,7 @@ from rich.table import Table
 
 from routeplan.views.metrics_text import metrics_lines
 from routeplan.views.safety_text import step_safety_lines
-from routeplan.views.tables import column_unit, raw_material_rows, step_charge_rows
+from routeplan.views.tables import charge_label, column_unit, fmt, raw_material_rows, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -100,20 +100,6 @@ class Printer:
             self.console.on_broken_pipe()
 
 
-def fmt(value: float | None, digits: int = 4) -> str:
-    """A number to ``digits`` significant figures, without exponent for everyday sizes."""
-    if value is None:
-        return "–"
-    if value == 0:
-        return "0"
-    if 1e-3 <= abs(value) < 1e6:
-        text = f"{value:.{digits}g}"
-        if "e" in text:  # e.g. 12345 at 4 digits
-            text = f"{value:.0f}"
-        return text
-    return f"{value:.{digits - 1}e}"
-
-
 def _step_table(sp, route, new_table=Table) -> Table:
     rows = step_charge_rows(sp)
     made_in = route.maker
@@ -133,11 +119,7 @@ def _step_table(sp, route, new_table=Table) -> Table:
         t.add_column(escape(f"m/batch [{mu}]"), justify="right")
         t.add_column(escape(f"V/batch [{vu}]"), justify="right")
     for r in rows:
-        name = r["material"]
-        if r["carried_from"]:
-            name += f" ({r['carried_from']}, in solution)"
-        elif r["intermediate"]:
-            name += f" ({made_in[r['material']]})"
+        name = charge_label(r, made_in)
         cells = [
             str(r["order"]), name, r["role"], fmt(r["equiv"], 3),
             fmt(None if r["mol"] is None else r["mol"] / nf),
@@ -200,6 +182,26 @@ def _raw_table(plan, new_table=Table) -> Table:
     return t
 
 
+def _print_purchases(con, plan) -> None:
+    """The purchase list (bought materials, need in kg and L, packs to order) and the
+    note on materials not bought."""
+    from routeplan.views.purchase_rows import not_bought_note, purchase_rows
+
+    rows = purchase_rows(plan)
+    t = con.table(title="[bold]To order, whole campaign[/bold]", box=box.SIMPLE_HEAD, title_justify="left",
+                  pad_edge=False)
+    for head, just in (("material", "left"), ("need [kg]", "right"), ("need [L]", "right"), ("pack", "right"),
+                       ("packs", "right"), ("ordered", "right")):
+        t.add_column(escape(head), justify=just)
+    for r in rows:
+        t.add_row(escape(r["material"]), fmt(r["need_kg"]), fmt(r["need_L"]), escape(r["pack"] or "–"),
+                  "–" if r["packs"] is None else str(r["packs"]), escape(r["ordered"] or "–"))
+    con(t)
+    note = not_bought_note(plan)
+    if note:
+        con(escape("  " + note))
+
+
 def _print_time_waste_cost(con: "Printer", plan: "Plan") -> None:
     """The schedule's timeline, the waste streams and the cost of goods (headings in bold)."""
     from routeplan.views.schedule_text import schedule_lines
@@ -251,6 +253,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
             con(escape(stock_line))
         con()
     con(_raw_table(plan, con.table))
+    _print_purchases(con, plan)
     oy = plan.overall_yield
     con(escape(f"Overall yield along the longest linear sequence "
               f"({' -> '.join(oy.longest_linear_sequence)}): {oy.yield_:.1%}"

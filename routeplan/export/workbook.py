@@ -72,7 +72,7 @@ def _utf16_len(text: str) -> int:
 
 
 def _clip(text: str, units: int) -> str:
-    while _utf16_len(text) > units:
+    while text and _utf16_len(text) > units:
         text = text[:-1]
     return text
 
@@ -96,7 +96,7 @@ def safe_sheet_name(base: str, suffix: str, taken: set[str]) -> str:
     while True:
         extra = suffix if n == 1 else f"{suffix} ({n})"
         name = _clip(clean, MAX_SHEET_NAME - _utf16_len(extra)).rstrip(" '")
-        name = (name or "step") + extra
+        name = _clip((name or "step") + extra, MAX_SHEET_NAME)  # a suffix longer than a sheet name is cut
         if name.casefold() not in taken:
             taken.add(name.casefold())
             return name
@@ -207,7 +207,11 @@ def write_workbook(plan: "Plan", path: str | os.PathLike, *, written: datetime |
         from routeplan.export.workbook_schedule import SCHEDULE_SHEET, write_schedule_sheet
 
         if plan.schedule is not None:
-            write_schedule_sheet(wb.add_worksheet(SCHEDULE_SHEET), st, plan, context)
+            from routeplan.export.workbook_records import protect
+
+            schedule = wb.add_worksheet(SCHEDULE_SHEET)
+            write_schedule_sheet(schedule, st, plan, context)
+            protect(schedule)  # like every sheet: no password, nothing to type in
         summary.activate()
         try:
             wb.close()

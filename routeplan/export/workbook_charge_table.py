@@ -2,33 +2,40 @@
 
 Columns, from A: the planned columns the plant reads (:data:`PRINTED_COLUMNS`: order,
 material, role, basis, equiv, amount, planned assay, mass and volume to charge,
-hazards), the plant's fill-in columns (:data:`FILL_IN_COLUMNS`), and then, outside the
+hazards), the plant's columns (:data:`FILL_IN_COLUMNS`: lot number, lot assay or titre,
+actual mass, the tolerance flag, balance or vessel, checked by), and then, outside the
 print area, the material data the formulas read (:data:`REFERENCE_COLUMNS`: key, molar
-mass, concentration, density).
+mass, concentration, density, tolerance).
 
 The live formulas (``r`` is the row of the charge, ``lim`` the row of the limiting
-reagent in the same sheet):
+reagent in the same sheet, ``N`` the header cell "limiting reagent charged [mol]"):
 
-* charged on a molar basis (equiv, mol %, stoichiometric), a solid, a neat liquid or
-  a solution by mass fraction::
+* ``N`` = the planned moles of limiting reagent until its actual mass is typed, then
+  ``actual [kg] * 1000 * effective assay / M`` (for a limiting solution by molarity,
+  ``actual / density * effective titre``);
+* amount [mol] of a charge by equiv or mol %: ``equiv * N``; so once the limiting
+  reagent is weighed in, every molar charge follows the moles actually charged;
+  of a charge by volumes or mass ratio with a molar mass: ``mass * 1000 * assay / M``
+  (a solution by molarity: ``volume * concentration``);
+* a molar charge of a solid, a neat liquid or a solution by mass fraction::
 
       mass [kg]   = amount [mol] * M [g/mol] / 1000 / effective assay
-      effective assay = lot assay when a number is typed in it, else the planned assay
+      effective assay = the lot's assay (or measured mass fraction) when typed, else planned
       volume [L]  = mass [kg] / density [g/mL]          (where a density is known)
 
-  (for a solution by mass fraction, the "assay" is its mass fraction, and the lot
-  assay is the lot's measured mass fraction);
-* a solution by molarity: ``volume = amount / concentration``,
-  ``mass = volume * density``; the lot assay is recorded only;
-* ``volumes``: ``volume = volumes [L/kg] * mass of limiting reagent in this batch``
-  (the cell of that row, so a weaker lot of limiting reagent, charged heavier, also
-  raises the solvent), ``mass = volume * density``;
-* ``mass_ratio``: ``mass = ratio [kg/kg] * mass of limiting reagent in this batch``,
-  ``volume = mass / density``;
+* a solution by molarity: ``volume = amount / effective titre`` (the lot's titre [mol/L]
+  when typed, else the planned concentration), ``mass = volume * density``;
+* ``volumes``: ``volume = volumes [L/kg] * limiting mass``, ``mass = volume * density``;
+* ``mass_ratio``: ``mass = ratio [kg/kg] * limiting mass``, ``volume = mass / density``;
+  where "limiting mass" is the limiting reagent's actual mass once typed, else its mass
+  to charge (so a weaker lot, charged heavier, also raises the solvent);
 * an intermediate in solution from a telescoped step (``rule == "carried"``): no
   formula.  The volume to charge is the plan's volume of that step's reaction mixture
-  carried in [L], the mass cell the plan's content of the compound in it [kg]; both are
-  plain numbers, nothing is weighed and the lot assay is recorded only.
+  carried in [L], the mass cell the plan's content of the compound in it [kg]; nothing
+  is weighed, and the lot and actual-mass cells are recorded only;
+* the tolerance flag of a weighed charge: ``±1.0 %`` until the actual mass is typed,
+  then ``within ±1.0 %`` or ``OUTSIDE ±1.0 %`` (``|actual - mass| <= tolerance * mass``),
+  and the actual-mass cell turns red while it is outside.
 
 Every formula is stored with the plan's number as its computed value.  With a campaign
 record, an intermediate in hand has its lot cell and lot-assay cell filled in (the row's
@@ -46,6 +53,7 @@ from routeplan.export.workbook_styles import Styles, put
 
 __all__ = [
     "FILL_IN_COLUMNS",
+    "INPUT_KEYS",
     "PRINTED_COLUMNS",
     "REFERENCE_COLUMNS",
     "SHEET_COLUMNS",
@@ -53,17 +61,23 @@ __all__ = [
     "LAST_COLUMN",
     "PRINT_LAST_COLUMN",
     "charge_formulas",
+    "limiting_mol_formula",
     "role_text",
     "write_charge_row",
 ]
 
-#: Columns the plant fills in, after the planned columns.
+#: Columns the plant fills in (and the flag that reads them), after the planned columns.
 FILL_IN_COLUMNS = (
     Column("lot", "lot number"),
-    Column("lot_assay", "lot assay", "-"),
+    Column("lot_assay", "lot assay or titre"),
     Column("actual_mass_kg", "actual mass charged", "kg"),
+    Column("flag", "weighed within"),
+    Column("balance", "balance or vessel"),
     Column("checked_by", "checked by"),
 )
+
+#: Keys of the fill-in columns whose cells are unlocked for typing.
+INPUT_KEYS = ("lot", "lot_assay", "actual_mass_kg", "balance", "checked_by")
 
 _BY_KEY = {c.key: c for c in BATCH_COLUMNS}
 
@@ -74,7 +88,7 @@ PRINTED_COLUMNS = tuple(_BY_KEY[k] for k in (
 
 #: Columns right of the fill-in columns, outside the print area: the material data
 #: the formulas read, for checking on screen.
-REFERENCE_COLUMNS = tuple(_BY_KEY[k] for k in ("material", "molar_mass", "molarity", "density"))
+REFERENCE_COLUMNS = tuple(_BY_KEY[k] for k in ("material", "molar_mass", "molarity", "density", "tolerance"))
 
 #: Every column of the charge table, in sheet order from column A.
 SHEET_COLUMNS = PRINTED_COLUMNS + FILL_IN_COLUMNS + REFERENCE_COLUMNS
@@ -88,9 +102,13 @@ LAST_COLUMN = len(SHEET_COLUMNS) - 1
 #: Last column index of the print area (the last fill-in column).
 PRINT_LAST_COLUMN = COL[FILL_IN_COLUMNS[-1].key]
 
-# What the grey lot-assay cell says when selected, by the rule of the charge.
-_RECORDED_ONLY = ("This charge does not depend on the lot assay (charged by volume, "
-                  "by mass ratio or as a solution by molarity).")
+# What the grey lot cell says when selected, by the rule of the charge.
+_RECORDED_ONLY = ("This charge does not depend on the lot assay (charged by volume or by mass ratio): "
+                  "record it only.")
+
+#: Highest titre a lot cell accepts [mol/L] (no reagent solution is stronger than its
+#: neat liquid; water itself is 55.5 mol/L; common practice, no source).
+MAX_TITRE = 60.0
 
 
 def _cell(row: int, key: str) -> str:
@@ -99,8 +117,31 @@ def _cell(row: int, key: str) -> str:
     return xl_rowcol_to_cell(row, COL[key])
 
 
-def charge_formulas(row: dict[str, Any], r: int, lim_row: int | None, lim_mass: float) -> tuple[str | None, str | None]:
-    """The mass and volume formulas of a charge written on sheet row ``r``.
+def _effective(r: int, planned_key: str) -> str:
+    lot = _cell(r, "lot_assay")
+    return f"IF(ISNUMBER({lot}),{lot},{_cell(r, planned_key)})"
+
+
+def limiting_mol_formula(row: dict[str, Any], lim_row: int) -> str | None:
+    """The formula of the header cell "limiting reagent charged [mol]": the planned
+    moles until the limiting reagent's actual mass is typed, then the moles in it (at
+    the lot's assay or titre when typed).  None for a limiting reagent that is not
+    weighed (carried in solution) or has no molar mass."""
+    actual = _cell(lim_row, "actual_mass_kg")
+    planned = repr(float(row["mol"])) if row["mol"] is not None else None
+    if planned is None or row["rule"] == "carried":
+        return None
+    if row["rule"] == "molarity":
+        return f"=IF(ISNUMBER({actual}),{actual}/{_cell(lim_row, 'density')}*{_effective(lim_row, 'molarity')},{planned})"
+    if row["molar_mass"] is None or row["assay"] is None:
+        return None
+    return (f"=IF(ISNUMBER({actual}),{actual}*1000*{_effective(lim_row, 'assay')}/{_cell(lim_row, 'molar_mass')},"
+            f"{planned})")
+
+
+def charge_formulas(row: dict[str, Any], r: int, lim_row: int | None, lim_mass: float,
+                    lim_mol: str | None = None) -> tuple[str | None, str | None, str | None]:
+    """The mass, volume and amount formulas of a charge written on sheet row ``r``.
 
     Parameters
     ----------
@@ -112,34 +153,60 @@ def charge_formulas(row: dict[str, Any], r: int, lim_row: int | None, lim_mass: 
         0-based row of the limiting reagent's charge on the same sheet.
     lim_mass : float
         Mass of limiting reagent in the batch [kg], used only when ``lim_row`` is None.
+    lim_mol : str or None
+        The cell holding the moles of limiting reagent charged (``"D12"``); None keeps
+        the planned amounts as numbers.
 
     Returns
     -------
-    tuple of (str or None, str or None)
-        Mass formula (None when the mass is written as a plain number) and volume
-        formula (None when the volume is a plain number or no volume is known).  An
-        intermediate carried in solution (``rule == "carried"``) has neither.
+    tuple of (str or None, str or None, str or None)
+        Mass formula (None when the mass is written as a plain number), volume formula
+        (None when the volume is a plain number or no volume is known) and amount
+        formula (None when the amount is a plain number).  An intermediate carried in
+        solution (``rule == "carried"``) has none.
     """
     mol, mm, assay = _cell(r, "mol"), _cell(r, "molar_mass"), _cell(r, "assay")
-    lot, conc, dens = _cell(r, "lot_assay"), _cell(r, "molarity"), _cell(r, "density")
+    dens = _cell(r, "density")
     ratio, mass, vol = _cell(r, "basis_value"), _cell(r, "mass_kg"), _cell(r, "volume_L")
-    basis_mass = _cell(lim_row, "mass_kg") if lim_row is not None else repr(float(lim_mass))
+    if lim_row is not None:
+        lim_actual, lim_planned = _cell(lim_row, "actual_mass_kg"), _cell(lim_row, "mass_kg")
+        basis_mass = (lim_planned if lim_row == r or row["limiting"]
+                      else f"IF(ISNUMBER({lim_actual}),{lim_actual},{lim_planned})")
+    else:
+        basis_mass = repr(float(lim_mass))
     has_density = row["density"] is not None
+    has_volume = has_density and row["volume_L"] is not None
     rule = row["rule"]
     if rule in ("carried", "gas"):
-        return None, None
+        return None, None, None
+    amount = None
+    if row["mol"] is not None and row["equiv"] is not None and not row["limiting"] and lim_mol is not None:
+        amount = f"={_cell(r, 'equiv')}*{lim_mol}"
     if rule == "molar":
         if row["mol"] is None or row["molar_mass"] is None or row["assay"] is None:
-            return None, (f"={mass}/{dens}" if has_density and row["volume_L"] is not None else None)
-        m = f"={mol}*{mm}/1000/IF(ISNUMBER({lot}),{lot},{assay})"
-        v = f"={mass}/{dens}" if has_density and row["volume_L"] is not None else None
-        return m, v
+            return None, (f"={mass}/{dens}" if has_volume else None), None
+        return f"={mol}*{mm}/1000/{_effective(r, 'assay')}", (f"={mass}/{dens}" if has_volume else None), amount
     if rule == "molarity":
-        return f"={vol}*{dens}", f"={mol}/{conc}"
+        return f"={vol}*{dens}", f"={mol}/{_effective(r, 'molarity')}", amount
+    by_mass = row["mol"] is not None and row["molar_mass"] is not None and row["assay"] is not None
+    if by_mass:
+        amount = f"={mass}*1000*{assay}/{mm}"
     if rule == "volumes":
-        return f"={vol}*{dens}", f"={ratio}*{basis_mass}"
+        return f"={vol}*{dens}", f"={ratio}*{basis_mass}", amount
     # mass_ratio
-    return f"={ratio}*{basis_mass}", (f"={mass}/{dens}" if has_density and row["volume_L"] is not None else None)
+    return f"={ratio}*{basis_mass}", (f"={mass}/{dens}" if has_volume else None), amount
+
+
+def _flag_formula(r: int) -> str:
+    actual, mass, tol = _cell(r, "actual_mass_kg"), _cell(r, "mass_kg"), _cell(r, "tolerance")
+    band = f'"±"&FIXED({tol}*100,1)&" %"'
+    return (f'=IF(ISNUMBER({actual}),IF(ABS({actual}-{mass})<={tol}*{mass},"within "&{band},'
+            f'"OUTSIDE "&{band}),{band})')
+
+
+def _outside_rule(r: int) -> str:
+    actual, mass, tol = _cell(r, "actual_mass_kg"), _cell(r, "mass_kg"), _cell(r, "tolerance")
+    return f"=AND(ISNUMBER({actual}),ABS({actual}-{mass})>{tol}*{mass})"
 
 
 def role_text(row: dict[str, Any]) -> str:
@@ -164,23 +231,26 @@ def role_text(row: dict[str, Any]) -> str:
     return ", ".join(parts)
 
 
-def write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int | None, lim_mass: float) -> None:
-    """Write one charge on sheet row ``r`` (0-based): planned cells, live formulas stored
-    with the plan's numbers, the fill-in cells and their input checks.
+def write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int | None, lim_mass: float,
+                     lim_mol: str | None = None) -> None:
+    """Write one charge on sheet row ``r`` (0-based): planned cells (locked), the live
+    formulas, the plant's cells (unlocked, pale green) with their checks, the tolerance
+    flag and its red mark, and the material data right of the print area.
 
     Parameters
     ----------
     ws : xlsxwriter worksheet
     st : Styles
     row : dict
-        A row of :func:`routeplan.views.sheet_rows.batch_charge_rows`: amounts [mol],
-        masses [kg], volumes [L] per batch.
+        A row of :func:`routeplan.views.sheet_rows.batch_charge_rows`.
     r : int
         0-based sheet row.
     lim_row : int or None
         0-based row of the limiting reagent's charge on the same sheet.
     lim_mass : float
         Mass of limiting reagent in the batch [kg], used only when ``lim_row`` is None.
+    lim_mol : str or None
+        The cell holding the moles of limiting reagent charged.
     """
     put(ws, r, COL["order"], row["order"], st.integer)
     put(ws, r, COL["material"], row["material"], st.cell_text)
@@ -189,15 +259,19 @@ def write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int |
     put(ws, r, COL["basis"], row["basis"], st.cell_text)
     put(ws, r, COL["basis_value"], row["basis_value"], st.ratio)
     put(ws, r, COL["equiv"], row["equiv"], st.ratio)
-    put(ws, r, COL["mol"], row["mol"], st.quantity(row["mol"]))
     put(ws, r, COL["molar_mass"], row["molar_mass"], st.molar_mass)
     put(ws, r, COL["assay"], row["assay"], st.percent)
     put(ws, r, COL["molarity"], row["molarity"], st.density)
     put(ws, r, COL["density"], row["density"], st.density)
     put(ws, r, COL["hazards"], row["hazards"], st.cell_text)
+    put(ws, r, COL["tolerance"], row["tolerance"], st.percent)
 
     carried = row["rule"] == "carried"
-    mass_f, vol_f = charge_formulas(row, r, lim_row, lim_mass)
+    mass_f, vol_f, mol_f = charge_formulas(row, r, lim_row, lim_mass, lim_mol)
+    if mol_f is None:
+        put(ws, r, COL["mol"], row["mol"], st.quantity(row["mol"]))
+    else:
+        ws.write_formula(r, COL["mol"], mol_f, st.quantity(row["mol"]), row["mol"])
     if carried:
         _write_carried(ws, st, row, r)
     elif row["rule"] == "gas":
@@ -216,16 +290,60 @@ def write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int |
 
     prefill = row.get("prefill")
     put(ws, r, COL["lot"], None if prefill is None else prefill["lot"], st.fill_text)
+    _lot_cell(ws, st, row, r, mass_f)
+    put(ws, r, COL["balance"], None, st.fill_text)
+    put(ws, r, COL["checked_by"], None, st.fill_text)
+    actual = COL["actual_mass_kg"]
+    if carried or row["rule"] == "gas":
+        put(ws, r, actual, None, st.not_used)
+        ws.data_validation(r, actual, r, actual, {
+            "validate": "any", "input_title": "Not weighed",
+            "input_message": ("A gas is charged by its normal volume: record the volume charged in the remarks."
+                              if not carried else
+                              "Transferred whole from the step before: record the mass only if it was weighed."),
+        })
+        put(ws, r, COL["flag"], "not weighed", st.cell_text)
+        return
+    put(ws, r, actual, None, st.fill_mass)
+    ws.data_validation(r, actual, r, actual, {
+        "validate": "decimal", "criteria": ">=", "value": 0,
+        "error_title": "Actual mass", "error_message": "Type the mass charged in kg.",
+    })
+    tol = row["tolerance"]
+    band = f"±{100 * tol:.1f} %"
+    ws.write_formula(r, COL["flag"], _flag_formula(r), st.cell_text, band)
+    ws.conditional_format(r, actual, r, actual, {"type": "formula", "criteria": _outside_rule(r),
+                                                 "format": st.outside})
+    ws.conditional_format(r, COL["flag"], r, COL["flag"], {"type": "formula", "criteria": _outside_rule(r),
+                                                           "format": st.outside})
+
+
+def _lot_cell(ws, st: Styles, row: dict[str, Any], r: int, mass_f: str | None) -> None:
+    """The lot assay or titre cell: asked for (a percent, or a titre in mol/L) where the
+    charge depends on it, else grey and recorded only."""
     lot_col = COL["lot_assay"]
+    carried = row["rule"] == "carried"
+    molarity_solution = row["rule"] == "molarity" and row["equiv"] is not None
+    prefill = row.get("prefill")
     if row["rule"] == "molar" and mass_f is not None:
         put(ws, r, lot_col, None if prefill is None else prefill["assay"], st.fill_percent)
         ws.data_validation(r, lot_col, r, lot_col, {
             "validate": "decimal", "criteria": "between", "minimum": 0.0001, "maximum": 1,
             "input_title": "Lot assay",
-            "input_message": "Type the lot's assay as a percent, e.g. 97.5 %. The mass and "
-                             "volume to charge recalculate; leave empty to use the planned assay.",
+            "input_message": "Type the lot's assay (for a solution, its measured mass fraction) as a percent, "
+                             "e.g. 97.5 %. The amount, mass and volume recalculate; empty: the planned assay.",
             "error_title": "Lot assay",
             "error_message": "An assay is a percent above 0 % and at most 100 %.",
+        })
+    elif molarity_solution:
+        put(ws, r, lot_col, None, st.fill_titre)
+        ws.data_validation(r, lot_col, r, lot_col, {
+            "validate": "decimal", "criteria": "between", "minimum": 0.0001, "maximum": MAX_TITRE,
+            "input_title": "Lot titre [mol/L]",
+            "input_message": "Type the lot's titrated concentration in mol/L, e.g. 5.85. The volume and mass "
+                             "to charge recalculate; empty: the planned concentration.",
+            "error_title": "Lot titre",
+            "error_message": f"A titre is a concentration in mol/L above 0 and at most {MAX_TITRE:g}.",
         })
     else:
         put(ws, r, lot_col, None, st.not_used)
@@ -236,12 +354,6 @@ def write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int |
         ws.data_validation(r, lot_col, r, lot_col, {
             "validate": "any", "input_title": "Recorded only", "input_message": message[:255],
         })
-    put(ws, r, COL["actual_mass_kg"], None, st.fill_mass)
-    ws.data_validation(r, COL["actual_mass_kg"], r, COL["actual_mass_kg"], {
-        "validate": "decimal", "criteria": ">=", "value": 0,
-        "error_title": "Actual mass", "error_message": "Type the mass charged in kg.",
-    })
-    put(ws, r, COL["checked_by"], None, st.fill_text)
 
 
 def _write_carried(ws, st: Styles, row: dict[str, Any], r: int) -> None:

@@ -5,10 +5,13 @@ Layout (rows from the top): title with "batch k of n" (or "each of n batches
 (identical)" for a step of more than
 :data:`~routeplan.export.workbook.MAX_BATCH_SHEETS` batches, which gets one sheet), the
 caution, a header block (step, name, equation, vessel, yield, limiting reagent, product
-per batch, route, route file and its SHA-256, notes), then the charge table — one row
-per charge in order of addition —, the safety block of the batch (criticality class,
-ΔTad, MTSR, gas volume and rate per batch, gas taken up, vent notes; "not screened"
-without thermal data) and a short sign-off block under it.
+per batch, route, route file and its SHA-256, notes, the limiting reagent charged [mol] as
+a live formula, the weighing tolerance), the plan's warnings about the step, then the
+charge table — one row per charge in order of addition — and under it the safety block
+of the batch (criticality class, ΔTad, MTSR, gas volume and rate per batch, gas taken up,
+vent notes; "not screened" without thermal data; locked), the records at the step's
+marked points and the sign-off block (:mod:`routeplan.export.workbook_records`).
+Every sheet is protected without a password; the fill-in cells are unlocked.
 
 The charge table's columns and live formulas are those of
 :mod:`routeplan.export.workbook_charge_table`: the planned columns the plant reads
@@ -25,9 +28,12 @@ from typing import TYPE_CHECKING, Any
 
 from routeplan.views.safety_text import SCREENING_NOTE, sheet_safety_pairs
 from routeplan.views.sheet_rows import batch_charge_rows
-from routeplan.export.workbook_charge_table import (COL, FILL_IN_COLUMNS, LAST_COLUMN, PRINT_LAST_COLUMN,
-                                                    PRINTED_COLUMNS, REFERENCE_COLUMNS, SHEET_COLUMNS,
-                                                    charge_formulas, role_text, write_charge_row)
+from routeplan.export.workbook_charge_table import (COL, FILL_IN_COLUMNS, INPUT_KEYS, LAST_COLUMN,
+                                                    PRINT_LAST_COLUMN, PRINTED_COLUMNS, REFERENCE_COLUMNS,
+                                                    SHEET_COLUMNS, charge_formulas, limiting_mol_formula,
+                                                    role_text, write_charge_row)
+from routeplan.export.workbook_records import (protect, step_warnings, write_records, write_sign_off,
+                                               write_warnings)
 from routeplan.export.workbook_styles import (Styles, escape_header, fit_widths, lines_height, put, sheet_title,
                                               wrapped_lines)
 
@@ -51,17 +57,18 @@ __all__ = [
     "page_texts",
 ]
 
-#: Row index (0-based) of the charge table's headings; charges start on the next row.
-TABLE_HEADING_ROW = 11
+#: Row index (0-based) of the charge table's headings when the step has no warning;
+#: each warning about the step takes one more row above the table.
+TABLE_HEADING_ROW = 13
 
 #: Lowest and highest width of each column [character units]; longer text wraps.  The
 #: highest widths of the printed columns add up to at most :data:`PRINT_BUDGET_PX`.
 WIDTH_BOUNDS = {
-    "order": (4, 4), "name": (12, 17), "role": (10, 14), "basis": (7, 12), "basis_value": (6, 8),
-    "equiv": (6, 8), "mol": (8, 10), "assay": (7, 8), "mass_kg": (9, 10), "volume_L": (9, 10),
-    "hazards": (14, 19), "lot": (12, 12), "lot_assay": (8, 8), "actual_mass_kg": (10, 10),
-    "checked_by": (8, 8), "material": (8, 16), "molar_mass": (9, 10), "molarity": (14, 14),
-    "density": (8, 9),
+    "order": (4, 4), "name": (12, 14), "role": (10, 12), "basis": (7, 10), "basis_value": (6, 7),
+    "equiv": (6, 7), "mol": (8, 9), "assay": (7, 7), "mass_kg": (9, 10), "volume_L": (9, 10),
+    "hazards": (11, 13), "lot": (9, 9), "lot_assay": (9, 9), "actual_mass_kg": (9, 9),
+    "flag": (10, 10), "balance": (8, 8), "checked_by": (8, 8), "material": (8, 16), "molar_mass": (9, 10),
+    "molarity": (14, 14), "density": (8, 9), "tolerance": (10, 10),
 }
 
 #: Widest the printed columns may be [px at 100 %] so that, fitted to the width of a
@@ -167,15 +174,23 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int | No
     pair(8, _RIGHT, "product per batch [kg]", product_kg, st.quantity(product_kg, plain=True))
     pair(9, _WIDE, "route", context["route_line"])
     pair(10, _WIDE, "notes", sp.notes or "")
+    lim_i = next((i for i, row in enumerate(rows) if row["limiting"]), None)
+    lim_text = "(not weighed: transferred whole)" if lim_i is not None and rows[lim_i]["rule"] == "carried" else None
+    pair(11, _LEFT, "limiting reagent charged [mol]", lim_text or lim_mol, st.quantity(lim_mol, plain=True))
+    tol = plan.route.charge_tolerance
+    pair(11, _RIGHT, "weighing tolerance", f"±{100 * tol:.1f} % of the mass to charge, unless the line "
+                                           "says otherwise (column 'weighed within')")
     pair.set_heights()
+    warned = write_warnings(ws, st, 12, PRINT_LAST_COLUMN, step_warnings(plan, sp),
+                            sum(widths[:PRINT_LAST_COLUMN + 1]))
 
-    h = TABLE_HEADING_ROW
+    h = max(TABLE_HEADING_ROW, warned + 1)
     ref = COL[REFERENCE_COLUMNS[0].key]
     ws.merge_range(h - 1, ref, h - 1, LAST_COLUMN, "", st.ref_note)
     ws.write_string(h - 1, ref, "material data the formulas read (not printed)", st.ref_note)
     head_lines = 1
     for i, col in enumerate(SHEET_COLUMNS):
-        fmt = st.heading_fill_in if col in FILL_IN_COLUMNS else st.heading
+        fmt = st.heading_fill_in if col.key in INPUT_KEYS else st.heading
         ws.write_string(h, i, sheet_title(col), fmt)
         head_lines = max(head_lines, wrapped_lines(sheet_title(col), widths[i], bold=True))
     ws.set_row(h, lines_height(head_lines, 30))
@@ -183,27 +198,30 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int | No
     first = h + 1
     lim_row = next((first + i for i, row in enumerate(rows) if row["limiting"]), None)
     lim_mass = float(sp.limiting_mass.m_as("kg")) / n
+    lim_cell = None
+    if lim_row is not None:
+        from xlsxwriter.utility import xl_rowcol_to_cell
+
+        formula = limiting_mol_formula(rows[lim_row - first], lim_row)
+        if formula is not None:
+            lim_cell = xl_rowcol_to_cell(11, _LEFT[2])
+            ws.write_formula(11, _LEFT[2], formula, st.quantity(lim_mol, plain=True), lim_mol)
     for i, row in enumerate(rows):
         r = first + i
-        write_charge_row(ws, st, row, r, lim_row, lim_mass)
+        write_charge_row(ws, st, row, r, lim_row, lim_mass, lim_cell)
         lines = max(wrapped_lines(_text_of(row, key), widths[COL[key]]) for key in _TEXT_KEYS)
         ws.set_row(r, lines_height(lines, _CHARGE_ROW_HEIGHT))
     last = first + len(rows) - 1
 
+    step = plan.route.step(sp.id)
     s = _safety_block(ws, st, sp, last + 2, widths)
-    put(ws, s, 0, "Sign-off (fill in at the vessel)", st.subtitle)
-    labels = ("batch started (date, time)", "charged by", "checked by", "product obtained [kg]", "remarks")
-    if k is None:
-        labels = (f"batch number (1 to {n})",) + labels
-    for j, label in enumerate(labels):
-        r = s + 1 + j
-        ws.merge_range(r, 0, r, 2, "", st.label)
-        put(ws, r, 0, label, st.label)
-        ws.merge_range(r, 3, r, COL["hazards"], "", st.fill_sign)
-        ws.set_row(r, 22)
+    records_end = write_records(ws, st, s, step, lambda a, b: sum(widths[a:b + 1]))
+    end = write_sign_off(ws, st, records_end + 2, PRINT_LAST_COLUMN, k, n)
     ws.freeze_panes(h + 1, 0)
-    _page_setup(ws, h, s + len(labels), context)
-    return {"first_row": first, "last_row": last, "rows": rows, "safety_row": last + 2 if sp.safety else -1}
+    _page_setup(ws, h, end, context)
+    protect(ws)
+    return {"first_row": first, "last_row": last, "rows": rows, "heading_row": h, "limiting_mol_cell": lim_cell,
+            "safety_row": last + 2 if sp.safety else -1}
 
 
 def _safety_block(ws, st: Styles, sp: "StepPlan", r: int, widths: list[float]) -> int:

@@ -43,10 +43,12 @@ _CAUTION_FILL = "#F6E7C8"
 _FILL_IN = "#E3F1E1"
 _NOT_USED = "#EDEDED"
 _BORDER_COLOUR = "#9AA7B1"
+_OUTSIDE_FILL = "#F4C7C3"
+_OUTSIDE_INK = "#8B1A10"
 
 
 #: Columns holding fractions (0 to 1) that sheets show as percent.
-PERCENT_KEYS = frozenset({"assay", "lot_assay", "fill_fraction", "yield", "solution_mass_fraction",
+PERCENT_KEYS = frozenset({"assay", "tolerance", "share", "fill_fraction", "yield", "solution_mass_fraction",
                           "atom_economy", "rme"})
 
 #: The one number format of every percentage the workbook shows (a fraction stored as
@@ -123,6 +125,15 @@ class Styles:
                                 border_color=_BORDER_COLOUR, locked=False)
         self.fill_mass = add(num_format="#,##0.000", bg_color=_FILL_IN, border=1,
                              border_color=_BORDER_COLOUR, locked=False)
+        self.fill_titre = add(num_format='0.000" mol/L"', bg_color=_FILL_IN, border=1,
+                              border_color=_BORDER_COLOUR, locked=False)
+        self.fill_note = add(bg_color=_FILL_IN, border=1, border_color=_BORDER_COLOUR, locked=False,
+                             text_wrap=True)
+        self.warning = add(text_wrap=True, bold=True, bg_color=_CAUTION_FILL, border=1,
+                           border_color=_BORDER_COLOUR)
+        # conditional format of an actual mass outside its tolerance: no base font, so
+        # the cell keeps its own and only turns red
+        self.outside = workbook.add_format({"bg_color": _OUTSIDE_FILL, "font_color": _OUTSIDE_INK, "bold": True})
         self.not_used = add(num_format=PERCENT_FORMAT, bg_color=_NOT_USED, border=1,
                             border_color=_BORDER_COLOUR, locked=False)
         self.value_percent = add(num_format=PERCENT_FORMAT, align="left")
@@ -139,6 +150,15 @@ class Styles:
         merged = dict(self._base)
         merged.update(props)
         return self._wb.add_format(merged)
+
+    def input_quantity(self, value: float | None):
+        """Format of a quantity cell a person may type over (unlocked, pale green)."""
+        d = decimals_for(value)
+        key = ("in", d)
+        if key not in self._cache:
+            self._cache[key] = self._make(num_format="#,##0." + "0" * d, bg_color=_FILL_IN, border=1,
+                                          border_color=_BORDER_COLOUR, locked=False)
+        return self._cache[key]
 
     def quantity(self, value: float | None, *, bold: bool = False, plain: bool = False, content: bool = False):
         """Format of a mass [kg], volume [L] or amount [mol] cell showing at least four

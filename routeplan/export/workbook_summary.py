@@ -28,7 +28,10 @@ from routeplan.views.safety_text import SCREENING_NOTE, safety_summary_rows
 from routeplan.views.tables import Column
 from routeplan.views.uncertainty_text import uncertainty_fact_rows
 from routeplan.views.sheet_rows import STEP_METRIC_COLUMNS, STOCK_COLUMNS, material_columns, material_rows, metric_rows, raw_export_columns, raw_export_rows, step_metric_rows, step_rows, stock_rows, stock_summary_rows, summary_rows
+from routeplan.export.workbook_records import protect
 from routeplan.export.workbook_styles import Styles, fit_widths, lines_height, put, sheet_title, wrapped_lines
+from routeplan.views.mass_intensity_rows import MASS_INTENSITY_COLUMNS, mass_intensity_rows, step_intensity_lines
+from routeplan.views.purchase_rows import PURCHASE_COLUMNS, not_bought_note, purchase_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -47,7 +50,7 @@ SUMMARY_STEP_COLUMNS = (
     Column("yield", "yield", "-"),
     Column("product_mass_kg", "product mass", "kg"),
     Column("sheets", "charge sheets"),
-) + STEP_METRIC_COLUMNS
+) + tuple(c for c in STEP_METRIC_COLUMNS if c.key not in ("step_pmi", "cumulative_pmi"))
 
 #: Last column (0-based) used on the Summary sheet.
 SUMMARY_LAST_COLUMN = len(SUMMARY_STEP_COLUMNS) - 1
@@ -56,8 +59,8 @@ SUMMARY_LAST_COLUMN = len(SUMMARY_STEP_COLUMNS) - 1
 #: tables; the highest add up to 1180 px, within the charge sheets' print budget
 #: (:data:`~routeplan.export.workbook_charges.PRINT_BUDGET_PX`), so the sheet prints at
 #: about 80 % or more on a Letter page in landscape.
-SUMMARY_WIDTH_BOUNDS = ((10, 16), (20, 26), (9, 11), (9, 11), (9, 11), (9, 11), (9, 11), (12, 16),
-                        (8, 10), (9, 11), (12, 12), (13, 14))
+SUMMARY_WIDTH_BOUNDS = ((10, 16), (20, 26), (10, 12), (10, 12), (10, 12), (10, 12), (10, 12), (12, 18),
+                        (12, 14), (13, 16))
 
 #: Lowest and highest width of each Materials column [character units], by key; the
 #: highest add up to 1192 px, within the charge sheets' print budget.
@@ -272,6 +275,7 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
         for row in drawn:
             r += 1
             sh.fact(r, row)
+    r = _mass_intensity(sh, plan, r)
 
     # steps
     r += 2
@@ -280,8 +284,7 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
     out["steps"] = r
     sh.headings(r, [sheet_title(c) for c in SUMMARY_STEP_COLUMNS])
     step_formats = {"batches": st.integer, "fill_fraction": st.percent, "yield": st.percent,
-                    "step_pmi": st.ratio, "cumulative_pmi": st.ratio, "atom_economy": st.percent,
-                    "rme": st.percent}
+                    "atom_economy": st.percent, "rme": st.percent}
     for row in steps:
         r += 1
         for i, col in enumerate(SUMMARY_STEP_COLUMNS):
@@ -329,6 +332,8 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
         ws.write_formula(r, col, f"=SUM({ref(first_raw, col)}:{ref(r - 1, col)})", st.money_bold, sum(costs))
         out["raw_total"] = r
 
+    r = _purchases(sh, plan, r, out)
+
     out["stock"] = -1
     if plan.stock is not None:
         r = _facts_block(sh, r + 2, "Stock on hand, for the requested target", stock_summary_rows(plan))
@@ -364,6 +369,7 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
 
     ws.freeze_panes(2, 0)
     _page_setup(ws, (0, 1), context)
+    protect(ws)
     return out
 
 
@@ -415,7 +421,7 @@ def _stock_table(sh: _Sheet, r: int, rows: list[dict[str, Any]]) -> int:
         put(ws, r, ci["material"], row["material"], st.cell_text)
         put(ws, r, ci["name"], row["name"], st.cell_text)
         put(ws, r, ci["need_kg"], row["need_kg"], st.quantity(row["need_kg"]))
-        put(ws, r, ci["on_hand_kg"], row["on_hand_kg"], st.quantity(row["on_hand_kg"]))
+        put(ws, r, ci["on_hand_kg"], row["on_hand_kg"], st.input_quantity(row["on_hand_kg"]))
         need, have = ref(r, ci["need_kg"]), ref(r, ci["on_hand_kg"])
         ws.write_formula(r, ci["to_buy_kg"], f"=MAX(0,{need}-{have})", st.quantity(row["to_buy_kg"], bold=True),
                          row["to_buy_kg"])
@@ -423,6 +429,62 @@ def _stock_table(sh: _Sheet, r: int, rows: list[dict[str, Any]]) -> int:
         put(ws, r, status, row["status"], st.cell_text)
         sh.fit_row(r, {0: row["material"], 1: row["name"], status: row["status"]},
                    {status: status + _STATUS_SPAN})
+    return r
+
+
+def _mass_intensity(sh: _Sheet, plan: "Plan", r: int) -> int:
+    """The mass intensity in our layout: a table of kg per kg of target by raw material
+    (with its share of the route PMI), and under it one line per step in words (inputs
+    per kg of the step's product, raw materials up to the step per kg of it); return
+    the last row written (``r`` without metrics)."""
+    rows = mass_intensity_rows(plan)
+    if not rows:
+        return r
+    ws, st = sh.ws, sh.st
+    r += 2
+    put(ws, r, 0, f"Mass intensity: kg of each input per kg of {plan.target_material} delivered", st.subtitle)
+    r += 1
+    sh.headings(r, [sheet_title(c) for c in MASS_INTENSITY_COLUMNS])
+    for row in rows:
+        r += 1
+        for i, col in enumerate(MASS_INTENSITY_COLUMNS):
+            v = row[col.key]
+            fmt = (st.percent if col.key == "share" else st.ratio if isinstance(v, float) else
+                   st.label if row["material"] is None else st.cell_text)
+            put(ws, r, i, v, fmt)
+        sh.fit_row(r, {0: row["material"], 1: row["name"]})
+    last = sh.last
+    for text in step_intensity_lines(plan):
+        r += 1
+        ws.merge_range(r, 0, r, last, "", st.value_text)
+        ws.write_string(r, 0, text, st.value_text)
+        sh.fit_row(r, {0: text}, {0: last})
+    return r
+
+
+def _purchases(sh: _Sheet, plan: "Plan", r: int, out: dict[str, int]) -> int:
+    """The purchase list: bought materials, need in kg and in L, pack, packs to order and
+    what they hold; then the note on materials not bought.  Return the last row."""
+    ws, st = sh.ws, sh.st
+    rows = purchase_rows(plan)
+    r += 2
+    put(ws, r, 0, "To order, whole campaign (packs cover the need)", st.subtitle)
+    r += 1
+    out["purchases"] = r
+    sh.headings(r, [sheet_title(c) for c in PURCHASE_COLUMNS])
+    for row in rows:
+        r += 1
+        for i, col in enumerate(PURCHASE_COLUMNS):
+            v = row[col.key]
+            fmt = (st.integer if col.key == "packs" else st.quantity(v) if isinstance(v, float) else st.cell_text)
+            put(ws, r, i, v, fmt)
+        sh.fit_row(r, {0: row["material"], 1: row["name"]})
+    note = not_bought_note(plan)
+    if note:
+        r += 1
+        ws.merge_range(r, 0, r, sh.last, "", st.note)
+        ws.write_string(r, 0, note, st.note)
+        sh.fit_row(r, {0: note}, {0: sh.last})
     return r
 
 
@@ -454,4 +516,5 @@ def write_materials(ws, st: Styles, plan: "Plan", context: dict[str, str]) -> in
             ws.set_row(r, lines_height(lines))
     ws.freeze_panes(h + 1, 0)
     _page_setup(ws, (h, h), context)
+    protect(ws)
     return h

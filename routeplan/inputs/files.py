@@ -13,16 +13,21 @@ import io
 from pathlib import Path
 from typing import Any, Callable
 
-from routeplan.errors import Location
+from routeplan.errors import Location, not_a_regular_file
 
-__all__ = ["read_bytes", "yaml_document", "table_rows", "TABLE_SUFFIXES", "YAML_SUFFIXES"]
+__all__ = ["read_bytes", "yaml_document", "table_rows", "formula_cells", "refuse_unevaluated", "TABLE_SUFFIXES",
+           "YAML_SUFFIXES"]
 
 YAML_SUFFIXES = (".yaml", ".yml")
 TABLE_SUFFIXES = (".csv", ".xlsx", ".xlsm")
 
 
 def read_bytes(path: Path, error: type, what: str) -> bytes:
-    """The file's bytes; ``error`` (a RouteplanError class) when it cannot be read."""
+    """The file's bytes; ``error`` (a RouteplanError class) when it cannot be read, or when
+    it is not a regular file (a named pipe or a device could keep the reader waiting)."""
+    odd = not_a_regular_file(path)
+    if odd is not None:
+        raise error(f"the {what} {odd}", location=Location(str(path)), hint="give a .yaml, .csv or .xlsx file")
     try:
         return path.read_bytes()
     except OSError as exc:
@@ -75,3 +80,43 @@ def table_rows(path: Path, data: bytes, error: type, what: str) -> tuple[list[li
     title = ws.title
     wb.close()
     return rows, (lambda r, c: f"{title}!{get_column_letter(c + 1)}{r}")
+
+
+def formula_cells(path: Path, data: bytes) -> Callable[[int, int], str | None] | None:
+    """For a workbook, ``formula(r, c)``: the formula a cell of the first sheet holds (1-based
+    row, 0-based column), or None; None for a CSV file.
+
+    A workbook written by a program may hold formulas whose values no spreadsheet has
+    calculated: read with stored values, such a cell is empty.  The formulas are read only
+    when a caller asks about an empty cell.
+    """
+    if path.suffix.lower() == ".csv":
+        return None
+    cache: dict[str, list] = {}
+
+    def formula(r: int, c: int) -> str | None:
+        import openpyxl
+
+        if "cells" not in cache:
+            wb = openpyxl.load_workbook(io.BytesIO(data), read_only=True, data_only=False)
+            cache["cells"] = [list(row) for row in wb.worksheets[0].iter_rows(values_only=True)]
+            wb.close()
+        cells = cache["cells"]
+        value = cells[r - 1][c] if r - 1 < len(cells) and c < len(cells[r - 1]) else None
+        return value if isinstance(value, str) and value.startswith("=") else None
+
+    return formula
+
+
+def refuse_unevaluated(formula, path: Path, r: int, c: int, value: Any, cell: Callable[[int, int], str],
+                       error: type) -> None:
+    """Raise ``error`` when the empty cell ``value`` at row ``r``, column ``c`` holds a formula
+    that no spreadsheet has calculated (``formula`` from :func:`formula_cells`, or None)."""
+    if formula is None or not (value is None or str(value).strip() == ""):
+        return
+    held = formula(r, c)
+    if held:
+        raise error(f"cell {cell(r, c)} holds the formula {held} but no value: no spreadsheet has calculated it "
+                    "since it was written", location=Location(str(path), r, None, cell(r, c)),
+                    hint="open the file in a spreadsheet and save it (that stores the values), or type the value "
+                         "itself")

@@ -18,7 +18,8 @@ from typing import TYPE_CHECKING, Any, Mapping
 
 from routeplan.units import unit
 from routeplan.errors import Location, QuantityError, StockError
-from routeplan.inputs.files import TABLE_SUFFIXES, YAML_SUFFIXES, read_bytes, table_rows, yaml_document
+from routeplan.inputs.files import (TABLE_SUFFIXES, YAML_SUFFIXES, formula_cells, read_bytes, refuse_unevaluated,
+                                    table_rows, yaml_document)
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -105,8 +106,9 @@ def _read_yaml(route, path: Path, data: bytes) -> dict[str, Any]:
     return out
 
 
-def _table(route, path: Path, rows: list[list[Any]], cell) -> dict[str, Any]:
-    """Read header + rows; ``cell(row, col)`` names a cell for messages."""
+def _table(route, path: Path, rows: list[list[Any]], cell, formula=None) -> dict[str, Any]:
+    """Read header + rows; ``cell(row, col)`` names a cell for messages; ``formula(row,
+    col)`` gives the formula a workbook cell holds without a stored value (or None)."""
     if not rows:
         raise StockError("the stock table is empty; it needs the columns material, amount, unit",
                          location=Location(str(path)))
@@ -130,6 +132,8 @@ def _table(route, path: Path, rows: list[list[Any]], cell) -> dict[str, Any]:
                              location=Location(str(path), r, None, cell(r, len(header))),
                              hint="a decimal comma or a stray comma splits a field; quote it or remove it")
         get = (lambda c: row[idx[c]] if idx[c] < len(row) else None)
+        for name in _COLUMNS:
+            refuse_unevaluated(formula, path, r, idx[name], get(name), cell, StockError)
         key = str(get("material") or "").strip()
         amount, unit = get("amount"), str(get("unit") or "").strip()
         where = Location(str(path), r, None, cell(r, idx["material"]))
@@ -167,7 +171,7 @@ def read_stock(route: "Route", path: str | Path) -> dict[str, "pint.Quantity"]:
         return _read_yaml(route, path, data)
     if suffix in TABLE_SUFFIXES:
         rows, cell = table_rows(path, data, StockError, "stock file")
-        return _table(route, path, rows, cell)
+        return _table(route, path, rows, cell, formula_cells(path, data))
     raise StockError(f"unknown stock file type '{path.suffix}'", location=Location(str(path)),
                      hint="use .yaml, .csv or .xlsx")
 

@@ -37,7 +37,6 @@ __all__ = [
     "compare_plans",
     "compare_routes",
     "best_indices",
-    "tradeoff_sentence",
 ]
 
 #: A row whose lowest value is best / whose highest value is best.
@@ -127,8 +126,6 @@ class Comparison:
         The routes' common currency; None when they give none or differ.
     rows : tuple of CompareRow
         The measures, in display order.
-    tradeoff : str
-        One sentence: which route wins on which measure.
     notes : tuple of str
         What the reader must know (the target mass chosen, differing overages).
     plans : tuple of Plan
@@ -142,7 +139,6 @@ class Comparison:
     amount: float
     currency: str | None
     rows: tuple[CompareRow, ...]
-    tradeoff: str
     notes: tuple[str, ...] = ()
     plans: tuple["Plan", ...] = field(default=(), repr=False)
 
@@ -152,12 +148,6 @@ class Comparison:
             if r.key == key:
                 return r
         raise KeyError(key)
-
-    def to_dict(self) -> dict[str, Any]:
-        """The comparison as plain JSON values (see :mod:`routeplan.export.compare_out`)."""
-        from routeplan.export.compare_out import comparison_to_dict
-
-        return comparison_to_dict(self)
 
 
 # ------------------------------------------------------------------ the target
@@ -286,6 +276,12 @@ def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str 
                   for r in routes)
     if yields != YieldCase.EXPECTED:
         notes = [*notes, f"every route is planned at its steps' {yields} yields"]
+        for r, p in zip(routes, plans):
+            if p.yields_without_range:
+                notes.append(f"{_who(r)}: step{'s' if len(p.yields_without_range) > 1 else ''} "
+                             f"{', '.join(p.yields_without_range)} ha{'ve' if len(p.yields_without_range) > 1 else 's'}"
+                             f" no {yields} yield and {'are' if len(p.yields_without_range) > 1 else 'is'} planned at "
+                             f"the expected yield; the rows that depend on yields are not ranked")
     if confidence is not None:
         u = plans[0].uncertainty
         notes = [*notes, f"every route's step yields are drawn {u.draws} times ({u.distribution}, seed {u.seed})"]
@@ -316,51 +312,11 @@ def best_indices(values: Sequence[float | None], better: BetterIs | str | None) 
 
 
 def _join(words: Sequence[str]) -> str:
+    """``a, b and c``: words joined for a note."""
     words = list(words)
     if len(words) <= 1:
         return "".join(words)
     return ", ".join(words[:-1]) + " and " + words[-1]
-
-
-def tradeoff_sentence(labels: Sequence[str], rows: Sequence[CompareRow]) -> str:
-    """One sentence saying which route wins on which measure.
-
-    Examples
-    --------
-    >>> rows = [CompareRow("pmi", "PMI", "PMI", "kg/kg", "ratio", LOWER, (20.0, 30.0), best=(0,)),
-    ...         CompareRow("batches", "batches", "batches", "-", "count", LOWER, (9, 6), best=(1,))]
-    >>> tradeoff_sentence(["A", "B"], rows)
-    'A wins on PMI; B wins on batches.'
-    """
-    wins: dict[tuple[int, ...], list[str]] = {}
-    equal: list[str] = []
-    unranked: list[str] = []
-    for r in rows:
-        if r.better is None:
-            continue
-        if r.best:
-            wins.setdefault(r.best, []).append(r.short)
-        elif r.all_equal:
-            equal.append(r.short)
-        else:
-            unranked.append(r.short)
-    parts = []
-    ranked_count = sum(len(v) for v in wins.values())
-    for idx in sorted(wins, key=lambda k: (-len(wins[k]), k)):
-        who = _join([labels[i] for i in idx])
-        verb = "wins" if len(idx) == 1 else "share the best value"
-        if len(idx) == 1 and len(wins) == 1 and not equal and not unranked:
-            parts.append(f"{who} wins on every measure ranked ({_join(wins[idx])})")
-        else:
-            parts.append(f"{who} {verb} on {_join(wins[idx])}")
-    if equal:
-        parts.append(f"the routes are equal on {_join(equal)}")
-    if unranked:
-        parts.append(f"{_join(unranked)} cannot be ranked")
-    if not ranked_count and not parts:
-        return "No measure could be ranked."
-    text = "; ".join(parts)
-    return text[0].upper() + text[1:] + "."
 
 
 # ----------------------------------------------------------------------- rows
@@ -535,7 +491,7 @@ def compare_plans(plans: Sequence["Plan"], notes: Sequence[str] = ()) -> Compari
 
     plans = tuple(p if p.metrics is not None else _with_metrics(p, compute_metrics(p)) for p in plans)
     labels = _labels(plans)
-    rows = _rows(plans)
+    rows = _unranked_without_ranges(plans, labels, _rows(plans))
     currencies = {p.route.currency for p in plans}
     amounts = [p.target_mass.m_as("kg") / (1 + p.route.target.overage) for p in plans]
     if any(not math.isclose(a, amounts[0], rel_tol=1e-9) for a in amounts):
@@ -550,10 +506,29 @@ def compare_plans(plans: Sequence["Plan"], notes: Sequence[str] = ()) -> Compari
         amount=amounts[0],
         currency=next(iter(currencies)) if len(currencies) == 1 else None,
         rows=rows,
-        tradeoff=tradeoff_sentence(labels, rows),
         notes=tuple(notes),
         plans=plans,
     )
+
+
+#: Rows that do not depend on the step yields, ranked whatever yields were planned.
+_YIELD_FREE_ROWS = ("target_mass", "steps", "longest_linear_sequence")
+
+
+def _unranked_without_ranges(plans, labels, rows):
+    """``rows`` with no best value marked where a yield-dependent row compares a route
+    planned at the low (or high) yields with steps that have no such yield: those steps
+    were planned at their expected yields, so the route would be ranked as if certain."""
+    from dataclasses import replace
+
+    gaps = [(label, p.yield_basis) for label, p in zip(labels, plans)
+            if p.yield_basis != "expected" and p.yields_without_range]
+    if not gaps:
+        return rows
+    note = (f"not ranked: {', '.join(label for label, _ in gaps)} ha{'s' if len(gaps) == 1 else 've'} steps "
+            f"without a {gaps[0][1]} yield, planned at their expected yields")
+    return tuple(r if r.key in _YIELD_FREE_ROWS or r.better is None else replace(r, best=(), note=note)
+                 for r in rows)
 
 
 def _with_metrics(plan: "Plan", metrics) -> "Plan":

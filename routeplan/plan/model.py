@@ -378,6 +378,18 @@ class RawMaterialTotal:
         ``mass * price`` in the route's currency; None without a price or currency.
     steps : tuple of str
         Ids of the steps that charge it.
+    bought : bool
+        False when the route marks the material as not bought (``bought: false``, e.g.
+        process water): charged, but left out of the purchase list.
+    pack_size : float or None
+        Size of one pack as sold, in ``pack_unit`` [kg] or [L] (``pack`` as a Quantity);
+        None when the route gives none.
+    pack_unit : str or None
+        ``"kg"`` for a pack by mass, ``"L"`` for one by volume.
+    packs : int or None
+        Fewest whole packs covering ``m_kg`` (a pack by mass) or ``V_L`` (a pack by
+        volume) [-] (:func:`routeplan.plan.purchase.packs_to_order`); None without a
+        pack or when not bought.  ``ordered`` is ``packs * pack`` as a Quantity.
     """
 
     material: str
@@ -387,6 +399,20 @@ class RawMaterialTotal:
     n_mol: float | None
     cost: float | None
     steps: tuple[str, ...]
+    bought: bool = True
+    pack_size: float | None = None
+    pack_unit: str | None = None
+    packs: int | None = None
+
+    @property
+    def pack(self) -> "pint.Quantity | None":
+        """Size of one pack [kg] or [L], or None."""
+        return None if self.pack_size is None else _q(self.pack_size, self.pack_unit)
+
+    @property
+    def ordered(self) -> "pint.Quantity | None":
+        """What the packs to order hold, ``packs * pack`` [kg] or [L], or None."""
+        return None if self.packs is None else _q(self.packs * self.pack_size, self.pack_unit)
 
     @property
     def mass(self) -> "pint.Quantity":
@@ -488,6 +514,9 @@ class Plan:
         Stock comparison, when a stock list was given.
     yield_basis : str
         Which step yields the walk used: ``"expected"``, ``"low"`` or ``"high"``.
+    yields_without_range : tuple of str
+        Ids of the steps without the ``low`` (or ``high``) yield asked for, planned at
+        their expected yield instead; empty at the expected yields.
     schedule : Schedule or None
         Every batch on its vessel in time (:mod:`routeplan.plan.schedule`); None unless
         every step has a ``cycle_time``.
@@ -516,6 +545,7 @@ class Plan:
     warnings: tuple[Problem, ...] = ()
     stock: StockPlan | None = None
     yield_basis: str = "expected"
+    yields_without_range: tuple[str, ...] = ()
     schedule: "Schedule | None" = None
     waste: "Waste | None" = None
     cost_of_goods: "CostOfGoods | None" = None

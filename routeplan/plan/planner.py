@@ -125,11 +125,13 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     PlanError
         When the route cannot be planned (e.g. a non-positive target).
     """
+    from routeplan.plan import guards
     from routeplan.plan.campaign import size_steps
     from routeplan.plan.charges import step_plans
     from routeplan.plan.metrics import compute_metrics
     from routeplan.plan.safety import assess_safety
     from routeplan.plan.model import Plan
+    from routeplan.plan.purchase import with_packs
     from routeplan.plan.totals import overall_yield, raw_material_totals
     from routeplan.units import unit
 
@@ -149,6 +151,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     if yields not in YIELD_BASES:
         raise PlanError(f"unknown yield basis '{yields}'", hint="use expected, low or high")
     amount_kg = _amount_kg(route, target)
+    guards.check_target(amount_kg, route.target.overage, route.target.location)
     on_hand, source, shelf_kg = None, None, None
     if stock is not None:
         from routeplan.inputs.stock import load_stock
@@ -161,15 +164,19 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     account, shelf_kg, yield_of = _record_inputs(route, record, shelf_kg, yields, record_yields)
     shelf_name = "the stock" if account is None else "what is in hand" if stock is None else "the stock and what is in hand"
     walked = walk_route(route, amount_kg, yields=yields, shelf_kg=shelf_kg, yield_of=yield_of, shelf_name=shelf_name)
+    guards.check_amounts(route, walked)
+    no_range = guards.steps_without_range(route, yields)
     sized, batch_warnings = size_steps(route, walked)
     steps = step_plans(route, walked, sized)
     steps, safety_warnings = assess_safety(route, steps)
     draft = Draft(route=route, target_material=route.target.material,
                   target_kg=amount_kg * (1 + route.target.overage), target_n_mol=walked.n_target_mol,
-                  steps=steps, raw_materials=raw_material_totals(route, steps),
+                  steps=steps, raw_materials=with_packs(route, raw_material_totals(route, steps)),
                   overall_yield=overall_yield(route, steps, walked.n_target_mol), yield_basis=yields)
     warnings: list[Problem] = [*route.warnings, *batch_warnings, *safety_warnings,
                                *(() if account is None else account.warnings)]
+    if no_range:
+        warnings.append(guards.range_warning(route, yields, no_range))
     stock_plan = None
     if stock is not None:
         from routeplan.plan.stock import stock_plan as compare_stock
@@ -194,6 +201,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         target_n_mol=draft.target_n_mol, steps=steps, raw_materials=draft.raw_materials,
         overall_yield=draft.overall_yield, metrics=compute_metrics(draft),
         warnings=tuple(warnings), stock=stock_plan, yield_basis=yields, uncertainty=uncertainty,
+        yields_without_range=no_range,
         schedule=schedule, waste=waste, cost_of_goods=cost_of_goods,
         record=record_plan,
     )

@@ -30,9 +30,10 @@ from routeplan.route import checks_safety
 from routeplan.route.checks_plausibility import MOLAR_MASS_TOLERANCE
 from routeplan.route.schema import CHARGE_BASES, MaterialModel, StepModel, TargetModel, VesselModel
 from routeplan.route.yamlpos import Positions
-from routeplan.vocab import Basis, Severity
+from routeplan.vocab import Basis, Role, Severity
 
 __all__ = ["Parts", "Facts", "check_parts", "suggest", "MOLAR_MASS_TOLERANCE"]
+
 
 #: Largest relative difference allowed between a material's density and its solution's [-].
 _DENSITY_TOLERANCE = 1e-3
@@ -134,7 +135,14 @@ class _Checker:
         self.problems.append(Problem(severity, message, self.pos.at(path, key=key, show=show), step, hint))
 
     def unknown_material(self, name: str, path: tuple, what: str, step: str | None = None) -> None:
+        from routeplan.route.schema import lookalike_hint
+
         hint = suggest(name, self.parts.material_keys, formulas=self.facts.formulas)
+        near = [k for k in self.parts.material_keys if lookalike_hint(k) and lookalike_hint(k).endswith(f"'{name}'")]
+        if near:
+            hint = f"the material is defined as '{near[0]}', whose " + lookalike_hint(near[0]).removeprefix("the ")
+        elif lookalike_hint(name):
+            hint = lookalike_hint(name).replace("the key holds", f"'{name}' holds", 1)
         self.add(Severity.ERROR, path, f"{what} '{name}' is not a material of this route", hint or
                  "add it under 'materials'", step=step)
 
@@ -177,10 +185,10 @@ class _Checker:
                 self.solution(key, m)
         self.found(checks_safety.gas_findings(self.parts.materials))
 
-    def found(self, findings) -> bool:
+    def found(self, findings, step: str | None = None) -> bool:
         """Add plausibility findings (:mod:`routeplan.route.checks_plausibility`); True if any."""
         for f in findings:
-            self.add(f.severity, f.path, f.message, f.hint)
+            self.add(f.severity, f.path, f.message, f.hint, step=step)
         return bool(findings)
 
     def compare(self, path: tuple, value, what: str, reference, source: str) -> None:
@@ -204,6 +212,7 @@ class _Checker:
                          "install the 'smiles' extra (pip install 'routeplan[smiles]') or give a formula")
             return None
         from routeplan.chemistry.formula import molar_mass
+        from routeplan.units import Q
 
         from rdkit import rdBase
 
@@ -220,9 +229,9 @@ class _Checker:
             self.add(Severity.ERROR, ("materials", key, "smiles"), f"'{m.smiles}' is not a valid SMILES: {detail}",
                      "correct the SMILES, or give a formula instead")
             return None
-        formula = rdMolDescriptors.CalcMolFormula(mol)
+        formula, shift = smiles_formula(mol)
         try:
-            mass = molar_mass(formula).to("g/mol")
+            mass = molar_mass(formula).to("g/mol") + Q(shift, "g/mol")
         except FormulaError as exc:  # pragma: no cover - RDKit writes formulas we read
             self.add(Severity.ERROR, ("materials", key, "smiles"), exc.message, exc.hint)
             return None
@@ -272,6 +281,11 @@ class _Checker:
                 self.add(Severity.ERROR, here + ("vessel",), f"vessel '{s.vessel}' is not in equipment",
                          hint or "valid vessels: " + ", ".join(self.parts.equipment), step=s.id)
             y = s.yield_
+            for which in ("expected", "low", "high"):
+                value = getattr(y, which, None) if y is not None else None
+                if value is not None:
+                    at = here + ("yield",) + ((which,) if self.raw_yield(i) is not None else ())
+                    self.found(plausible.yield_findings(at, s.id, which, value), step=s.id)
             for bound, ok in (("low", y is None or y.low is None or y.low <= y.expected),
                               ("high", y is None or y.high is None or y.expected <= y.high)):
                 if not ok:
@@ -333,9 +347,13 @@ class _Checker:
                 continue
             bases = [b for b in CHARGE_BASES if getattr(c, b) is not None]
             if len(bases) > 1:
-                self.add(Severity.ERROR, at + (bases[1],), f"the line gives both {bases[0]} and {bases[1]}",
+                self.add(Severity.ERROR, at + (bases[1],), f"the line of {c.material} gives both {bases[0]} and {bases[1]}",
                          "a charge line takes at most one basis", key=True, step=s.id)
             basis = bases[0] if bases else None
+            if basis is not None and len(bases) == 1 and not (eq_ok and c.material == limiting):
+                role = c.role or _default_role(basis, c.material in reactants)
+                self.found(plausible.charge_findings(at + (basis,), c.material, basis, getattr(c, basis), role),
+                           step=s.id)
             if basis in (Basis.EQUIV, Basis.MOL_PERCENT):
                 self.molar_use.setdefault(c.material, at + (basis,))
             if basis == Basis.VOLUMES:
@@ -450,8 +468,14 @@ class _Checker:
                      "the route gives waste prices but no currency; no waste cost will be computed",
                      "add e.g. 'currency: EUR' at the top level", key=True)
 
+    def raw_yield(self, i: int):
+        """What the file gives as ``steps[i].yield`` (a mapping or a plain value), by position."""
+        return "mapping" if ("steps", i, "yield", "expected") in self.pos.values else None
+
     def target(self) -> None:
         t = self.parts.target
+        if t is not None and getattr(t, "overage", None):
+            self.found(plausible.overage_findings(("target", "overage"), t.overage))
         if t is None or t.material is None:
             return
         if not self.known(t.material):
@@ -489,6 +513,13 @@ class _Checker:
             self.add(Severity.ERROR, ("target", "material"), f"no step makes the target '{t.material}' as its product",
                      (f"it is only a by-product of {', '.join(byproduct)}; set that step's 'product'"
                       if byproduct else "add the step that makes it"))
+        elif t is not None and t.material in made_by and steps[made_by[t.material]].isolated is False:
+            i = made_by[t.material]
+            self.add(Severity.ERROR, ("steps", i, "isolated"),
+                     f"step {steps[i].id} makes the target '{t.material}' but says 'isolated: false': a product "
+                     "that is never isolated cannot be delivered by mass",
+                     "remove 'isolated: false' from the target step (the target is isolated at its assay)",
+                     step=steps[i].id)
         self.graph(steps, made_by)
 
     def graph(self, steps: list[StepModel], made_by: dict[str, int]) -> None:
@@ -543,6 +574,50 @@ class _Checker:
                 s = self.parts.steps[i]
                 self.add(Severity.WARNING, ("steps", i, "equation"), describe_imbalance(diff, s.id),
                          "check the coefficients and the formulas", step=s.id)
+
+
+def smiles_formula(mol) -> tuple[str, float]:
+    """The formula of an RDKit molecule, isotope labels kept, and the mass they add.
+
+    Deuterium and tritium (``[2H]``, ``[3H]``) are written ``D`` and ``T``, which the
+    formula parser weighs with their own atomic masses.  Another labelled atom
+    (``[13C]``) is counted as its element in the formula (so the atoms still balance),
+    and the difference between its isotope's mass and the element's standard atomic
+    weight is returned apart.
+
+    Returns
+    -------
+    tuple
+        (formula, mass to add to the formula's molar mass [g/mol]).  Isotope masses are
+        from RDKit's periodic table (atomic masses of the isotopes).
+    """
+    from rdkit import Chem
+    from rdkit.Chem import rdMolDescriptors
+
+    from routeplan.chemistry.elements import atomic_weight
+
+    formula = rdMolDescriptors.CalcMolFormula(mol, True, True)  # separate isotopes, H isotopes as D, T
+    if "[" not in formula:
+        return formula, 0.0
+    table = Chem.GetPeriodicTable()
+    shift = 0.0
+    for atom in mol.GetAtoms():
+        iso = atom.GetIsotope()
+        if iso and not (atom.GetAtomicNum() == 1 and iso in (2, 3)):
+            shift += table.GetMassForIsotope(atom.GetAtomicNum(), iso) - atomic_weight(atom.GetSymbol())
+    plain = Chem.Mol(mol)
+    for atom in plain.GetAtoms():
+        if not (atom.GetAtomicNum() == 1 and atom.GetIsotope() in (2, 3)):
+            atom.SetIsotope(0)
+    return rdMolDescriptors.CalcMolFormula(plain, True, True), shift
+
+
+def _default_role(basis: "Basis | None", reactant: bool) -> "Role":
+    """The role of a charge line that gives none (route format: a reactant of the equation
+    is a reactant, ``mol_percent`` a catalyst, ``volumes`` a solvent, else a reagent)."""
+    if reactant:
+        return Role.REACTANT
+    return {Basis.MOL_PERCENT: Role.CATALYST, Basis.VOLUMES: Role.SOLVENT}.get(basis, Role.REAGENT)
 
 
 def _bad(m) -> frozenset:

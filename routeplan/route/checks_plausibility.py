@@ -9,7 +9,11 @@ here catch what such values betray, usually a unit or a decimal point gone wrong
 - a solution whose solute would weigh as much as the solution or more (by ``molarity``
   times the molar mass, or a ``mass_fraction`` of 100 %);
 - an equation whose products do not weigh what its reactants weigh (Σν·M), where the atom
-  balance cannot run because a species has no formula.
+  balance cannot run because a species has no formula;
+- a charge line, a step yield or an overage outside the usual range of its basis and role
+  (:data:`CHARGE_RANGES`, :data:`LOWEST_USUAL_YIELD`, :data:`HIGHEST_USUAL_OVERAGE`): a
+  warning that says what is usual (an error under ``--strict``); a ``mol_percent`` above
+  100 is an error, since it is more than one equivalent.
 
 Each function returns :class:`Finding` objects; :mod:`routeplan.route.checks` places them
 in the file.  Nothing here reads the file or prints.
@@ -24,8 +28,9 @@ from typing import Any, Mapping
 from routeplan.route.findings import Finding
 from routeplan.vocab import Severity
 
-__all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "MOLAR_MASS_TOLERANCE", "density_findings",
-           "molar_mass_findings", "solution_findings", "mass_balance_finding"]
+__all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "MOLAR_MASS_TOLERANCE", "CHARGE_RANGES",
+           "LOWEST_USUAL_YIELD", "HIGHEST_USUAL_OVERAGE", "charge_findings", "yield_findings", "overage_findings", "density_findings", "molar_mass_findings",
+           "solution_findings", "mass_balance_finding"]
 
 #: Densities a material or solution of a route may have [g/mL], inclusive.
 #: Upper bound: osmium, the densest element, is 22.59 g/cm³ (CRC Handbook of Chemistry and
@@ -42,6 +47,36 @@ MOLAR_MASS_TOLERANCE = 1e-3
 #: the reactants, below which an equation counts as balanced by mass [-] (0.5 %).  Molar
 #: masses typed with four or five significant figures stay far inside it.
 MASS_BALANCE_TOLERANCE = 5e-3
+
+#: Highest usual value of a charge line, by basis and role [-]: ``(basis, role)`` -> (limit,
+#: what is usual).  A role of None stands for every role not listed for that basis.  Each
+#: limit is common practice, no source:
+#:
+#: - a catalyst by ``mass_ratio`` (Pd/C, Raney nickel) is charged at a few to 20 % of the
+#:   substrate's mass; above 0.5 kg/kg (50 wt %) it is a percentage typed as a ratio;
+#: - another material by ``mass_ratio`` (a filter aid, carbon, a salt) above 10 kg/kg;
+#: - ``equiv`` above 10 on any line but a solvent (a reagent that is also the solvent is
+#:   charged in large excess);
+#: - ``volumes`` above 50 L/kg: a step that dilute does not fit a plant vessel;
+#: - ``mol_percent`` above 100 is more than one equivalent: an error, not a warning.
+CHARGE_RANGES = {
+    ("mass_ratio", "catalyst"): (0.5, "a catalyst by mass is usually 0.01 to 0.2 kg per kg of limiting reagent "
+                                      "(1 to 20 wt %)"),
+    ("mass_ratio", "solvent"): (50.0, "a solvent is usually up to 50 kg per kg of limiting reagent"),
+    ("mass_ratio", None): (10.0, "a charge by mass ratio is usually up to 10 kg per kg of limiting reagent"),
+    ("equiv", "solvent"): (None, ""),
+    ("equiv", None): (10.0, "a material is usually charged at up to 10 equiv"),
+    ("volumes", None): (50.0, "a step usually runs at up to 50 volumes (L per kg of limiting reagent)"),
+    ("mol_percent", None): (100.0, "a catalyst is usually 0.01 to 20 mol %; 100 mol % is one equivalent"),
+}
+
+#: Lowest usual step yield [-]: a step below 10 % is a percent typed as a fraction or a
+#: step no campaign would run (common practice, no source).
+LOWEST_USUAL_YIELD = 0.10
+
+#: Highest usual target overage [-]: a margin above 100 % plans twice the target
+#: (common practice, no source).
+HIGHEST_USUAL_OVERAGE = 1.0
 
 #: A solute's mass per litre this close below the solution's still counts as equal [-]
 #: (absorbs the rounding of unit conversions).
@@ -243,3 +278,77 @@ def mass_balance_finding(path: tuple, step_id: str | None, equation,
                    f"{who} does not balance by mass: the products weigh {_g(abs(diff))} g/mol {how} than the "
                    f"reactants ({_g(products)} vs {_g(reactants)} g/mol)",
                    "check the coefficients and the molar masses; atom economy would be wrong")
+
+
+def charge_findings(path: tuple, material: str, basis: str, value: float, role: str) -> list[Finding]:
+    """A warning (an error for ``mol_percent``) when a charge line is above the usual range
+    of its basis and role (:data:`CHARGE_RANGES`).
+
+    Parameters
+    ----------
+    path : tuple
+        Key path of the basis value, e.g. ``("steps", 0, "charges", 2, "equiv")``.
+    material : str
+        The material charged, for the message.
+    basis : str
+        ``equiv``, ``mol_percent``, ``volumes`` or ``mass_ratio``.
+    value : float
+        The value of the basis [-] (equiv, mol %, L/kg or kg/kg).
+    role : str
+        The line's role, given or by default.
+
+    Examples
+    --------
+    >>> charge_findings(("equiv",), "Ac2O", "equiv", 1.1, "reagent")
+    []
+    >>> charge_findings(("equiv",), "Ac2O", "equiv", 11, "reagent")[0].message
+    'Ac2O is charged at equiv: 11, above the usual range (more than 10) for a reagent'
+    """
+    limit, usual = CHARGE_RANGES.get((basis, role), CHARGE_RANGES.get((basis, None), (None, "")))
+    if limit is None or value <= limit:
+        return []
+    if basis == "mol_percent":
+        return [Finding(Severity.ERROR, path, f"{material} is charged at mol_percent: {_g(value)}, that is "
+                                       f"{_g(value / 100)} equivalents, more than one",
+                        f"{usual}; write 'equiv: {_g(value / 100)}' if that much is meant")]
+    hint = usual
+    if basis == "mass_ratio" and role == "catalyst" and value <= 100:
+        hint += f"; for {_g(value)} wt % write 'mass_ratio: {_g(value / 100)}'"
+    return [Finding(Severity.WARNING, path, f"{material} is charged at {basis}: {_g(value)}, above the usual range "
+                                     f"(more than {_g(limit)}) for a {role}", hint)]
+
+
+def yield_findings(path: tuple, step_id: str, which: str, value: float) -> list[Finding]:
+    """A warning when a step yield (``which``: expected, low or high) is below
+    :data:`LOWEST_USUAL_YIELD`.
+
+    Examples
+    --------
+    >>> yield_findings(("yield",), "S1", "expected", 0.009)[0].message
+    'step S1: a yield of 0.9 % is below the usual range (less than 10 %)'
+    """
+    if value >= LOWEST_USUAL_YIELD:
+        return []
+    shown = f"{value * 100:.4g} %"
+    what = "a yield" if which == "expected" else f"a {which} yield"
+    hint = "a step usually yields 10 to 100 %"
+    if 1e-4 <= value < 0.01:  # '0.9 %' where the fraction 0.9 (90 %) was meant
+        hint += f"; was the fraction {value * 100:.4g} ({value * 1e4:.4g} %) meant?"
+    return [Finding(Severity.WARNING, path, f"step {step_id}: {what} of {shown} is below the usual range "
+                                     f"(less than {LOWEST_USUAL_YIELD * 100:g} %)", hint)]
+
+
+def overage_findings(path: tuple, overage: float) -> list[Finding]:
+    """A warning when the target's overage is above :data:`HIGHEST_USUAL_OVERAGE`.
+
+    Examples
+    --------
+    >>> overage_findings(("target", "overage"), 0.02)
+    []
+    """
+    if overage <= HIGHEST_USUAL_OVERAGE:
+        return []
+    return [Finding(Severity.WARNING, path, f"an overage of {overage * 100:.4g} % is above the usual range "
+                                     f"(more than {HIGHEST_USUAL_OVERAGE * 100:g} %): the plan makes "
+                                     f"{1 + overage:.4g} times the target",
+                    "a planning margin is usually 0 to 20 %")]

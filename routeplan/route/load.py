@@ -24,10 +24,10 @@ from typing import Annotated, Any
 
 from pydantic import TypeAdapter, ValidationError
 
-from routeplan.errors import Location, Problem, RouteError
-from routeplan.route.checks import Facts, Parts, check_parts
-from routeplan.route.model import (Charge, Conditions, Dosing, Material, Route, Solution, Source, Step, Target, Thermal,
-                                   Vessel, WastePrices, Yield)
+from routeplan.errors import Location, Problem, RouteError, not_a_regular_file
+from routeplan.route.checks import Facts, Parts, _default_role, check_parts
+from routeplan.route.model import (DEFAULT_CHARGE_TOLERANCE, Charge, Conditions, Control, Dosing, Material, Route,
+                                   Solution, Source, Step, Target, Thermal, Vessel, WastePrices, Yield)
 from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepModel, TargetModel, VesselModel,
                                     WastePricesModel, describe_value,
                                     keys_of, validation_problems)
@@ -60,6 +60,9 @@ def load_route(path: str | os.PathLike) -> Route:
         Listing every problem found, each with file, line, column and key path.
     """
     name = os.fspath(path)
+    odd = not_a_regular_file(name)
+    if odd is not None and not os.path.isdir(name):
+        raise _one(name, odd, "give the route file itself (YAML text)")
     try:
         size = os.path.getsize(name)
         if size > MAX_BYTES:
@@ -150,6 +153,9 @@ def _load_bytes(data: bytes, file: str) -> Route:
         parts = _salvage(doc)
     found, facts = check_parts(parts, pos)
     problems += found
+    from routeplan.route.checks_buying import buying_problems
+
+    problems += buying_problems(parts, facts, pos)
     errors = [p for p in problems if p.severity == Severity.ERROR]
     if errors:
         raise RouteError(_sorted(errors), file=file)
@@ -247,11 +253,12 @@ def _build(model: RouteFile, facts: Facts, pos: Positions, source: Source, warni
     steps = tuple(_step(i, s, facts, pos) for i, s in enumerate(model.steps))
     t = model.target
     target = Target(material=t.material, amount=t.amount.to("kg"), overage=t.overage, location=pos.at(("target",)))
+    tolerance = model.charge_tolerance if model.charge_tolerance is not None else DEFAULT_CHARGE_TOLERANCE
     wp = model.waste_prices
     waste_prices = None if wp is None else WastePrices(wp.aqueous, wp.organic, wp.halogenated)
     return Route(name=model.route, target=target, materials=materials, steps=steps, equipment=equipment,
                  currency=model.currency, format=model.format, source=source, warnings=warnings,
-                 waste_prices=waste_prices)
+                 waste_prices=waste_prices, charge_tolerance=tolerance)
 
 
 def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Material:
@@ -268,13 +275,15 @@ def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Mater
         smiles=m.smiles, molar_mass=facts.molar_masses.get(key), assay=m.assay if m.assay is not None else 1.0,
         density=density, solution=solution, price=m.price, hazards=tuple(m.hazards or ()), notes=m.notes,
         starting_material=m.starting_material,
-        location=pos.at(("materials", key), key=True), phase=m.phase, stream=m.stream)
+        location=pos.at(("materials", key), key=True), phase=m.phase, stream=m.stream, pack=_pack_unit(m.pack),
+        bought=m.bought)
 
 
-def _default_role(basis: Basis | None, reactant: bool) -> Role:
-    if reactant:
-        return Role.REACTANT
-    return {Basis.MOL_PERCENT: Role.CATALYST, Basis.VOLUMES: Role.SOLVENT}.get(basis, Role.REAGENT)
+def _pack_unit(q):
+    """A pack size in kg (a mass) or L (a volume), or None."""
+    if q is None:
+        return None
+    return q.to("kg") if q.check("[mass]") else q.to("L")
 
 
 def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
@@ -297,7 +306,7 @@ def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
             value = getattr(c, basis)
         role = c.role if c.role is not None else _default_role(basis, c.material in reactants)
         lines.append(Charge(material=c.material, basis=basis, value=float(value), role=role,
-                            location=pos.at(("steps", i, "charges", j))))
+                            location=pos.at(("steps", i, "charges", j)), tolerance=c.tolerance))
     y = s.yield_
     return Step(
         id=s.id, name=s.name if s.name is not None else s.id, equation=eq, equation_text=s.equation,
@@ -305,7 +314,9 @@ def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
         charges=tuple(lines), isolated=s.isolated, vessel=s.vessel,
         demonstrated_batch=s.demonstrated_batch.to("kg") if s.demonstrated_batch is not None else None,
         notes=s.notes, location=pos.at(("steps", i)),
-        cycle_time=s.cycle_time.to("h") if s.cycle_time is not None else None, **_safety_parts(i, s, pos))
+        cycle_time=s.cycle_time.to("h") if s.cycle_time is not None else None,
+        controls=tuple(Control(point=k.point, check=k.check, limit=k.limit) for k in (s.controls or ())),
+        **_safety_parts(i, s, pos))
 
 
 def _kelvin(q):

@@ -30,6 +30,8 @@ __all__ = [
     "Material",
     "Vessel",
     "Charge",
+    "Control",
+    "DEFAULT_CHARGE_TOLERANCE",
     "Yield",
     "Conditions",
     "Dosing",
@@ -45,6 +47,10 @@ __all__ = [
 #: ``"stoichiometric"`` (a reactant with no basis: its coefficient ratio).  The members of
 #: :class:`routeplan.vocab.Basis`, which compare equal to these words.
 BASES: tuple[Basis, ...] = tuple(Basis)
+
+#: How far a weighed charge may be from its mass to charge, either way, when the route
+#: gives no ``charge_tolerance`` [-] (common practice, no source).
+DEFAULT_CHARGE_TOLERANCE = 0.01
 
 #: Roles a charge line may have: the members of :class:`routeplan.vocab.Role`.
 ROLES: tuple[Role, ...] = tuple(Role)
@@ -107,6 +113,11 @@ class Material:
     phase : str or None
         ``"solid"``, ``"liquid"`` or ``"gas"`` where the file says; a material is a gas
         only when it says ``phase: gas``.
+    pack : pint.Quantity or None
+        Size of one pack as sold: a mass [kg] or a volume [L]; None when not given.
+    bought : bool
+        False for a raw material the route marks as not bought (process water): it is
+        charged, but left out of the purchase list.
     starting_material : bool
         Marked by the route as a starting material (its atoms end up in the target),
         besides the bought limiting reagents, which are starting materials anyway.
@@ -128,6 +139,8 @@ class Material:
     notes: str | None = None
     location: Location | None = None
     phase: str | None = None
+    pack: "pint.Quantity | None" = None
+    bought: bool = True
     starting_material: bool = False
     stream: str | None = None
 
@@ -174,6 +187,9 @@ class Charge:
         True when the loader added the line (a reactant of the equation with no line).
     location : Location or None
         Where the line is in the route file.
+    tolerance : float or None
+        How far the mass weighed in may be from the mass to charge, either way [-];
+        None: the route's ``charge_tolerance``.
     """
 
     material: str
@@ -182,6 +198,7 @@ class Charge:
     role: Role
     implicit: bool = False
     location: Location | None = None
+    tolerance: float | None = None
 
     def __post_init__(self) -> None:
         if not isinstance(self.basis, Basis):
@@ -197,6 +214,25 @@ class Charge:
         if self.basis is Basis.MOL_PERCENT:
             return self.value / 100.0
         return None
+
+
+@dataclass(frozen=True)
+class Control:
+    """A point of a step where the operator records temperature and time.
+
+    Attributes
+    ----------
+    point : str
+        Where in the step (``after dosing``).
+    check : str or None
+        The in-process check taken there (``HPLC conversion``).
+    limit : str or None
+        The result it must reach (``>= 98 %``), as written.
+    """
+
+    point: str
+    check: str | None = None
+    limit: str | None = None
 
 
 @dataclass(frozen=True)
@@ -310,6 +346,8 @@ class Step:
         The dosed charge (semi-batch); None for a batch step.
     thermal : Thermal or None
         Thermal data; None: the step is not screened.
+    controls : tuple of Control
+        Points where the operator records temperature and time, in order.
     cycle_time : pint.Quantity or None
         Vessel time for one batch, cleaning included [h].
     """
@@ -330,6 +368,11 @@ class Step:
     conditions: Conditions | None = None
     dosing: Dosing | None = None
     thermal: Thermal | None = None
+    controls: tuple[Control, ...] = ()
+
+    def charge_tolerance(self, charge: Charge, route: "Route") -> float:
+        """The tolerance of ``charge`` [-]: its own, else the route's."""
+        return charge.tolerance if charge.tolerance is not None else route.charge_tolerance
     cycle_time: "pint.Quantity | None" = None
 
     def charge_of(self, material: str) -> Charge | None:
@@ -412,6 +455,9 @@ class Route:
         The file the route came from.
     warnings : tuple of Problem
         Warnings found while loading.
+    charge_tolerance : float
+        How far a weighed charge may be from its mass to charge, either way, unless its
+        line says otherwise [-]; default :data:`DEFAULT_CHARGE_TOLERANCE`.
     waste_prices : WastePrices or None
         Disposal prices of the waste streams; None when the route file gives none.
     """
@@ -425,6 +471,7 @@ class Route:
     format: int = 1
     source: Source | None = None
     warnings: tuple[Problem, ...] = ()
+    charge_tolerance: float = DEFAULT_CHARGE_TOLERANCE
     waste_prices: WastePrices | None = None
 
     def __post_init__(self) -> None:

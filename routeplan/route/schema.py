@@ -45,6 +45,7 @@ __all__ = [
     "PHASES",
     "WastePricesModel",
     "CHARGE_BASES",
+    "ControlModel",
     "describe_value",
     "model_at",
     "keys_of",
@@ -201,6 +202,24 @@ def _phase(value: Any) -> str:
     raise _fail(f"must be one of {', '.join(PHASES)}; got {describe_value(value)}", hint)
 
 
+def _pack(value: Any):
+    """A pack size: a mass (``25 kg``) or a volume (``2.5 L``), positive."""
+    if value is None:
+        raise _fail("has no value; expected a pack size such as '25 kg' or '2.5 L'",
+                    "leave the key out if the material is not bought in packs")
+    try:
+        q = parse_quantity(value, "mass")
+    except QuantityError:
+        try:
+            q = parse_quantity(value, "volume")
+        except QuantityError as exc:
+            raise _fail(f"must be a pack size, a mass such as '25 kg' or a volume such as '2.5 L'; "
+                        f"got {describe_value(value)}", exc.hint) from None
+    if not math.isfinite(q.magnitude) or q.magnitude <= 0:
+        raise _fail(f"must be positive, got {describe_value(value)}")
+    return q
+
+
 def _fraction(*, allow_zero: bool, allow_above_one: bool = False):
     def check(value: Any) -> float:
         if value is None:
@@ -214,11 +233,41 @@ def _fraction(*, allow_zero: bool, allow_above_one: bool = False):
     return check
 
 
+#: Letters of other scripts that look like Latin ones, and the Latin letter each stands for
+#: (Cyrillic and Greek capitals and small letters drawn alike in common fonts).
+_LOOKALIKES = dict(zip(
+    "АВЕКМНОРСТХаеорсухіјѕԁԛԝΑΒΕΖΗΙΚΜΝΟΡΤΥΧον",
+    "ABEKMHOPCTXaeopcyxijsdqwABEZHIKMNOPTYXov"))
+
+
+def lookalike_hint(text: str) -> str | None:
+    """Name the characters of ``text`` that are not ASCII and suggest the key in Latin
+    letters where each is a look-alike; None for plain ASCII.
+
+    Examples
+    --------
+    >>> lookalike_hint("\u0410c2O")
+    "the key holds 'А' (U+0410 CYRILLIC CAPITAL LETTER A), which looks like the Latin 'A': write 'Ac2O'"
+    """
+    import unicodedata
+
+    odd = [ch for ch in dict.fromkeys(text) if ord(ch) > 127]
+    if not odd:
+        return None
+    named = ", ".join(f"'{ch}' (U+{ord(ch):04X} {unicodedata.name(ch, 'unnamed character')})" for ch in odd)
+    if all(ch in _LOOKALIKES for ch in odd):
+        latin = "".join(_LOOKALIKES.get(ch, ch) for ch in text)
+        like = ", ".join(f"'{_LOOKALIKES[ch]}'" for ch in odd)
+        return f"the key holds {named}, which looks like the Latin {like}: write '{latin}'"
+    return f"the key holds {named}; keys use Latin letters, digits, '-', '_' and '.'"
+
+
 def _material_key(value: Any) -> str:
     if isinstance(value, str) and MATERIAL_KEY.match(value):
         return value
+    hint = lookalike_hint(value) if isinstance(value, str) else None
     raise _fail(f"{describe_value(value)} is not a valid material key",
-                "use letters, digits, '-', '_' and '.', starting with a letter or digit, "
+                hint or "use letters, digits, '-', '_' and '.', starting with a letter or digit, "
                 "without spaces or '+'")
 
 
@@ -362,6 +411,12 @@ class MaterialModel(_Model):
                                      "description": "solid, liquid or gas; a product with phase gas is gas "
                                                     "evolved, a reactant with phase gas is gas taken up"})] = None
     notes: Text("free text") = None
+    pack: Annotated[Any, PlainValidator(_pack),
+                    WithJsonSchema({"type": "string", "pattern": QUANTITY_PATTERN, "examples": ["25 kg", "2.5 L"],
+                                    "description": "size of one pack as sold, a mass ('25 kg') or a volume "
+                                                   "('2.5 L'); the purchase list gives the packs to order"})] = None
+    bought: Boolean = Field(True, description="false for a raw material that is not bought (process water from "
+                                              "the site's supply): left out of the purchase list, still charged")
     starting_material: Boolean = Field(False, description="true for a bought reactant whose atoms end up in the "
                                                           "target besides the limiting reagents (an overall yield is "
                                                           "reported from it)")
@@ -402,6 +457,24 @@ class ChargeModel(_Model):
     mass_ratio: Number("kg per kg of limiting reagent as charged") = None
     role: Annotated[Any, PlainValidator(_role),
                     WithJsonSchema({"enum": [str(r) for r in ROLES], "description": "role of the charge"})] = None
+    tolerance: Percent("how far the mass weighed in may be from the mass to charge, either way, before the "
+                       "charge sheet flags it; default the route's charge_tolerance") = None
+
+
+class ControlModel(_Model):
+    """``steps[i].controls[j]``: a point of the step where the operator records the
+    temperature and the time, with an optional in-process check and its limit."""
+
+    point: Text("where in the step, e.g. 'after dosing' or 'end of reaction'")
+    check: Text("what is measured there, e.g. 'HPLC conversion'") = None
+    limit: Text("the result to reach, e.g. '>= 98 %'; needs check") = None
+
+    @model_validator(mode="after")
+    def _limit_needs_check(self):
+        if self.limit is not None and self.check is None:
+            raise _fail("a limit needs the check it applies to",
+                        "add 'check: ...' (what is measured), or drop 'limit'")
+        return self
 
 
 class ConditionsModel(_Model):
@@ -452,6 +525,8 @@ class StepModel(_Model):
     thermal: ThermalModel = Field(None, description="thermal data for the heat screening estimate")
     cycle_time: Quantity("time", "vessel time for one batch of the step, cleaning included") = None
     notes: Text("free text, carried onto the charge sheet") = None
+    controls: list[ControlModel] = Field(None, description="points of the step where the operator records "
+                                                           "temperature and time, with in-process checks")
 
 
 class WastePricesModel(_Model):
@@ -475,6 +550,8 @@ class RouteFile(_Model):
     materials: Annotated[dict[MaterialKey, MaterialModel], AfterValidator(_nonempty("material"))]
     equipment: dict[Text("vessel key"), VesselModel] = Field(None, description="vessels, by key")
     steps: Annotated[list[StepModel], AfterValidator(_nonempty("step"))]
+    charge_tolerance: Percent("how far a weighed charge may be from its mass to charge, either way, before "
+                              "the charge sheet flags it; default 1 %") = None
     waste_prices: WastePricesModel = Field(None, description="disposal cost per kg of the aqueous, organic and "
                                                              "halogenated waste streams, in the route's currency")
 
@@ -501,6 +578,7 @@ MISSING_HINTS: dict[tuple[type, str], str] = {
                                          "'reaction_enthalpy: -150 kJ/mol'",
     (ThermalModel, "heat_capacity"): "the specific heat of the reaction mass, e.g. 'heat_capacity: "
                                      "1.9 kJ/(kg*K)'; no default is ever guessed",
+    (ControlModel, "point"): "where in the step the record is taken, e.g. 'point: after dosing'",
 }
 
 
@@ -600,6 +678,9 @@ def validation_problems(error: ValidationError, positions: Positions) -> list[Pr
                 [v for v in valid if len(key) >= 2 and v.startswith(key.lower())][:1]
             message = f"unknown key '{key}'"
             hint = f"did you mean '{near[0]}'?" if near else "valid keys here: " + ", ".join(valid)
+            odd = lookalike_hint(key)
+            if odd:
+                hint = odd + ("" if near or not valid else "; valid keys here: " + ", ".join(valid))
         else:
             where = positions.at(loc, show=positions.known(loc))
             if kind == "routeplan":

@@ -161,7 +161,8 @@ class _Builder:
                 return None
             out: dict[str, Any] = {}
             first_line: dict[str, int] = {}
-            for key_node, value_node in node.value:
+            pairs = self.decimal_commas(node, path) if node.flow_style else node.value
+            for key_node, value_node in pairs:
                 if not isinstance(key_node, ScalarNode):
                     self.problem(key_node, path, "a key must be a plain word, not a list or a mapping")
                     continue
@@ -186,6 +187,49 @@ class _Builder:
             return out
         self.problem(node, path, "unexpected YAML node")  # pragma: no cover - no other kinds
         return None
+
+
+    def decimal_commas(self, node: MappingNode, path: Path) -> list:
+        """The pairs of a flow mapping, a number split at a decimal comma joined again.
+
+        In ``{material: Et3N, equiv: 1,2}`` YAML reads ``equiv: 1`` and a key ``2`` with
+        no value; in ``{density: 1,07 g/mL}`` ``density: 1`` and a key ``07 g/mL``.  A
+        plain value ending in a digit, a comma with nothing around it, and a plain key
+        starting with a digit that has no value are a decimal comma: it is reported as
+        such (an error, placed at the value), and the pair is read with a decimal point,
+        so that no second message about an unknown key or a missing unit follows.
+        """
+        pairs = list(node.value)
+        out = []
+        i = 0
+        while i < len(pairs):
+            key_node, value_node = pairs[i]
+            nxt = pairs[i + 1] if i + 1 < len(pairs) else None
+            if nxt is not None and _split_number(value_node, *nxt):
+                joined = f"{value_node.value}.{nxt[0].value}"
+                line, column = _mark(value_node)
+                where = Location(self.pos.file, line, column, format_path(path + (str(key_node.value),)))
+                self.problems.append(Problem(
+                    "error", f"decimal comma in '{value_node.value},{nxt[0].value}': YAML reads the comma of "
+                    f"a {{...}} mapping as the end of the value, leaving {value_node.value} and a key "
+                    f"'{nxt[0].value}'", where, hint=f"decimal comma, write {joined}"))
+                tag = f"{_CORE}float" if re.fullmatch(r"[0-9]+\.[0-9]+", joined) else f"{_CORE}str"
+                out.append((key_node, ScalarNode(tag, joined, value_node.start_mark, nxt[1].end_mark)))
+                i += 2
+                continue
+            out.append((key_node, value_node))
+            i += 1
+        return out
+
+
+def _split_number(value_node: Node, next_key: Node, next_value: Node) -> bool:
+    """Whether ``value_node`` and the following key are one number split at a decimal comma."""
+    plain = (isinstance(value_node, ScalarNode) and isinstance(next_key, ScalarNode)
+             and isinstance(next_value, ScalarNode) and not value_node.style and not next_key.style)
+    return (plain and re.search(r"(?:^|[^0-9A-Za-z.])[0-9]+$", value_node.value) is not None
+            and re.match(r"[0-9]", next_key.value) is not None and next_value.value == ""
+            and next_key.start_mark.line == value_node.end_mark.line
+            and next_key.start_mark.index == value_node.end_mark.index + 1)
 
 
 class _TooLarge(Exception):

@@ -61,6 +61,7 @@ BATCH_COLUMNS = (
     Column("mass_kg", "mass to charge", "kg"),
     Column("volume_L", "volume to charge", "L"),
     Column("hazards", "hazards"),
+    Column("tolerance", "tolerance", "-"),
 )
 
 MATERIAL_COLUMNS = (
@@ -150,11 +151,14 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
     ``in_solution`` is True when it is carried in solution.  A gas taken up
     (``phase: gas`` reactant) has ``rule`` ``"gas"``: its ``volume_L`` is the normal
     volume per batch at 0 degC and 101.325 kPa [L], the figure it is charged by, and
-    ``mass_kg`` its mass, not weighed.
+    ``mass_kg`` its mass, not weighed.  ``tolerance`` [-] is how far the mass weighed in
+    may be from the mass to charge, either way (the line's own, else the route's
+    ``charge_tolerance``).
     """
     from routeplan.views.safety_text import gas_charges
 
     route = plan.route
+    step = route.step(sp.id)
     n = sp.batches or 1  # a step that does not run gets no charge sheet; its rows are its zeros
     gases = gas_charges(sp)
     rows = []
@@ -190,6 +194,7 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
             "volume_L": (gases[c.material] if rule == "gas" else
                          None if c.volume is None else float(c.volume.m_as("L")) / n),
             "hazards": "; ".join(mat.hazards),
+            "tolerance": step.charge_tolerance(step.charges[c.order - 1], route),
             "rule": rule,
             "limiting": is_limiting,
             "made_in": c.carried_from or (None if made is None else made.id),

@@ -25,6 +25,8 @@ __all__ = [
     "raw_material_rows",
     "charges_frame",
     "display_quantity",
+    "fmt",
+    "charge_label",
 ]
 
 
@@ -186,3 +188,31 @@ def column_unit(values, kind: str) -> tuple[str, float]:
         if top / factor >= limit:
             return unit, factor
     return scales[-1]
+
+
+def fmt(value: float | None, digits: int = 4) -> str:
+    """A number to ``digits`` significant figures, without exponent for everyday sizes."""
+    if value is None:
+        return "–"
+    if value == 0:
+        return "0"
+    if 1e-3 <= abs(value) < 1e6:
+        text = f"{value:.{digits}g}"
+        if "e" in text:  # e.g. 12345 at 4 digits
+            text = f"{value:.0f}"
+        return text
+    return f"{value:.{digits - 1}e}"
+
+
+def charge_label(row: dict[str, Any], maker) -> str:
+    """The material of a charge row as people read it: ``acetamidophenol (B1)``.
+
+    ``maker`` maps an intermediate to the step making it; a charge carried in solution
+    reads ``salt (S2, in solution)``.
+    """
+    name = row["material"]
+    if row["carried_from"]:
+        return f"{name} ({row['carried_from']}, in solution)"
+    if row["intermediate"]:
+        return f"{name} ({maker[row['material']]})"
+    return name

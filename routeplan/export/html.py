@@ -1,0 +1,164 @@
+"""The HTML report: one self-contained file (styles and pictures inside, no network at all).
+
+Renders what :mod:`routeplan.views.report` and :mod:`routeplan.views.scheme` give with
+jinja2 templates (autoescaping on: every name from a route file is shown as text), the
+charts of :mod:`routeplan.export.html_charts` and the structures of
+:mod:`routeplan.export.html_scheme`.  jinja2 is imported inside the functions.  The page
+carries the caution on screen and at the foot of every printed page, and a content
+security policy that forbids every fetch.
+"""
+
+from __future__ import annotations
+
+import functools
+from typing import TYPE_CHECKING, Any
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.plan.compare import Comparison
+    from routeplan.plan.model import Plan
+
+__all__ = ["plan_html", "compare_html", "write_plan_html", "write_compare_html", "NotebookReport",
+           "notebook_report", "PLOTS_MISSING"]
+
+#: What the report says in place of its charts when matplotlib is not installed.
+PLOTS_MISSING = ("The charts need matplotlib, which is not installed here: "
+                 "pip install 'routeplan[plots]' and write the report again.")
+
+
+@functools.lru_cache(maxsize=1)
+def _env():
+    import jinja2
+
+    from routeplan.export.html_scheme import formula_runs
+
+    env = jinja2.Environment(
+        loader=jinja2.PackageLoader("routeplan.export", "templates"),
+        autoescape=True, trim_blocks=True, lstrip_blocks=True, undefined=jinja2.StrictUndefined)
+    env.filters["formula_runs"] = formula_runs
+    env.filters["css_string"] = _css_string
+    env.filters["num"] = _num_attr
+    return env
+
+
+def _css_string(text: str) -> str:
+    """``text`` as the inside of a CSS string (quotes, backslashes, line ends escaped)."""
+    out = []
+    for ch in text:
+        if ch in "\"\\" or ord(ch) < 32 or ch in "<>":
+            out.append(f"\\{ord(ch):x} ")
+        else:
+            out.append(ch)
+    return "".join(out)
+
+
+def _num_attr(value: float | None) -> str:
+    """A number for a ``data-value`` attribute: full precision, empty for None."""
+    return "" if value is None else repr(float(value))
+
+
+def _charts(report) -> tuple[dict[str, str], str | None]:
+    try:
+        from routeplan.export.html_charts import charts
+    except ImportError:
+        return {}, PLOTS_MISSING
+    try:
+        return charts(report.charts), None
+    except ImportError:
+        return {}, PLOTS_MISSING
+
+
+def _scheme(plan: "Plan") -> dict[str, Any]:
+    from routeplan.export.html_scheme import structure_svgs
+    from routeplan.views.scheme import FONT_PX, scheme_layout
+
+    scheme = scheme_layout(plan)
+    return {"layout": scheme, "structures": structure_svgs(scheme), "font_px": FONT_PX}
+
+
+def _common() -> dict[str, Any]:
+    from routeplan import CAUTION, __version__
+
+    return {"caution": CAUTION, "generator": f"routeplan {__version__}"}
+
+
+def plan_html(plan: "Plan", *, fragment: bool = False) -> str:
+    """The report of ``plan`` as one HTML page (or, with ``fragment``, a block for a notebook).
+
+    Parameters
+    ----------
+    plan : Plan
+        A finished plan.
+    fragment : bool
+        True for the summary and scheme only, without ``<html>``, for Jupyter.
+    """
+    from routeplan.views.report import plan_report
+
+    report = plan_report(plan)
+    charts, charts_note = ({}, None) if fragment else _charts(report)
+    src = plan.route.source
+    return _env().get_template("fragment.html.j2" if fragment else "report.html.j2").render(
+        r=report, scheme=_scheme(plan), charts=charts, charts_note=charts_note,
+        source=None if src is None else {"path": src.path, "sha256": src.sha256}, **_common())
+
+
+def compare_html(cmp: "Comparison") -> str:
+    """The comparison of routes as one HTML page: schemes side by side, the measures, the trade-off."""
+    from routeplan.export.compare_out import format_value
+    from routeplan.views.report import plan_report
+    from routeplan.views.compare_text import tradeoff
+
+    routes = []
+    for label, plan in zip(cmp.labels, cmp.plans):
+        routes.append({"label": label, "report": plan_report(plan), "scheme": _scheme(plan)})
+    rows = []
+    for row in cmp.rows:
+        unit = "%" if row.kind == "fraction" else row.unit
+        cells = []
+        for i, v in enumerate(row.values):
+            text = format_value(v, row.kind)
+            if row.labels and i < len(row.labels) and row.labels[i]:
+                text += f" ({row.labels[i]})"
+            cells.append({"text": text, "value": v if isinstance(v, (int, float)) else None, "best": i in row.best})
+        rows.append({"key": row.key, "heading": row.heading, "unit": "" if unit in ("-", "") else unit,
+                     "better": row.better, "cells": cells, "note": row.note})
+    return _env().get_template("compare.html.j2").render(
+        cmp=cmp, tradeoff=tradeoff(cmp), routes=routes, rows=rows, **_common())
+
+
+def write_plan_html(plan: "Plan", path) -> None:
+    """Write the report of ``plan`` to ``path`` atomically (UTF-8)."""
+    from routeplan.export.atomic import write_text_atomic
+
+    write_text_atomic(path, plan_html(plan))
+
+
+def write_compare_html(cmp: "Comparison", path) -> None:
+    """Write the comparison page to ``path`` atomically (UTF-8)."""
+    from routeplan.export.atomic import write_text_atomic
+
+    write_text_atomic(path, compare_html(cmp))
+
+
+class NotebookReport:
+    """The summary and scheme of a plan, shown inline by Jupyter (``_repr_html_``).
+
+    Made by :func:`routeplan.report`; ``str()`` of it is the full report page.
+    """
+
+    def __init__(self, plan: "Plan") -> None:
+        self.plan = plan
+
+    def _repr_html_(self) -> str:
+        return plan_html(self.plan, fragment=True)
+
+    def __str__(self) -> str:
+        return plan_html(self.plan)
+
+    def save(self, path) -> None:
+        """Write the full report to ``path`` (atomically)."""
+        write_plan_html(self.plan, path)
+
+
+def notebook_report(plan: "Plan") -> NotebookReport:
+    """An object that Jupyter shows as the plan's summary and scheme; ``.save(path)`` writes the report."""
+    return NotebookReport(plan)

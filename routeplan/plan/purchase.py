@@ -1,0 +1,93 @@
+"""Buying in packs: how many packs of each raw material to order.
+
+A material may give the size of one pack as sold (``pack: 25 kg`` or ``pack: 2.5 L``);
+the packs to order are the fewest whole packs whose content covers the campaign's need
+of that material, a mass for a pack given as a mass and a volume for one given as a
+volume.  A material marked ``bought: false`` (process water from the site's supply) is
+charged but not bought: it gets no packs and the purchase list leaves it out.
+
+Pure functions on plain numbers and Plan parts; nothing here formats or prints.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import replace
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.plan.model import RawMaterialTotal
+    from routeplan.route.model import Route
+
+__all__ = ["NEED_REL_TOL", "packs_to_order", "with_packs"]
+
+#: Relative slack on the need before another pack is counted [-]: a need that is a
+#: whole number of packs up to floating-point noise (100.00000000001 kg in 25 kg packs)
+#: is 4 packs, not 5 (common practice, no source: far below any balance's resolution).
+NEED_REL_TOL = 1e-9
+
+
+def packs_to_order(need: float, pack: float) -> int:
+    """The fewest whole packs of size ``pack`` whose content covers ``need``.
+
+    Parameters
+    ----------
+    need : float
+        What is needed [kg] or [L], 0 or more.
+    pack : float
+        Content of one pack, in the same unit as ``need`` [kg] or [L], positive.
+
+    Returns
+    -------
+    int
+        ``k`` [-] with ``k * pack >= need * (1 - NEED_REL_TOL)`` and
+        ``(k - 1) * pack < need``; 0 for no need.
+
+    Examples
+    --------
+    >>> packs_to_order(51.3, 25.0)
+    3
+    >>> packs_to_order(50.0, 25.0)
+    2
+    >>> packs_to_order(0.0, 25.0)
+    0
+    """
+    if not (pack > 0 and math.isfinite(pack)):
+        raise ValueError(f"a pack size must be positive, got {pack!r}")
+    if not (need >= 0 and math.isfinite(need)):
+        raise ValueError(f"a need must be 0 or more, got {need!r}")
+    if need == 0:
+        return 0
+    k = math.ceil(need * (1 - NEED_REL_TOL) / pack)
+    return max(k, 1)
+
+
+def with_packs(route: "Route", raws: "tuple[RawMaterialTotal, ...]") -> "tuple[RawMaterialTotal, ...]":
+    """The raw-material totals with their pack size, packs to order and whether bought.
+
+    Parameters
+    ----------
+    route : Route
+        The route (each material's ``pack`` and ``bought``).
+    raws : tuple of RawMaterialTotal
+        The totals over the campaign.
+
+    Returns
+    -------
+    tuple of RawMaterialTotal
+        The same totals with ``bought``, ``pack_size`` and ``pack_unit`` ([kg] or [L])
+        and ``packs`` [-] set; ``packs`` is None without a pack size or for a material
+        not bought.
+    """
+    out = []
+    for r in raws:
+        mat = route.materials[r.material]
+        size, unit_, packs = None, None, None
+        if mat.pack is not None:
+            unit_ = "kg" if mat.pack.check("[mass]") else "L"
+            size = float(mat.pack.m_as(unit_))
+            need = r.m_kg if unit_ == "kg" else r.V_L
+            if mat.bought and need is not None:
+                packs = packs_to_order(need, size)
+        out.append(replace(r, bought=mat.bought, pack_size=size, pack_unit=unit_, packs=packs))
+    return tuple(out)

@@ -1,0 +1,86 @@
+"""The purchase list: rows and notes from the plan's raw-material totals.
+
+What to order for the campaign, one row per bought material in order of first use: the
+need as a mass [kg] and, where a density is known (a solution, a liquid), as a volume
+[L]; the pack size; the packs to order and what they hold.  Materials the route marks
+``bought: false`` are left out, and :func:`not_bought_note` says so.  Read from the Plan
+only (``RawMaterialTotal.pack``, ``packs``, ``ordered``); nothing is computed here.
+"""
+
+from __future__ import annotations
+
+from typing import TYPE_CHECKING, Any
+
+from routeplan.units import magnitude
+from routeplan.views.tables import Column
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.plan.model import Plan
+
+__all__ = ["PURCHASE_COLUMNS", "purchase_rows", "not_bought", "not_bought_note", "pack_text"]
+
+#: Columns of the purchase list.
+PURCHASE_COLUMNS = (
+    Column("material", "key"),
+    Column("name", "material"),
+    Column("need_kg", "needed", "kg"),
+    Column("need_L", "needed", "L"),
+    Column("pack", "pack"),
+    Column("packs", "packs to order", "-"),
+    Column("ordered", "ordered"),
+)
+
+
+def pack_text(q) -> str | None:
+    """A pack size or an ordered amount as text: ``'25 kg'``, ``'2.5 L'``; None for None.
+
+    Examples
+    --------
+    >>> from routeplan.units import Q
+    >>> pack_text(Q(2.5, "L"))
+    '2.5 L'
+    """
+    if q is None:
+        return None
+    unit = "kg" if q.check("[mass]") else "L"
+    return f"{q.m_as(unit):g} {unit}"
+
+
+def purchase_rows(plan: "Plan") -> list[dict[str, Any]]:
+    """One row per bought raw material (see :data:`PURCHASE_COLUMNS`).
+
+    ``need_kg`` [kg] and ``need_L`` [L] (None without a density) are the whole
+    campaign's; ``pack`` and ``ordered`` are text with their unit (None without a pack);
+    ``packs`` [-] is None without a pack.
+    """
+    return [{
+        "material": r.material,
+        "name": r.name,
+        "need_kg": magnitude(r.mass, "kg"),
+        "need_L": magnitude(r.volume, "L"),
+        "pack": pack_text(r.pack),
+        "packs": r.packs,
+        "ordered": pack_text(r.ordered),
+    } for r in plan.raw_materials if r.bought]
+
+
+def not_bought(plan: "Plan") -> list[str]:
+    """Keys of the raw materials the route marks as not bought, in order of first use."""
+    return [r.material for r in plan.raw_materials if not r.bought]
+
+
+def not_bought_note(plan: "Plan") -> str:
+    """The sentence under the purchase list about materials not bought ("" when none).
+
+    Examples
+    --------
+    >>> from types import SimpleNamespace as NS
+    >>> not_bought_note(NS(raw_materials=[NS(material="water", name="process water", bought=False)]))
+    "not bought, so not listed: process water (water); the route marks it 'bought: false'"
+    """
+    left = [r for r in plan.raw_materials if not r.bought]
+    if not left:
+        return ""
+    names = ", ".join(r.name if r.name == r.material else f"{r.name} ({r.material})" for r in left)
+    which = "it" if len(left) == 1 else "them"
+    return f"not bought, so not listed: {names}; the route marks {which} 'bought: false'"

@@ -1,0 +1,481 @@
+"""What the HTML report shows, from a Plan: rows, sentences and chart series.
+
+Every number is read from the Plan (through :mod:`routeplan.views.tables` where the
+terminal reads it too); nothing here computes a charge, a yield or a metric.  Each cell
+keeps its number in a fixed unit (kg, L, mol, [-]) beside the text shown, so that the
+writer can put it in a ``data-value`` attribute and a test can read the report back.
+:mod:`routeplan.export.html` only lays this out.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+from routeplan.views.tables import (charge_label, column_unit, display_quantity, fmt, raw_material_rows,
+                                    step_charge_rows)
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.plan.model import Plan, StepPlan
+
+__all__ = ["Cell", "Table", "Section", "StepSection", "ChartData", "Report", "plan_report", "charge_table",
+           "chart_data", "fact_table", "columns_table"]
+
+
+
+@dataclass(frozen=True)
+class Cell:
+    """A table cell: text shown, and the number behind it in the column's base unit."""
+
+    text: str
+    value: float | None = None
+    numeric: bool = False
+
+
+@dataclass(frozen=True)
+class Table:
+    """A table: column keys, headings (with units) and rows of cells; ``keys_by_row``
+    names each row where rows are facts (``p10``, ``buy:water``)."""
+
+    keys: tuple[str, ...]
+    headings: tuple[str, ...]
+    rows: tuple[tuple[Cell, ...], ...]
+    units: tuple[str, ...] = ()
+    keys_by_row: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class Section:
+    """A section from an optional part of the Plan (uncertainty, safety, record, ...).
+
+    Attributes
+    ----------
+    key : str
+        The Plan field it shows, e.g. ``"uncertainty"``.
+    heading : str
+        Heading shown.
+    lines : tuple of str
+        Sentences.
+    facts : Table or None
+        Item, value and note rows, the value's number in ``data-value``.
+    """
+
+    key: str
+    heading: str
+    lines: tuple[str, ...] = ()
+    facts: Table | None = None
+
+
+@dataclass(frozen=True)
+class StepSection:
+    """One step of the report.
+
+    Attributes
+    ----------
+    id, title, equation : str
+        Step id, heading and the equation as written.
+    yield_ : float
+        Yield used [-].
+    telescoped : bool
+        True when the product goes on in solution.
+    charges : Table or None
+        The charge table; None when the step does not run.
+    facts : tuple of (str, str)
+        Label and text: product made, batches, vessel and fill, notes.
+    batches : int
+        Batches [-].
+    fill : float or None
+        Fill of the vessel per batch [-].
+    extra : tuple of Section
+        Sections from optional Plan fields.
+    """
+
+    id: str
+    title: str
+    equation: str
+    yield_: float
+    telescoped: bool
+    charges: Table | None
+    facts: tuple[tuple[str, str], ...]
+    batches: int
+    fill: float | None
+    extra: tuple[Section, ...] = ()
+
+
+@dataclass(frozen=True)
+class ChartData:
+    """Series for the charts, every value in the unit named.
+
+    Attributes
+    ----------
+    mass_by_material : tuple of (str, float)
+        Raw material and its mass per kg of target [kg/kg], largest first.
+    mass_by_step : tuple of (str, tuple of (str, float))
+        Step id and the mass of each raw material charged in it per kg of target [kg/kg].
+    pmi : float or None
+        Route process mass intensity [kg/kg] (``plan.metrics.pmi``).
+    cost_by_material : tuple of (str, float)
+        Raw material and its cost over the campaign [currency], largest first.
+    currency : str or None
+        Currency of the costs.
+    unpriced : tuple of str
+        Raw materials without a price.
+    yield_sequence : tuple of (str, float, float)
+        Along the longest linear sequence: step id, step yield [-], yield so far [-].
+    overall_yield : float
+        ``plan.overall_yield.yield_`` [-].
+    delivery : dict or None
+        The delivered-mass histogram of the yield draws
+        (:func:`routeplan.views.uncertainty_text.histogram_data`: bin edges [kg], counts,
+        required mass and percentiles [kg]); None without uncertainty or without ranges.
+    contributions : tuple of (str, float)
+        Each drawn step's share of the spread [-], largest first; empty without.
+    timeline : dict or None
+        Vessels and batches over the campaign (``timeline_data`` of
+        :mod:`routeplan.views.schedule_text`: lanes of bars, hours [h]); None without a schedule.
+    """
+
+    mass_by_material: tuple[tuple[str, float], ...]
+    mass_by_step: tuple[tuple[str, tuple[tuple[str, float], ...]], ...]
+    pmi: float | None
+    cost_by_material: tuple[tuple[str, float], ...]
+    currency: str | None
+    unpriced: tuple[str, ...]
+    yield_sequence: tuple[tuple[str, float, float], ...]
+    overall_yield: float
+    delivery: dict | None = None
+    contributions: tuple[tuple[str, float], ...] = ()
+    timeline: dict | None = None
+
+
+@dataclass(frozen=True)
+class Report:
+    """Everything the report of one plan shows."""
+
+    title: str
+    target_material: str
+    target_name: str
+    summary: tuple[tuple[str, str, str, float | None], ...]
+    steps: tuple[StepSection, ...]
+    raw_materials: Table
+    metrics: tuple[str, ...]
+    stock: tuple[str, ...]
+    warnings: tuple[str, ...]
+    charts: ChartData
+    extra: tuple[Section, ...] = ()
+
+
+def charge_table(sp: "StepPlan", route) -> Table:
+    """The charge table of one step: the terminal's rows and columns, units per column.
+
+    Columns: #, material, role, equiv [-], amount, mass and volume (in one unit each,
+    chosen for the column as on the terminal), and per batch when the step has several.
+    The numbers behind the cells are in mol, kg and L.
+    """
+    rows = step_charge_rows(sp)
+    mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
+    vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
+    nu, nf = column_unit([r["mol"] for r in rows], "amount")
+    per_batch = sp.batches > 1
+    keys = ["order", "material", "role", "equiv", "mol", "mass_kg", "volume_L"]
+    heads = ["#", "material", "role", "equiv", f"n [{nu}]", f"m [{mu}]", f"V [{vu}]"]
+    units = ["", "", "", "-", "mol", "kg", "L"]
+    if per_batch:
+        keys += ["batch_mass_kg", "batch_volume_L"]
+        heads += [f"m/batch [{mu}]", f"V/batch [{vu}]"]
+        units += ["kg", "L"]
+
+    def num(value: float | None, factor: float, digits: int = 4) -> Cell:
+        return Cell(fmt(None if value is None else value / factor, digits), value, True)
+
+    out = []
+    for r in rows:
+        cells = [Cell(str(r["order"]), r["order"], True), Cell(charge_label(r, route.maker)), Cell(r["role"]),
+                 num(r["equiv"], 1.0, 3), num(r["mol"], nf), num(r["mass_kg"], mf), num(r["volume_L"], vf)]
+        if per_batch:
+            cells += [num(r["batch_mass_kg"], mf), num(r["batch_volume_L"], vf)]
+        out.append(tuple(cells))
+    return Table(tuple(keys), tuple(heads), tuple(out), tuple(units))
+
+
+def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
+    facts = []
+    if sp.runs:
+        pm = sp.product_mass.m_as("kg")
+        how = "as isolated" if sp.isolated else "in solution, carried on"
+        facts.append(("makes", f"{fmt(sp.product_mol.m_as('mol'))} mol {sp.product} "
+                               f"({display_quantity(pm, 'mass')} {how})"))
+        b = sp.batch
+        if b is not None:
+            n = b.batches
+            text = f"{n} batch{'es' if n != 1 else ''} of {fmt(b.batch_volume.m_as('L'))} L"
+            if b.vessel is not None:
+                text += f" in {b.vessel}"
+                if b.fill_fraction is not None:
+                    text += f", fill {b.fill_fraction:.0%} of nominal volume"
+            facts.append(("batches", text))
+            if b.limiting_mass is not None and n > 1:
+                facts.append(("per batch", f"{display_quantity(b.limiting_mass.m_as('kg'), 'mass')} of "
+                                           f"{sp.limiting} charged, "
+                                           f"{display_quantity(b.product_mass.m_as('kg'), 'mass')} of "
+                                           f"{sp.product} made"))
+            for note in b.notes:
+                facts.append(("note", note))
+    else:
+        facts.append(("not run", sp.not_run))
+    if sp.from_stock_mass is not None and sp.from_stock_mass.m_as("kg") > 0:
+        facts.append(("from stock", f"{display_quantity(sp.from_stock_mass.m_as('kg'), 'mass')} of "
+                                    f"{sp.product} taken from stock"))
+    if sp.notes:
+        facts.append(("notes", sp.notes))
+    return tuple(facts)
+
+
+_HEADINGS = {"uncertainty": "Yield uncertainty", "safety": "Safety screening", "record": "Campaign record",
+             "schedule": "Schedule", "waste": "Waste", "cost_of_goods": "Cost of goods"}
+
+
+def fact_table(rows) -> Table | None:
+    """Rows of ``key, item, value, unit, kind, note`` (the sheets' fact rows) as a table."""
+    if not rows:
+        return None
+    out = []
+    for r in rows:
+        v, kind = r["value"], r.get("kind", "text")
+        if kind == "mass" and isinstance(v, (int, float)):
+            cell = Cell(display_quantity(v, "mass"), v, True)
+        elif kind == "fraction" and isinstance(v, (int, float)):
+            cell = Cell(f"{100 * v:.1f} %", v, True)
+        elif isinstance(v, (int, float)) and not isinstance(v, bool):
+            cell = Cell(f"{fmt(v)} {r.get('unit', '')}".strip(), v, True)
+        else:
+            cell = Cell("" if v is None else str(v))
+        out.append((Cell(r["item"]), cell, Cell(r.get("note", "") or "")))
+    return Table(("item", "value", "note"), ("", "value", "note"), tuple(out),
+                 keys_by_row=tuple(r["key"] for r in rows))
+
+
+def columns_table(columns, rows) -> Table:
+    """Rows of plain values as a table with the given :class:`~routeplan.views.tables.Column` s.
+
+    Numbers are shown to four significant figures (fractions of a column with unit ``-``
+    and a heading saying yield, assay or share as %), text as it is.
+    """
+    percent = {c.key for c in columns if c.unit == "-" and any(w in c.heading for w in ("yield", "assay", "share"))}
+    out = []
+    for r in rows:
+        cells = []
+        for c in columns:
+            v = r.get(c.key)
+            if isinstance(v, bool) or v is None or not isinstance(v, (int, float)):
+                cells.append(Cell("" if v is None else ("yes" if v is True else "" if v is False else str(v))))
+            elif c.key in percent:
+                cells.append(Cell(f"{100 * v:.1f} %", float(v), True))
+            else:
+                cells.append(Cell(fmt(float(v)), float(v), True))
+        out.append(tuple(cells))
+    heads = tuple(f"{c.heading} [%]" if c.key in percent else c.title for c in columns)
+    return Table(tuple(c.key for c in columns), heads, tuple(out), tuple(c.unit for c in columns))
+
+
+def _view(module: str):
+    """The view module ``routeplan.views.<module>``, or None while the Plan part it shows is not built."""
+    import importlib
+
+    try:
+        return importlib.import_module(f"routeplan.views.{module}")
+    except ImportError:
+        return None
+
+
+def _uncertainty_section(plan: "Plan") -> Section | None:
+    v = _view("uncertainty_text")
+    return None if v is None else Section("uncertainty", _HEADINGS["uncertainty"],
+                                          facts=fact_table(v.uncertainty_fact_rows(plan)))
+
+
+def _record_section(plan: "Plan") -> Section | None:
+    v = _view("record_text")
+    if v is None:
+        return None
+    return Section("record", _HEADINGS["record"], lines=tuple(x.strip() for x in v.record_lines(plan) if x.strip()),
+                   facts=columns_table(v.IN_HAND_COLUMNS, v.in_hand_rows(plan)) if plan.record.in_hand else None)
+
+
+def _schedule_section(plan: "Plan") -> Section | None:
+    v = _view("schedule_text")
+    if v is None:
+        return None
+    pace = v.pace_text(plan)
+    return Section("schedule", _HEADINGS["schedule"], lines=(pace,) if pace else (),
+                   facts=columns_table(v.VESSEL_USE_COLUMNS, v.vessel_rows(plan)))
+
+
+def _waste_section(plan: "Plan") -> Section | None:
+    v = _view("waste_cost_text")
+    return None if v is None else Section("waste", _HEADINGS["waste"],
+                                          lines=tuple(x.strip() for x in v.waste_lines(plan) if x.strip()))
+
+
+def _cost_section(plan: "Plan") -> Section | None:
+    v = _view("waste_cost_text")
+    return None if v is None else Section("cost_of_goods", _HEADINGS["cost_of_goods"],
+                                          lines=tuple(x.strip() for x in v.cost_lines(plan) if x.strip()))
+
+
+#: Plan field -> the section that shows it (only where the Plan has the field set).
+_SECTIONS = {"uncertainty": _uncertainty_section, "record": _record_section, "schedule": _schedule_section,
+             "waste": _waste_section, "cost_of_goods": _cost_section}
+
+
+def _plan_sections(plan: "Plan") -> tuple[Section, ...]:
+    return tuple(sec for name, build in _SECTIONS.items()
+                 if getattr(plan, name, None) is not None and (sec := build(plan)) is not None)
+
+
+def _step_sections(plan: "Plan", sp: "StepPlan") -> tuple[Section, ...]:
+    """The step's safety block (screening estimates) and its recorded lots, where the Plan has them."""
+    out = []
+    v = _view("safety_text") if getattr(sp, "safety", None) is not None else None
+    if v is not None:
+        pairs = v.sheet_safety_pairs(sp)
+        if pairs:
+            out.append(Section("safety", f"Safety per batch: {v.SCREENING_NOTE}",
+                               facts=Table(("item", "value"), ("", ""),
+                                           tuple((Cell(a), Cell(b)) for a, b in pairs))))
+    v = _view("record_text") if getattr(plan, "record", None) is not None else None
+    if v is not None:
+        lots = [r for r in v.lot_rows(plan) if r["step"] == sp.id]
+        if lots:
+            out.append(Section("record", "Lots recorded", facts=columns_table(v.LOT_COLUMNS, lots)))
+    return tuple(out)
+
+
+def chart_data(plan: "Plan") -> ChartData:
+    """The chart series of ``plan`` (see :class:`ChartData`)."""
+    target = plan.target_mass.m_as("kg")
+    m = plan.metrics
+    by_material = sorted(((r.material, r.mass.m_as("kg") / target) for r in plan.raw_materials),
+                         key=lambda kv: -kv[1])
+    by_step = []
+    for sp in plan.steps:
+        parts: dict[str, float] = {}
+        for c in sp.charges:
+            if not c.intermediate:
+                parts[c.material] = parts.get(c.material, 0.0) + c.mass.m_as("kg") / target
+        by_step.append((sp.id, tuple(parts.items())))
+    costs = sorted(((r.material, r.cost) for r in plan.raw_materials if r.cost is not None), key=lambda kv: -kv[1])
+    unpriced = tuple(r.material for r in plan.raw_materials if r.cost is None) if plan.route.currency else ()
+    seq, so_far = [], 1.0
+    for sid in plan.overall_yield.longest_linear_sequence:
+        y = plan.step(sid).yield_
+        so_far *= y
+        seq.append((sid, y, so_far))
+    delivery, contributions = None, ()
+    u = getattr(plan, "uncertainty", None)
+    if u is not None and u.carries_uncertainty:
+        from routeplan.views.uncertainty_text import contribution_rows, histogram_data
+
+        delivery = histogram_data(u)
+        contributions = tuple((r["step"], r["share"]) for r in contribution_rows(u))
+    timeline = None
+    if getattr(plan, "schedule", None) is not None:
+        from routeplan.views.schedule_text import timeline_data
+
+        timeline = timeline_data(plan)
+    return ChartData(
+        mass_by_material=tuple(by_material), mass_by_step=tuple(by_step),
+        pmi=None if m is None else m.pmi, cost_by_material=tuple(costs), currency=plan.route.currency,
+        unpriced=unpriced, yield_sequence=tuple(seq), overall_yield=plan.overall_yield.yield_,
+        delivery=delivery, contributions=contributions, timeline=timeline)
+
+
+def _raw_table(plan: "Plan") -> Table:
+    rows = raw_material_rows(plan)
+    mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
+    vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
+    cur = plan.route.currency
+    out = []
+    for r in rows:
+        out.append((Cell(r["material"]), Cell(r["name"]),
+                    Cell(fmt(r["mass_kg"] / mf), r["mass_kg"], True),
+                    Cell(fmt(None if r["volume_L"] is None else r["volume_L"] / vf), r["volume_L"], True),
+                    Cell(f"{r['cost']:,.2f}" if r["cost"] is not None else "–", r["cost"], True),
+                    Cell(r["steps"])))
+    return Table(("material", "name", "mass_kg", "volume_L", "cost", "steps"),
+                 ("material", "name", f"mass [{mu}]", f"volume [{vu}]", f"cost [{cur}]" if cur else "cost", "used in"),
+                 tuple(out), ("", "", "kg", "L", cur or "", ""))
+
+
+def _metrics_lines(plan: "Plan") -> tuple[str, ...]:
+    if plan.metrics is None:
+        return ()
+    import re
+
+    from routeplan.views.metrics_text import metrics_lines
+
+    # the terminal's lines, with rich's markup taken off ([bold]...[/bold])
+    lines = [re.sub(r"\[/?bold\]", "", x).replace("\\[", "[") for x in metrics_lines(plan.metrics, plan.target_material)]
+    return tuple(x.strip() for x in lines if x.strip())[1:]
+
+
+def plan_report(plan: "Plan") -> Report:
+    """Everything the HTML report of ``plan`` shows.
+
+    Parameters
+    ----------
+    plan : Plan
+        A finished plan.
+
+    Returns
+    -------
+    Report
+        Rows, sentences and chart series; numbers are the Plan's.
+    """
+    route = plan.route
+    tm = plan.target_mass.m_as("kg")
+    overage = route.target.overage
+    oy = plan.overall_yield
+    summary = [
+        ("target", f"{fmt(tm)} kg of {plan.target_material}"
+                   + (f" ({fmt(tm / (1 + overage))} kg + {overage * 100:.3g} % overage)" if overage else ""),
+         "target_mass_kg", tm),
+        ("amount", f"{fmt(plan.target_mol.m_as('mol'))} mol", "target_mol", plan.target_mol.m_as("mol")),
+        ("steps", f"{len(plan.steps)}; longest linear sequence {len(oy.longest_linear_sequence)} "
+                  f"({' → '.join(oy.longest_linear_sequence)})", "steps", float(len(plan.steps))),
+        ("overall yield", f"{oy.yield_:.1%}"
+         + (f" (from {oy.low:.1%} to {oy.high:.1%} with the steps' low and high yields)"
+            if oy.low is not None and (oy.low, oy.high) != (oy.yield_, oy.yield_) else ""),
+         "overall_yield", oy.yield_),
+    ]
+    if plan.metrics is not None:
+        summary.append(("PMI", f"{fmt(plan.metrics.pmi, 3)} kg of raw materials per kg of {plan.target_material}",
+                        "pmi", plan.metrics.pmi))
+        if plan.metrics.cost_per_kg is not None:
+            summary.append(("raw-material cost",
+                            f"{plan.metrics.cost_per_kg:,.2f} {plan.metrics.currency} per kg"
+                            + ("" if plan.metrics.cost_complete else " (priced materials only)"),
+                            "cost_per_kg", plan.metrics.cost_per_kg))
+    summary.append(("batches", f"{sum(sp.batches for sp in plan.steps)} over the campaign", "batches",
+                    float(sum(sp.batches for sp in plan.steps))))
+    if plan.yield_basis != "expected":
+        summary.append(("planned at", f"the steps' {plan.yield_basis} yields", "yield_basis", None))
+    steps = []
+    for sp in plan.steps:
+        title = sp.id if not sp.name or sp.name == sp.id else f"{sp.id} · {sp.name}"
+        extra = _step_sections(plan, sp)
+        steps.append(StepSection(
+            id=sp.id, title=title, equation=sp.equation, yield_=sp.yield_, telescoped=not sp.isolated,
+            charges=charge_table(sp, route) if sp.runs else None, facts=_step_facts(plan, sp),
+            batches=sp.batches, fill=None if sp.batch is None else sp.batch.fill_fraction, extra=extra))
+    stock = ()
+    if plan.stock is not None:
+        from routeplan.views.stock_text import stock_lines
+
+        stock = tuple(x for x in stock_lines(plan) if x.strip())
+    mat = route.materials[plan.target_material]
+    extra = _plan_sections(plan)
+    return Report(
+        title=route.name, target_material=plan.target_material, target_name=mat.name or plan.target_material,
+        summary=tuple(summary), steps=tuple(steps), raw_materials=_raw_table(plan), metrics=_metrics_lines(plan),
+        stock=stock, warnings=tuple(p.render() for p in plan.warnings), charts=chart_data(plan), extra=extra)
