@@ -34,6 +34,12 @@ DIMENSIONS: dict[str, tuple[str, str]] = {
     "molarity": ("[substance] / [length] ** 3", "2.5 mol/L"),
     "temperature": ("[temperature]", "25 degC"),
     "time": ("[time]", "4 h"),
+    "pressure": ("[mass] / [length] / [time] ** 2", "1.01325 bar"),
+    "molar enthalpy": ("[mass] * [length] ** 2 / [time] ** 2 / [substance]", "-150 kJ/mol"),
+    "heat capacity": ("[length] ** 2 / [time] ** 2 / [temperature]", "1.9 kJ/(kg*K)"),
+    # named so that a wrong dimension is said in words ("'-150 kJ' is an energy")
+    "energy": ("[mass] * [length] ** 2 / [time] ** 2", "150 kJ"),
+    "specific energy": ("[length] ** 2 / [time] ** 2", "1.9 kJ/kg"),
 }
 
 _NUMBER = r"[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"

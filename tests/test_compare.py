@@ -277,7 +277,8 @@ def test_xlsx_reads_back(tmp_path, demo):
 
 
 def test_unpriced_cost_is_not_ranked(tmp_path):
-    other = _variant(tmp_path, "nokiprice.yaml", "    formula: KI\n    price: 45\n", "    formula: KI\n",
+    other = _variant(tmp_path, "nokiprice.yaml", "    formula: KI\n    phase: solid\n    price: 45\n",
+                    "    formula: KI\n    phase: solid\n",
                      source=CONVERGENT)
     cmp = compare_routes([load_route(LINEAR), load_route(other)])
     row = cmp.row("cost_per_kg")

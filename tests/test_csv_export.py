@@ -58,7 +58,7 @@ def test_files_written(plan, out):
     names = [p.name for p in paths]
     assert names == ["summary.csv", "steps.csv", "charges-01-A_1_prep.csv", "charges-02-A_1_prep.csv",
                      "charges-03-a_step_id_that_is_far_longer_than_thirty.csv", "raw-materials.csv", "purchases.csv",
-                     "materials.csv", "waste.csv"]
+                     "materials.csv", "safety.csv", "waste.csv"]
     assert sorted(p.name for p in folder.iterdir()) == sorted(names)
 
 
@@ -186,7 +186,7 @@ def test_every_csv_ends_with_the_caution(out, stock_out, which):
     first field, the others empty, as many fields as the header has."""
     folder = out[0] if which == "plain" else stock_out[1]
     files = _csv_files(folder)
-    expected = {"summary.csv", "steps.csv", "raw-materials.csv", "materials.csv"} | (
+    expected = {"summary.csv", "steps.csv", "raw-materials.csv", "materials.csv", "safety.csv"} | (
         {"stock.csv"} if which == "stock" else set())
     assert expected <= {p.name for p in files}
     assert sum(p.name.startswith("charges-") for p in files) == 3

@@ -78,6 +78,8 @@ def _rename(doc, mapping):
                 st_[key] = mapping[st_[key]]
         for c in st_.get("charges", []):
             c["material"] = mapping[c["material"]]
+        if "dosing" in st_:
+            st_["dosing"]["material"] = mapping[st_["dosing"]["material"]]
     return doc
 
 

@@ -128,6 +128,18 @@ def test_caution_on_screen_and_in_the_print_margin(demo):
     assert "@bottom-left" in css and f'content: "CAUTION: {routeplan.CAUTION}"' in css
 
 
+def test_the_steps_with_thermal_data_show_their_safety_block(demo):
+    # the demo's thermal steps carry a screening estimate: the report shows each one's
+    # MTSR and criticality class beside the charges, as the plan computed them
+    plan, html = demo
+    screened = [sp for sp in plan.steps if sp.safety is not None and sp.safety.thermal is not None]
+    assert screened
+    body = html.split("</style>", 1)[1]
+    assert "Safety per batch: screening estimates" in body
+    assert body.count("MTSR") >= len(screened)
+    assert "criticality class" in body
+
+
 def test_names_are_shown_as_text_never_as_markup(tmp_path, good_text):
     """A route whose names hold markup and quotes: shown literally, no element is made of them."""
     text = good_text.replace("route: test route (acid via the ethyl ester)", f"route: '{HOSTILE.replace(chr(39), chr(39) * 2)}'")

@@ -10,8 +10,9 @@ import pytest
 
 from conftest import run_cli, write_route
 from routeplan.route.jsonschema import route_json_schema
-from routeplan.route.schema import (ChargeModel, ControlModel, MaterialModel, RouteFile, SolutionModel, StepModel, TargetModel,
-                                    VesselModel, YieldModel, keys_of)
+from routeplan.route.schema import (ChargeModel, ConditionsModel, ControlModel, DosingModel, MaterialModel, RouteFile,
+                                    SolutionModel, StepModel, TargetModel, ThermalModel, VesselModel, YieldModel,
+                                    keys_of)
 from routeplan.route.yamlpos import read_yaml
 
 DOC = Path(__file__).parent.parent / "docs" / "route-file.md"
@@ -42,7 +43,8 @@ def test_the_example_passes_the_json_schema(example):
 
 
 @pytest.mark.parametrize("model", [RouteFile, TargetModel, MaterialModel, SolutionModel, VesselModel, StepModel,
-                                   YieldModel, ChargeModel, ControlModel], ids=lambda m: m.__name__)
+                                   YieldModel, ChargeModel, ControlModel, ConditionsModel, DosingModel, ThermalModel],
+                         ids=lambda m: m.__name__)
 def test_every_key_is_documented(doc, model):
     missing = [k for k in keys_of(model) if f"`{k}`" not in doc]
     assert missing == []

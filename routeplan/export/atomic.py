@@ -62,7 +62,7 @@ def write_text_atomic(target: str | os.PathLike, text: str) -> None:
 #: Names of the files a plan's CSV folder holds (``routeplan plan --csv DIR``); only files
 #: of these names are ever removed from an existing folder.
 CSV_PLAN_FILES = re.compile(r"^(?:summary|steps|raw-materials|materials|stock|record-lots|record-in-hand|schedule"
-                            r"|vessels|waste|purchases"
+                            r"|vessels|waste|purchases|safety"
                             r"|charges-\d{2,}-[A-Za-z0-9._-]+)\.csv$")
 
 

@@ -18,6 +18,11 @@ the whole folder as one unit (:class:`routeplan.export.atomic.OutputSet`):
     bought materials totalled over the route, with price and cost.
 ``materials.csv``
     every material of the route.
+``safety.csv``
+    heat and gas of one batch of each step that runs, screening estimates (see
+    docs/safety.md): one row per gas evolved (at the step's conditions) or taken up (at
+    normal conditions), or one row without gas; a step without thermal data says "no:
+    not screened" and leaves the heat fields empty.
 ``schedule.csv``, ``vessels.csv``
     only when the plan has a schedule (every step has a ``cycle_time``): one row per
     batch (step, vessel, batch, start and end [h]), and one per vessel (busy and idle
@@ -199,6 +204,9 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
 
     paths.append(write_table(out_dir / "purchases.csv", PURCHASE_COLUMNS, purchase_rows(plan)))
     paths.append(write_table(out_dir / "materials.csv", material_columns(plan), material_rows(plan)))
+    from routeplan.views.safety_text import SAFETY_COLUMNS, safety_rows
+
+    paths.append(write_table(out_dir / "safety.csv", SAFETY_COLUMNS, safety_rows(plan)))
     paths += _time_waste_tables(plan, out_dir)
     if plan.stock is not None:
         paths.append(write_table(out_dir / "stock.csv", STOCK_COLUMNS, stock_rows(plan)))

@@ -42,6 +42,35 @@ def _charge(c, batches: int) -> dict[str, Any]:
     }
 
 
+def _safety(sp) -> dict[str, Any] | None:
+    """The step's ``safety`` block (ROUTE-FORMAT.md, "JSON additions per step"), plus
+    ``screened``, ``dosed``, ``free_volume_L`` and the temperatures the MTSR was judged
+    against."""
+    s = sp.safety
+    if s is None:
+        return None
+    t = s.thermal
+    return {
+        "gas_evolved": [{"material": g.material, "mol_per_batch": g.mol_per_batch,
+                         "volume_L_per_batch": g.volume_L_per_batch, "temperature_C": g.temperature_C,
+                         "pressure_bar": g.pressure_bar, "rate_L_per_min": g.rate_L_per_min,
+                         "vent": list(g.vent)} for g in s.gas_evolved],
+        "gas_taken_up": [{"material": g.material, "mol_per_batch": g.mol_per_batch,
+                          "normal_volume_L_per_batch": g.normal_volume_L_per_batch, "vent": list(g.vent)}
+                         for g in s.gas_taken_up],
+        "thermal": None if t is None else {
+            "reaction_mass_kg_per_batch": t.reaction_mass_kg_per_batch, "delta_T_ad_K": t.delta_T_ad_K,
+            "mtsr_C": t.mtsr_C, "criticality_class": t.criticality_class, "severity": t.severity,
+            "process_temperature_C": t.process_temperature_C, "mtt_C": t.mtt_C, "td24_C": t.td24_C,
+            "accumulation": t.accumulation,
+        },
+        "screened": s.screened,
+        "dosed": s.dosed,
+        "dosing_time_min": s.dosing_time_min,
+        "free_volume_L": s.free_volume_L,
+    }
+
+
 def _step(sp) -> dict[str, Any]:
     b = sp.batch
     batches = sp.batches
@@ -63,6 +92,7 @@ def _step(sp) -> dict[str, Any]:
         "from_stock_kg": magnitude(sp.from_stock_mass, "kg"),
         "runs": sp.runs,
         "not_run": sp.not_run,
+        "safety": _safety(sp),
     }
     return out
 

@@ -14,6 +14,7 @@ from rich.markup import escape
 from rich.table import Table
 
 from routeplan.views.metrics_text import metrics_lines
+from routeplan.views.safety_text import step_safety_lines
 from routeplan.views.tables import charge_label, column_unit, fmt, raw_material_rows, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -245,6 +246,8 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
         if sp.runs:
             con(_step_table(sp, plan.route, con.table))
             con(escape(_step_footer(sp)))
+            for line in step_safety_lines(sp):
+                con(escape("  " + line))
         stock_line = _stock_line(sp)
         if stock_line:
             con(escape(stock_line))

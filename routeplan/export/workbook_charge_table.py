@@ -177,7 +177,7 @@ def charge_formulas(row: dict[str, Any], r: int, lim_row: int | None, lim_mass: 
     has_density = row["density"] is not None
     has_volume = has_density and row["volume_L"] is not None
     rule = row["rule"]
-    if rule == "carried":
+    if rule in ("carried", "gas"):
         return None, None, None
     amount = None
     if row["mol"] is not None and row["equiv"] is not None and not row["limiting"] and lim_mol is not None:
@@ -224,6 +224,8 @@ def role_text(row: dict[str, Any]) -> str:
         parts.append("limiting reagent")
     if row["rule"] == "carried":
         parts.append(f"in solution from {row['made_in']}: transfer the whole mixture; mass = content, not weighed")
+    elif row["rule"] == "gas":
+        parts.append("gas: charge the normal volume (0 °C, 101.325 kPa); mass not weighed")
     elif row["made_in"]:
         parts.append(f"made in {row['made_in']}")
     return ", ".join(parts)
@@ -272,6 +274,8 @@ def write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int |
         ws.write_formula(r, COL["mol"], mol_f, st.quantity(row["mol"]), row["mol"])
     if carried:
         _write_carried(ws, st, row, r)
+    elif row["rule"] == "gas":
+        _write_gas(ws, st, row, r)
     else:
         mass_fmt = st.quantity(row["mass_kg"], bold=True)
         if mass_f is None:
@@ -290,11 +294,13 @@ def write_charge_row(ws, st: Styles, row: dict[str, Any], r: int, lim_row: int |
     put(ws, r, COL["balance"], None, st.fill_text)
     put(ws, r, COL["checked_by"], None, st.fill_text)
     actual = COL["actual_mass_kg"]
-    if carried:
+    if carried or row["rule"] == "gas":
         put(ws, r, actual, None, st.not_used)
         ws.data_validation(r, actual, r, actual, {
             "validate": "any", "input_title": "Not weighed",
-            "input_message": "Transferred whole from the step before: record the mass only if it was weighed.",
+            "input_message": ("A gas is charged by its normal volume: record the volume charged in the remarks."
+                              if not carried else
+                              "Transferred whole from the step before: record the mass only if it was weighed."),
         })
         put(ws, r, COL["flag"], "not weighed", st.cell_text)
         return
@@ -342,7 +348,9 @@ def _lot_cell(ws, st: Styles, row: dict[str, Any], r: int, mass_f: str | None) -
     else:
         put(ws, r, lot_col, None, st.not_used)
         message = (f"This charge is the reaction mixture of step {row['made_in']}, transferred whole: "
-                   "no lot assay applies." if carried else _RECORDED_ONLY)
+                   "no lot assay applies." if carried else
+                   "A gas is charged by its normal volume: no lot assay applies." if row["rule"] == "gas"
+                   else _RECORDED_ONLY)
         ws.data_validation(r, lot_col, r, lot_col, {
             "validate": "any", "input_title": "Recorded only", "input_message": message[:255],
         })
@@ -359,5 +367,19 @@ def _write_carried(ws, st: Styles, row: dict[str, Any], r: int) -> None:
         "validate": "any", "input_title": "Content, not weighed",
         "input_message": (f"Mass of {row['material']} in the mixture from step {row['made_in']}. "
                           "Transfer the whole mixture (volume to charge); nothing is weighed.")[:255],
+    })
+    put(ws, r, COL["volume_L"], row["volume_L"], st.quantity(row["volume_L"], bold=True))
+
+
+def _write_gas(ws, st: Styles, row: dict[str, Any], r: int) -> None:
+    """Mass and volume cells of a gas taken up: its normal volume per batch (0 degC,
+    101.325 kPa) [L] in bold, the quantity the plant charges from a cylinder or line,
+    and its mass [kg] in italics, not weighed, with a note shown on selecting it."""
+    mass_col = COL["mass_kg"]
+    put(ws, r, mass_col, row["mass_kg"], st.quantity(row["mass_kg"], content=True))
+    ws.data_validation(r, mass_col, r, mass_col, {
+        "validate": "any", "input_title": "Gas, not weighed",
+        "input_message": (f"Mass of {row['material']} per batch. Charge it by its normal volume "
+                          "(volume to charge, at 0 °C and 101.325 kPa); nothing is weighed.")[:255],
     })
     put(ws, r, COL["volume_L"], row["volume_L"], st.quantity(row["volume_L"], bold=True))

@@ -7,8 +7,10 @@ Layout (rows from the top): title with "batch k of n" (or "each of n batches
 caution, a header block (step, name, equation, vessel, yield, limiting reagent, product
 per batch, route, route file and its SHA-256, notes, the limiting reagent charged [mol] as
 a live formula, the weighing tolerance), the plan's warnings about the step, then the
-charge table — one row per charge in order of addition — and under it the records at the
-step's marked points and the sign-off block (:mod:`routeplan.export.workbook_records`).
+charge table — one row per charge in order of addition — and under it the safety block
+of the batch (criticality class, ΔTad, MTSR, gas volume and rate per batch, gas taken up,
+vent notes; "not screened" without thermal data; locked), the records at the step's
+marked points and the sign-off block (:mod:`routeplan.export.workbook_records`).
 Every sheet is protected without a password; the fill-in cells are unlocked.
 
 The charge table's columns and live formulas are those of
@@ -24,6 +26,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
+from routeplan.views.safety_text import SCREENING_NOTE, sheet_safety_pairs
 from routeplan.views.sheet_rows import batch_charge_rows
 from routeplan.export.workbook_charge_table import (COL, FILL_IN_COLUMNS, INPUT_KEYS, LAST_COLUMN,
                                                     PRINT_LAST_COLUMN, PRINTED_COLUMNS, REFERENCE_COLUMNS,
@@ -211,12 +214,34 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int | No
     last = first + len(rows) - 1
 
     step = plan.route.step(sp.id)
-    records_end = write_records(ws, st, last + 2, step, lambda a, b: sum(widths[a:b + 1]))
+    s = _safety_block(ws, st, sp, last + 2, widths)
+    records_end = write_records(ws, st, s, step, lambda a, b: sum(widths[a:b + 1]))
     end = write_sign_off(ws, st, records_end + 2, PRINT_LAST_COLUMN, k, n)
     ws.freeze_panes(h + 1, 0)
     _page_setup(ws, h, end, context)
     protect(ws)
-    return {"first_row": first, "last_row": last, "rows": rows, "heading_row": h, "limiting_mol_cell": lim_cell}
+    return {"first_row": first, "last_row": last, "rows": rows, "heading_row": h, "limiting_mol_cell": lim_cell,
+            "safety_row": last + 2 if sp.safety else -1}
+
+
+def _safety_block(ws, st: Styles, sp: "StepPlan", r: int, widths: list[float]) -> int:
+    """The safety block under the charge table, beside the hazards column: a heading
+    and one label-value line each (:func:`routeplan.views.safety_text.sheet_safety_pairs`);
+    return the row after it (two below its last line; ``r`` when there is nothing)."""
+    pairs = sheet_safety_pairs(sp)
+    if not pairs:
+        return r
+    put(ws, r, 0, f"Safety per batch: {SCREENING_NOTE}", st.subtitle)
+    for j, (label, text) in enumerate(pairs, start=1):
+        ws.merge_range(r + j, 0, r + j, 2, "", st.label)
+        put(ws, r + j, 0, label, st.label)
+        ws.merge_range(r + j, 3, r + j, PRINT_LAST_COLUMN, "", st.value_text)
+        put(ws, r + j, 3, text, st.value_text)
+        lines = max(wrapped_lines(label, sum(widths[0:3]), columns=3),
+                    wrapped_lines(text, sum(widths[3:PRINT_LAST_COLUMN + 1]), columns=PRINT_LAST_COLUMN - 2))
+        if lines > 1:
+            ws.set_row(r + j, lines_height(lines))
+    return r + len(pairs) + 2
 
 
 def _text_of(row: dict[str, Any], key: str) -> Any:

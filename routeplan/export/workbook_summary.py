@@ -14,7 +14,8 @@ not run, a line that says so (a step that does not run has no charge sheet), the
 raw-material totals with ``cost = mass * price`` as live
 formulas and their total, the stock comparison when ``plan.stock`` is set (largest
 target the stock allows, the limiting material, and per raw material need, on hand and
-``to buy = MAX(0, need - on hand)`` as a live formula), and the warnings.
+``to buy = MAX(0, need - on hand)`` as a live formula), the heat and gas of each step
+per batch (screening estimates; the steps not screened named), and the warnings.
 
 Materials: one row per material of the route (:data:`~routeplan.views.tables.MATERIAL_COLUMNS`).
 """
@@ -23,6 +24,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
+from routeplan.views.safety_text import SCREENING_NOTE, safety_summary_rows
 from routeplan.views.tables import Column
 from routeplan.views.uncertainty_text import uncertainty_fact_rows
 from routeplan.views.sheet_rows import STEP_METRIC_COLUMNS, STOCK_COLUMNS, material_columns, material_rows, metric_rows, raw_export_columns, raw_export_rows, step_metric_rows, step_rows, stock_rows, stock_summary_rows, summary_rows
@@ -221,8 +223,8 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
         ``raw_total`` (the total cost line, -1 without one), ``time_waste`` (first line
         of the campaign time, waste and cost-of-goods facts, -1 without them), ``uncertainty`` (first
         line of the yield-uncertainty block, -1 without ``--confidence``), ``stock`` (heading row of
-        the stock table, -1 without stock) and ``warnings`` (first warning line, -1
-        without one).
+        the stock table, -1 without stock), ``safety`` (first line of the safety
+        summary) and ``warnings`` (first warning line, -1 without one).
     """
     steps = _steps(plan, sheet_names)
     raw_cols, raws = raw_export_columns(plan), raw_export_rows(plan)
@@ -338,6 +340,17 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
         r += 1
         out["stock"] = r
         r = _stock_table(sh, r, stocks)
+
+    # heat and gas, screening estimates
+    r += 2
+    put(ws, r, 0, f"Safety per batch: {SCREENING_NOTE}", st.subtitle)
+    out["safety"] = r + 1
+    for row in safety_summary_rows(plan):
+        r += 1
+        put(ws, r, 0, row["step"], st.cell_text)
+        ws.merge_range(r, 1, r, last, "", st.note)
+        ws.write_string(r, 1, row["text"], st.note)
+        sh.fit_row(r, {1: row["text"]}, {1: last})
 
     out["record"] = -1
     if plan.record is not None:

@@ -70,8 +70,11 @@ class Sized:
         Volume per batch over the vessel's nominal volume [-]; None without a vessel.
     reaction_m_kg : float
         Mass that takes part in the reaction over the campaign [kg]: every charge but
-        ``role: workup``; a telescoped mixture at everything charged to the step that
-        made it, in proportion to the share of its product taken.
+        ``role: workup`` (a catalyst and a gas taken up included); a telescoped mixture
+        at everything charged to the step that made it less the gas that step evolved
+        (``phase: gas`` products at full conversion,
+        :func:`routeplan.plan.safety.evolved_gas_mass_kg`), in proportion to the share
+        of its product taken (ROUTE-FORMAT.md, "Readings fixed for the extensions").
     """
 
     V_L: float
@@ -89,6 +92,8 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
     mixture.  A step that does not run gets 0 batches, no fill and no warning.
     """
     from routeplan.units import unit
+
+    from routeplan.plan.safety import evolved_gas_mass_kg
 
     L = unit("L")
     maker = route.maker
@@ -119,7 +124,7 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
             m_all += m
             if step.charges[i].role != "workup":
                 m_rxn += m
-        charged[sid] = m_all
+        charged[sid] = m_all - evolved_gas_mass_kg(route, sid, w.n_lim)  # the gas leaves the mixture
         if sid in walked.not_run:
             out[sid] = Sized(V_total, (), carried_in, 0, None, m_rxn)
             continue

@@ -290,7 +290,9 @@ class StepPlan:
     not_run : str or None
         Why the step does not run in this campaign (the stock of its product covers
         the demand, or it feeds only steps that do not run); None when it runs.  A step
-        that does not run has zero charges and zero batches.
+        that does not run has zero charges and zero batches.    safety : StepSafety or None
+        Heat and gas of one batch (:mod:`routeplan.plan.safety`), once assessed; its
+        ``thermal`` is None for a step that is not screened.
     """
 
     id: str
@@ -311,6 +313,7 @@ class StepPlan:
     stock_n_mol: float | None = None
     stock_m_kg: float | None = None
     not_run: str | None = None
+    safety: Any = None
 
     @property
     def batches(self) -> int:

@@ -133,6 +133,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     from routeplan.plan.campaign import size_steps
     from routeplan.plan.charges import step_plans
     from routeplan.plan.metrics import compute_metrics
+    from routeplan.plan.safety import assess_safety
     from routeplan.plan.model import Plan
     from routeplan.plan.purchase import with_packs
     from routeplan.plan.totals import overall_yield, raw_material_totals
@@ -171,11 +172,13 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     no_range = guards.steps_without_range(route, yields)
     sized, batch_warnings = size_steps(route, walked)
     steps = step_plans(route, walked, sized)
+    steps, safety_warnings = assess_safety(route, steps)
     draft = Draft(route=route, target_material=route.target.material,
                   target_kg=amount_kg * (1 + route.target.overage), target_n_mol=walked.n_target_mol,
                   steps=steps, raw_materials=with_packs(route, raw_material_totals(route, steps)),
                   overall_yield=overall_yield(route, steps, walked.n_target_mol), yield_basis=yields)
-    warnings: list[Problem] = [*route.warnings, *batch_warnings, *(() if account is None else account.warnings)]
+    warnings: list[Problem] = [*route.warnings, *batch_warnings, *safety_warnings,
+                               *(() if account is None else account.warnings)]
     if no_range:
         warnings.append(guards.range_warning(route, yields, no_range))
     stock_plan = None

@@ -26,6 +26,7 @@ from typing import Any
 
 from routeplan.errors import EquationError, FormulaError, Problem
 from routeplan.route import checks_plausibility as plausible
+from routeplan.route import checks_safety
 from routeplan.route.checks_plausibility import MOLAR_MASS_TOLERANCE
 from routeplan.route.schema import CHARGE_BASES, MaterialModel, StepModel, TargetModel, VesselModel
 from routeplan.route.yamlpos import Positions
@@ -182,6 +183,7 @@ class _Checker:
                 self.found(plausible.density_findings(here + ("density",), m.density))
             if m.solution is not None:
                 self.solution(key, m)
+        self.found(checks_safety.gas_findings(self.parts.materials))
 
     def found(self, findings, step: str | None = None) -> bool:
         """Add plausibility findings (:mod:`routeplan.route.checks_plausibility`); True if any."""
@@ -291,6 +293,8 @@ class _Checker:
                              f"the expected yield {_pct(y.expected)} is outside low..high "
                              f"({_pct(y.low)} to {_pct(y.high)})", "low <= expected <= high", step=s.id)
             self.charges(i, s, eq)
+            reactants = [t.key for t in eq.reactants] if i in self.facts.equations else None
+            self.found(checks_safety.step_safety_findings(i, s, reactants))
 
     def equation(self, i: int, s: StepModel, eq) -> None:
         here = ("steps", i)

@@ -23,9 +23,9 @@ from __future__ import annotations
 
 import math
 import re
-from dataclasses import dataclass
 from typing import Any, Mapping
 
+from routeplan.route.findings import Finding
 from routeplan.vocab import Severity
 
 __all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "MOLAR_MASS_TOLERANCE", "CHARGE_RANGES",
@@ -90,26 +90,6 @@ HIGHEST_USUAL_OVERAGE = 1.0
 #: A solute's mass per litre this close below the solution's still counts as equal [-]
 #: (absorbs the rounding of unit conversions).
 _EQUAL = 1e-9
-
-
-@dataclass(frozen=True)
-class Finding:
-    """One plausibility problem, to be located by the caller.
-
-    Parameters
-    ----------
-    severity : Severity
-        :attr:`Severity.ERROR` or :attr:`Severity.WARNING`.
-    path : tuple
-        Key path in the route file, e.g. ``("materials", "HCl6M", "solution", "molarity")``.
-    message, hint : str
-        What is wrong, and what would be right.
-    """
-
-    severity: Severity
-    path: tuple
-    message: str
-    hint: str | None = None
 
 
 def _g(x: float) -> str:

@@ -26,8 +26,8 @@ from pydantic import TypeAdapter, ValidationError
 
 from routeplan.errors import Location, Problem, RouteError, not_a_regular_file
 from routeplan.route.checks import Facts, Parts, _default_role, check_parts
-from routeplan.route.model import (DEFAULT_CHARGE_TOLERANCE, Charge, Control, Material, Route, Solution, Source, Step,
-                                   Target, Vessel, WastePrices, Yield)
+from routeplan.route.model import (DEFAULT_CHARGE_TOLERANCE, Charge, Conditions, Control, Dosing, Material, Route,
+                                   Solution, Source, Step, Target, Thermal, Vessel, WastePrices, Yield)
 from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepModel, TargetModel, VesselModel,
                                     WastePricesModel, describe_value,
                                     keys_of, validation_problems)
@@ -275,7 +275,8 @@ def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Mater
         smiles=m.smiles, molar_mass=facts.molar_masses.get(key), assay=m.assay if m.assay is not None else 1.0,
         density=density, solution=solution, price=m.price, hazards=tuple(m.hazards or ()), notes=m.notes,
         starting_material=m.starting_material,
-        location=pos.at(("materials", key), key=True), stream=m.stream, pack=_pack_unit(m.pack), bought=m.bought)
+        location=pos.at(("materials", key), key=True), phase=m.phase, stream=m.stream, pack=_pack_unit(m.pack),
+        bought=m.bought)
 
 
 def _pack_unit(q):
@@ -314,4 +315,32 @@ def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
         demonstrated_batch=s.demonstrated_batch.to("kg") if s.demonstrated_batch is not None else None,
         notes=s.notes, location=pos.at(("steps", i)),
         cycle_time=s.cycle_time.to("h") if s.cycle_time is not None else None,
-        controls=tuple(Control(point=k.point, check=k.check, limit=k.limit) for k in (s.controls or ())))
+        controls=tuple(Control(point=k.point, check=k.check, limit=k.limit) for k in (s.controls or ())),
+        **_safety_parts(i, s, pos))
+
+
+def _kelvin(q):
+    return None if q is None else q.to("K")
+
+
+def _safety_parts(i: int, s: StepModel, pos: Positions) -> dict:
+    """The step's conditions, dosing and thermal data as domain objects (None where not given)."""
+    here = ("steps", i)
+    out: dict = {}
+    if s.conditions is not None:
+        c = s.conditions
+        out["conditions"] = Conditions(temperature=_kelvin(c.temperature),
+                                       pressure=None if c.pressure is None else c.pressure.to("bar"),
+                                       location=pos.at(here + ("conditions",)))
+    if s.dosing is not None:
+        out["dosing"] = Dosing(material=s.dosing.material, time=s.dosing.time.to("h"),
+                               location=pos.at(here + ("dosing",)))
+    if s.thermal is not None:
+        t = s.thermal
+        out["thermal"] = Thermal(
+            reaction_enthalpy=t.reaction_enthalpy.to("kJ/mol"), heat_capacity=t.heat_capacity.to("kJ/(kg*K)"),
+            process_temperature=_kelvin(t.process_temperature),
+            max_technical_temperature=_kelvin(t.max_technical_temperature),
+            decomposition_temperature_24h=_kelvin(t.decomposition_temperature_24h),
+            accumulation=t.accumulation, location=pos.at(here + ("thermal",)))
+    return out

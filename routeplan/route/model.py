@@ -33,6 +33,9 @@ __all__ = [
     "Control",
     "DEFAULT_CHARGE_TOLERANCE",
     "Yield",
+    "Conditions",
+    "Dosing",
+    "Thermal",
     "Step",
     "Target",
     "Source",
@@ -107,6 +110,9 @@ class Material:
         Free text.
     location : Location or None
         Where the material is defined in the route file.
+    phase : str or None
+        ``"solid"``, ``"liquid"`` or ``"gas"`` where the file says; a material is a gas
+        only when it says ``phase: gas``.
     pack : pint.Quantity or None
         Size of one pack as sold: a mass [kg] or a volume [L]; None when not given.
     bought : bool
@@ -132,6 +138,7 @@ class Material:
     hazards: tuple[str, ...] = ()
     notes: str | None = None
     location: Location | None = None
+    phase: str | None = None
     pack: "pint.Quantity | None" = None
     bought: bool = True
     starting_material: bool = False
@@ -238,6 +245,70 @@ class Yield:
 
 
 @dataclass(frozen=True)
+class Conditions:
+    """A step's reaction conditions, as written (``steps[].conditions``).
+
+    Attributes
+    ----------
+    temperature : pint.Quantity or None
+        Reaction temperature [K]; None when not given (the planner's default is 20 degC).
+    pressure : pint.Quantity or None
+        Absolute pressure [bar]; None when not given (default 1.01325 bar).
+    """
+
+    temperature: "pint.Quantity | None" = None
+    pressure: "pint.Quantity | None" = None
+    location: Location | None = None
+
+
+@dataclass(frozen=True)
+class Dosing:
+    """The charge of a step that is dosed over a time (semi-batch).
+
+    Attributes
+    ----------
+    material : str
+        Key of the dosed charge (a charge of the step).
+    time : pint.Quantity
+        Dosing time [h].
+    """
+
+    material: str
+    time: "pint.Quantity"
+    location: Location | None = None
+
+
+@dataclass(frozen=True)
+class Thermal:
+    """A step's thermal data (``steps[].thermal``), for a screening estimate.
+
+    Attributes
+    ----------
+    reaction_enthalpy : pint.Quantity
+        Heat of reaction per mole of limiting reagent converted [kJ/mol]; negative
+        when exothermic.
+    heat_capacity : pint.Quantity
+        Specific heat capacity of the reaction mass [kJ/(kg*K)].
+    process_temperature : pint.Quantity or None
+        Tp [K]; None: the step's conditions.temperature.
+    max_technical_temperature : pint.Quantity or None
+        MTT [K].
+    decomposition_temperature_24h : pint.Quantity or None
+        TD24 [K].
+    accumulation : float or None
+        Largest fraction of the dosed reagent present unreacted [-]; None: 1.0.
+    """
+
+    reaction_enthalpy: "pint.Quantity"
+    heat_capacity: "pint.Quantity"
+    process_temperature: "pint.Quantity | None" = None
+    max_technical_temperature: "pint.Quantity | None" = None
+    decomposition_temperature_24h: "pint.Quantity | None" = None
+    accumulation: float | None = None
+    location: Location | None = None
+
+
+@dataclass(frozen=True)
 class Step:
     """One reaction of the route.
 
@@ -269,6 +340,12 @@ class Step:
         Free text.
     location : Location or None
         Where the step is defined.
+    conditions : Conditions or None
+        Temperature and pressure as written; None when the file gives none.
+    dosing : Dosing or None
+        The dosed charge (semi-batch); None for a batch step.
+    thermal : Thermal or None
+        Thermal data; None: the step is not screened.
     controls : tuple of Control
         Points where the operator records temperature and time, in order.
     cycle_time : pint.Quantity or None
@@ -288,6 +365,9 @@ class Step:
     demonstrated_batch: "pint.Quantity | None" = None
     notes: str | None = None
     location: Location | None = None
+    conditions: Conditions | None = None
+    dosing: Dosing | None = None
+    thermal: Thermal | None = None
     controls: tuple[Control, ...] = ()
 
     def charge_tolerance(self, charge: Charge, route: "Route") -> float:

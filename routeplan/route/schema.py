@@ -39,6 +39,10 @@ __all__ = [
     "StepModel",
     "YieldModel",
     "ChargeModel",
+    "ConditionsModel",
+    "DosingModel",
+    "ThermalModel",
+    "PHASES",
     "WastePricesModel",
     "CHARGE_BASES",
     "ControlModel",
@@ -54,12 +58,17 @@ FORMAT_VERSION = 1
 #: The rule for material keys: letters, digits, ``-``, ``_``, ``.``; starts with a letter or digit.
 MATERIAL_KEY = re.compile(r"^[A-Za-z0-9][A-Za-z0-9_.\-]*$")
 
+#: The phases a material may be said to have (``materials.<key>.phase``).
+PHASES = ("solid", "liquid", "gas")
+
 #: The bases a charge line may give (at most one).
 CHARGE_BASES = GIVEN_BASES
 
 _NUMBER_PATTERN = r"(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d+)?"
 #: JSON-schema pattern of a quantity string: a non-negative number, then a unit (no decimal comma).
 QUANTITY_PATTERN = rf"^\s*\+?{_NUMBER_PATTERN}\s*[^\s\d,.].*$"
+#: JSON-schema pattern of a quantity string that may be negative (an enthalpy, a temperature in degC).
+SIGNED_QUANTITY_PATTERN = rf"^\s*[+-]?{_NUMBER_PATTERN}\s*[^\s\d,.].*$"
 #: JSON-schema pattern of a percent string (``85 %``) or a plain fraction in a string.
 PERCENT_PATTERN = rf"^\s*\+?{_NUMBER_PATTERN}\s*(?:%|percent)?\s*$"
 
@@ -153,6 +162,44 @@ def _quantity(dimension: str):
         return q
 
     return check
+
+
+def _signed_quantity(dimension: str):
+    """A quantity of ``dimension`` that may be negative or zero (a reaction enthalpy)."""
+    def check(value: Any):
+        if value is None:
+            raise _fail(f"has no value; expected {dimension} such as '{DIMENSIONS[dimension][1]}'",
+                        "leave the key out if it does not apply")
+        try:
+            q = parse_quantity(value, dimension)
+        except QuantityError as exc:
+            raise _fail(exc.message, exc.hint) from None
+        if not math.isfinite(q.magnitude):
+            raise _fail(f"must be a finite number, got {describe_value(value)}")
+        return q
+
+    return check
+
+
+def _temperature(value: Any):
+    """A temperature in degC, K or degF (a bare number is an error), above absolute zero."""
+    if value is None:
+        raise _fail("has no value; expected a temperature such as '25 degC'", "leave the key out if it does not apply")
+    try:
+        q = parse_quantity(value, "temperature")
+    except QuantityError as exc:
+        raise _fail(exc.message, exc.hint) from None
+    if not q.to("K").magnitude > 0:
+        raise _fail(f"{describe_value(value)} is at or below absolute zero", "write e.g. '25 degC' or '298.15 K'")
+    return q
+
+
+def _phase(value: Any) -> str:
+    if isinstance(value, str) and value in PHASES:
+        return value
+    near = difflib.get_close_matches(str(value).lower(), PHASES, n=1, cutoff=0.6)
+    hint = f"did you mean '{near[0]}'?" if near else None
+    raise _fail(f"must be one of {', '.join(PHASES)}; got {describe_value(value)}", hint)
 
 
 def _pack(value: Any):
@@ -299,6 +346,19 @@ def Quantity(dimension: str, description: str):
                      WithJsonSchema(_quantity_schema(dimension, description))]
 
 
+def SignedQuantity(dimension: str, description: str):
+    """A quantity field type that may be negative or zero (a reaction enthalpy)."""
+    schema = _quantity_schema(dimension, description) | {"pattern": SIGNED_QUANTITY_PATTERN}
+    return Annotated[Any, PlainValidator(_signed_quantity(dimension)), WithJsonSchema(schema)]
+
+
+def Temperature(description: str):
+    """A temperature field type: degC, K or degF with its unit; kept as a pint Quantity."""
+    schema = _quantity_schema("temperature", description) | {"pattern": SIGNED_QUANTITY_PATTERN,
+                                                              "examples": ["25 degC", "298.15 K", "77 degF"]}
+    return Annotated[Any, PlainValidator(_temperature), WithJsonSchema(schema)]
+
+
 def Percent(description: str, *, allow_zero: bool = False, allow_above_one: bool = False):
     """A percent field type: ``'85 %'`` or a fraction in [0, 1]; read as a fraction [-]."""
     return Annotated[Any, PlainValidator(_fraction(allow_zero=allow_zero, allow_above_one=allow_above_one)),
@@ -346,6 +406,10 @@ class MaterialModel(_Model):
                                                       "mass_fraction, and density")
     price: Number("price per kg as supplied, in the route's currency", positive=False) = None
     hazards: list[Text("a hazard note")] = Field(None, description="free-text hazard notes")
+    phase: Annotated[Any, PlainValidator(_phase),
+                     WithJsonSchema({"enum": list(PHASES),
+                                     "description": "solid, liquid or gas; a product with phase gas is gas "
+                                                    "evolved, a reactant with phase gas is gas taken up"})] = None
     notes: Text("free text") = None
     pack: Annotated[Any, PlainValidator(_pack),
                     WithJsonSchema({"type": "string", "pattern": QUANTITY_PATTERN, "examples": ["25 kg", "2.5 L"],
@@ -413,6 +477,35 @@ class ControlModel(_Model):
         return self
 
 
+class ConditionsModel(_Model):
+    """``steps[i].conditions``: the reaction's temperature and absolute pressure."""
+
+    temperature: Temperature("reaction temperature, default 20 degC") = None
+    pressure: Quantity("pressure", "absolute pressure, default 1.01325 bar") = None
+
+
+class DosingModel(_Model):
+    """``steps[i].dosing``: the charge that is dosed over a time (semi-batch)."""
+
+    material: Text("key of the charge of this step that is dosed")
+    time: Quantity("time", "time over which it is dosed")
+
+
+class ThermalModel(_Model):
+    """``steps[i].thermal``: thermal data of the step, for a screening estimate."""
+
+    reaction_enthalpy: SignedQuantity("molar enthalpy", "heat of reaction per mole of limiting reagent "
+                                                        "converted (negative: exothermic)")
+    heat_capacity: Quantity("heat capacity", "specific heat capacity of the reaction mass")
+    process_temperature: Temperature("Tp, default conditions.temperature") = None
+    max_technical_temperature: Temperature("MTT: boiling point of the mixture at the vessel's pressure, or the "
+                                           "set temperature of the relief") = None
+    decomposition_temperature_24h: Temperature("TD24: temperature at which the time to maximum rate under "
+                                               "adiabatic conditions is 24 h") = None
+    accumulation: Percent("for a dosed step, the largest fraction of the dosed reagent present unreacted, "
+                          "default 100 %", allow_zero=True) = None
+
+
 class StepModel(_Model):
     """``steps[i]``: one reaction."""
 
@@ -427,6 +520,9 @@ class StepModel(_Model):
     isolated: Boolean = Field(True, description="false for a telescoped step whose product goes on in solution")
     vessel: Text("key of the equipment used") = None
     demonstrated_batch: Quantity("mass", "largest batch run so far, as mass of limiting reagent") = None
+    conditions: ConditionsModel = Field(None, description="reaction temperature and absolute pressure")
+    dosing: DosingModel = Field(None, description="the charge dosed over a time; without it the step is a batch")
+    thermal: ThermalModel = Field(None, description="thermal data for the heat screening estimate")
     cycle_time: Quantity("time", "vessel time for one batch of the step, cleaning included") = None
     notes: Text("free text, carried onto the charge sheet") = None
     controls: list[ControlModel] = Field(None, description="points of the step where the operator records "
@@ -476,6 +572,12 @@ MISSING_HINTS: dict[tuple[type, str], str] = {
     (StepModel, "equation"): "e.g. 'equation: Amine + Ac2O -> Amide + AcOH'",
     (StepModel, "yield"): "the molar yield of the product, e.g. 'yield: 88 %'",
     (ChargeModel, "material"): "the key of the material charged",
+    (DosingModel, "material"): "the key of the charge that is dosed, e.g. 'material: Ac2O'",
+    (DosingModel, "time"): "the time over which it is dosed, e.g. 'time: 2 h'",
+    (ThermalModel, "reaction_enthalpy"): "the heat of reaction per mole of limiting reagent, e.g. "
+                                         "'reaction_enthalpy: -150 kJ/mol'",
+    (ThermalModel, "heat_capacity"): "the specific heat of the reaction mass, e.g. 'heat_capacity: "
+                                     "1.9 kJ/(kg*K)'; no default is ever guessed",
     (ControlModel, "point"): "where in the step the record is taken, e.g. 'point: after dosing'",
 }
 

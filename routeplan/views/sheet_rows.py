@@ -148,19 +148,26 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
     then the volume of that step's mixture carried in [L] and ``mass_kg`` the mass of
     the compound in it [kg], nothing weighed.  ``limiting`` marks the limiting
     reagent's line; ``made_in`` names the step that makes an intermediate and
-    ``in_solution`` is True when it is carried in solution.  ``tolerance`` [-] is how far
-    the mass weighed in may be from the mass to charge, either way (the line's own, else
-    the route's ``charge_tolerance``).
+    ``in_solution`` is True when it is carried in solution.  A gas taken up
+    (``phase: gas`` reactant) has ``rule`` ``"gas"``: its ``volume_L`` is the normal
+    volume per batch at 0 degC and 101.325 kPa [L], the figure it is charged by, and
+    ``mass_kg`` its mass, not weighed.  ``tolerance`` [-] is how far the mass weighed in
+    may be from the mass to charge, either way (the line's own, else the route's
+    ``charge_tolerance``).
     """
+    from routeplan.views.safety_text import gas_charges
+
     route = plan.route
     step = route.step(sp.id)
     n = sp.batches or 1  # a step that does not run gets no charge sheet; its rows are its zeros
+    gases = gas_charges(sp)
     rows = []
     seen_limiting = False
     for c in sp.charges:
         mat = route.materials[c.material]
         sol = mat.solution
-        rule = "carried" if c.carried_from is not None else charge_rule(c.basis, mat)
+        rule = "carried" if c.carried_from is not None else "gas" if c.material in gases else \
+            charge_rule(c.basis, mat)
         if sol is not None:
             assay = sol.mass_fraction
             density = sol.density
@@ -184,7 +191,8 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
             "molarity": magnitude(sol.molarity, "mol/L") if sol is not None and sol.molarity is not None else None,
             "density": magnitude(density, "g/mL"),
             "mass_kg": float(c.mass.m_as("kg")) / n,
-            "volume_L": None if c.volume is None else float(c.volume.m_as("L")) / n,
+            "volume_L": (gases[c.material] if rule == "gas" else
+                         None if c.volume is None else float(c.volume.m_as("L")) / n),
             "hazards": "; ".join(mat.hazards),
             "tolerance": step.charge_tolerance(step.charges[c.order - 1], route),
             "rule": rule,

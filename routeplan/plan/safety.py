@@ -1,0 +1,479 @@
+"""Heat and gas per batch: the screening estimates a safety review asks for first.
+
+Pure computation on plain floats in fixed units (mol, kg, L, K, kJ, Pa, min) from the
+per-batch numbers of the Plan (``BatchPlan.per_batch``, ``ChargePlan.n_mol_batch``), by the
+method of ROUTE-FORMAT.md, "Extensions" (Stoessel, *Thermal Safety of Chemical
+Processes*, Wiley-VCH 2008; criticality classes: Stoessel, Chem. Eng. Prog. 1993, 89(10),
+68):
+
+Gas evolved (a product with ``phase: gas``)
+    ``n = nu_gas / nu_lim * n_lim`` per batch (full conversion of the limiting reagent,
+    the safe side; not reduced by the yield); ``V = n R T / p`` at the step's conditions;
+    for a dosed step the mean rate ``V / dosing.time``.
+Gas taken up (a reactant with ``phase: gas``)
+    moles per batch from its charge and the volume at normal conditions (0 degC,
+    101.325 kPa).
+Heat (a step with ``thermal``)
+    ``delta_T_ad = -dH_r * n_lim / (m * cp)`` with ``m`` the reaction mass of the batch
+    (:func:`routeplan.plan.campaign.reaction_masses`); ``MTSR = Tp + X_ac * delta_T_ad``
+    for a dosed step (``X_ac`` the accumulation, default 1), ``Tp + delta_T_ad`` for a
+    batch step; the criticality class from MTSR, MTT and TD24; the severity from
+    ``delta_T_ad``.  An endothermic step has a negative ``delta_T_ad``; nothing is
+    clamped.  A step without ``thermal`` is not screened (``thermal`` None).
+
+Everything here is a screening estimate: it never replaces calorimetry and a hazard
+assessment by qualified people.  The warnings say so in their own words.
+"""
+
+from __future__ import annotations
+
+import functools
+import re
+from dataclasses import dataclass
+from typing import TYPE_CHECKING
+
+from routeplan.errors import Problem
+from routeplan.route.checks_safety import DEFAULT_PRESSURE_BAR, DEFAULT_TEMPERATURE_C
+from routeplan.units import unit
+from routeplan.vocab import Severity
+
+if TYPE_CHECKING:  # pragma: no cover
+    from routeplan.plan.model import StepPlan
+    from routeplan.route.model import Route, Step
+
+__all__ = [
+    "R_J_PER_MOL_K",
+    "ZERO_CELSIUS_K",
+    "NORMAL_PRESSURE_PA",
+    "SEVERITY_MEDIUM_K",
+    "SEVERITY_HIGH_K",
+    "GAS_FREE_VOLUME_RATIO",
+    "SCREENING",
+    "GasEvolved",
+    "GasTakenUp",
+    "ThermalScreen",
+    "StepSafety",
+    "ideal_gas_volume_L",
+    "normal_volume_L",
+    "gas_evolved_mol",
+    "delta_T_ad_K",
+    "mtsr_K",
+    "criticality_class",
+    "severity",
+    "evolved_gas_mass_kg",
+    "step_safety",
+    "assess_safety",
+]
+
+#: Molar gas constant [J/(mol K)]: exact in the 2019 SI (N_A * k, both fixed; CODATA 2018).
+R_J_PER_MOL_K = 8.314462618
+
+#: 0 degC [K] (exact by the definition of the degree Celsius, NIST SP 811).
+ZERO_CELSIUS_K = 273.15
+
+#: Normal pressure, 1 atm [Pa] (exact, NIST SP 811).
+NORMAL_PRESSURE_PA = 101325.0
+
+#: delta_T_ad from which the severity is ``medium`` / ``high`` [K] (Stoessel 2008, as
+#: ROUTE-FORMAT.md writes it).
+SEVERITY_MEDIUM_K = 50.0
+SEVERITY_HIGH_K = 200.0
+
+#: Gas per batch this many times the vessel's free volume (nominal volume less the batch
+#: volume) or more is warned about [-] (common practice, no source).
+GAS_FREE_VOLUME_RATIO = 10.0
+
+#: The words every heat and gas warning ends with.
+SCREENING = "a screening estimate that never replaces calorimetry and a hazard assessment by qualified people"
+
+#: Words in a gas's hazards that call for a vent or scrubber note.
+_VENT_WORDS = re.compile(r"\b(toxic|flammable)\b", re.I)
+_NOT_VENT = re.compile(r"\bnon-?\s*(toxic|flammable)\b|\bnot\s+(toxic|flammable)\b", re.I)
+
+
+@dataclass(frozen=True)
+class GasEvolved:
+    """A gas given off by one batch of a step.
+
+    Attributes
+    ----------
+    material : str
+        Key of the gaseous product.
+    mol_per_batch : float
+        Amount evolved at full conversion [mol].
+    volume_L_per_batch : float
+        Its volume at the step's temperature and pressure [L].
+    temperature_C, pressure_bar : float
+        Those conditions [degC], [bar].
+    rate_L_per_min : float or None
+        Mean rate over the dosing time [L/min]; None for a batch step.
+    vent : tuple of str
+        The hazards of the gas that call for a vent or scrubber (``toxic``, ``flammable``).
+    """
+
+    material: str
+    mol_per_batch: float
+    volume_L_per_batch: float
+    temperature_C: float
+    pressure_bar: float
+    rate_L_per_min: float | None
+    vent: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class GasTakenUp:
+    """A gas taken up by one batch of a step (a hydrogenation, an oxidation).
+
+    Attributes
+    ----------
+    material : str
+        Key of the gaseous reactant.
+    mol_per_batch : float
+        Amount charged per batch [mol].
+    normal_volume_L_per_batch : float
+        Its volume at 0 degC and 101.325 kPa [L].
+    vent : tuple of str
+        Hazards that call for a vent or scrubber note.
+    """
+
+    material: str
+    mol_per_batch: float
+    normal_volume_L_per_batch: float
+    vent: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True)
+class ThermalScreen:
+    """The heat of one batch, by Stoessel's method.
+
+    Attributes
+    ----------
+    reaction_mass_kg_per_batch : float
+        Reaction mass m [kg].
+    delta_T_ad_K : float
+        Adiabatic temperature rise [K] (negative for an endothermic step).
+    process_temperature_C : float
+        Tp [degC].
+    mtsr_C : float
+        Maximum temperature of the synthesis reaction [degC].
+    mtt_C, td24_C : float or None
+        MTT and TD24 where given [degC].
+    accumulation : float or None
+        Accumulation used for a dosed step [-]; None for a batch step.
+    criticality_class : int or None
+        1 to 5; None unless MTT and TD24 are both given.
+    severity : str
+        ``low``, ``medium`` or ``high``.
+    """
+
+    reaction_mass_kg_per_batch: float
+    delta_T_ad_K: float
+    process_temperature_C: float
+    mtsr_C: float
+    mtt_C: float | None
+    td24_C: float | None
+    accumulation: float | None
+    criticality_class: int | None
+    severity: str
+
+
+@dataclass(frozen=True)
+class StepSafety:
+    """Heat and gas of one batch of one step.
+
+    Attributes
+    ----------
+    gas_evolved : tuple of GasEvolved
+        In the order of the equation; empty when no product says ``phase: gas``.
+    gas_taken_up : tuple of GasTakenUp
+        In the order of the equation.
+    thermal : ThermalScreen or None
+        None for a step without thermal data: it is *not screened*.
+    dosed : str or None
+        Key of the dosed charge; None for a batch step.
+    dosing_time_min : float or None
+        Dosing time [min].
+    free_volume_L : float or None
+        The vessel's nominal volume less the batch volume [L]; None without a vessel.
+    runs : bool
+        False for a step that does not run (no batch, nothing computed).
+    """
+
+    gas_evolved: tuple[GasEvolved, ...] = ()
+    gas_taken_up: tuple[GasTakenUp, ...] = ()
+    thermal: ThermalScreen | None = None
+    dosed: str | None = None
+    dosing_time_min: float | None = None
+    free_volume_L: float | None = None
+    runs: bool = True
+
+    @property
+    def screened(self) -> bool:
+        """True when the step has thermal data (and runs)."""
+        return self.thermal is not None
+
+
+# ----------------------------------------------------------------------------- formulas
+
+def ideal_gas_volume_L(n_mol: float, T_K: float, p_Pa: float) -> float:
+    """Volume of ``n_mol`` of an ideal gas, ``V = n R T / p`` [L].
+
+    Parameters
+    ----------
+    n_mol : float
+        Amount [mol].
+    T_K : float
+        Temperature [K].
+    p_Pa : float
+        Absolute pressure [Pa].
+
+    Examples
+    --------
+    >>> round(ideal_gas_volume_L(1.0, 273.15, 101325.0), 5)
+    22.41397
+    """
+    return n_mol * R_J_PER_MOL_K * T_K / p_Pa * 1000.0
+
+
+def normal_volume_L(n_mol: float) -> float:
+    """Volume of ``n_mol`` of an ideal gas at 0 degC and 101.325 kPa [L]."""
+    return ideal_gas_volume_L(n_mol, ZERO_CELSIUS_K, NORMAL_PRESSURE_PA)
+
+
+def gas_evolved_mol(nu_gas: float, nu_lim: float, n_lim_mol: float) -> float:
+    """Gas evolved at full conversion, ``n = nu_gas / nu_lim * n_lim`` [mol]."""
+    return nu_gas / nu_lim * n_lim_mol
+
+
+def delta_T_ad_K(dH_kJ_per_mol: float, n_lim_mol: float, m_kg: float, cp_kJ_per_kg_K: float) -> float:
+    """Adiabatic temperature rise, ``-dH_r * n_lim / (m * cp)`` [K].
+
+    Parameters
+    ----------
+    dH_kJ_per_mol : float
+        Reaction enthalpy per mole of limiting reagent [kJ/mol]; negative: exothermic.
+    n_lim_mol : float
+        Limiting reagent in the batch [mol].
+    m_kg : float
+        Reaction mass [kg].
+    cp_kJ_per_kg_K : float
+        Specific heat capacity of the reaction mass [kJ/(kg K)].
+
+    Examples
+    --------
+    >>> delta_T_ad_K(-100.0, 10.0, 10.0, 2.0)
+    50.0
+    """
+    return -dH_kJ_per_mol * n_lim_mol / (m_kg * cp_kJ_per_kg_K)
+
+
+def mtsr_K(Tp_K: float, dT_ad_K: float, accumulation: float = 1.0) -> float:
+    """Maximum temperature of the synthesis reaction, ``Tp + X_ac * delta_T_ad`` [K]."""
+    return Tp_K + accumulation * dT_ad_K
+
+
+def criticality_class(mtsr: float, mtt: float | None, td24: float | None) -> int | None:
+    """Criticality class 1 to 5 (Stoessel, Chem. Eng. Prog. 1993, 89(10), 68).
+
+    All three temperatures in one unit.  With MTT < TD24: class 1 if MTSR < MTT, 3 if
+    MTT <= MTSR < TD24, 4 if MTSR >= TD24; with MTT >= TD24: class 2 if MTSR < TD24, 5
+    if MTSR >= TD24.  A tie counts as the higher class.  None unless both MTT and TD24
+    are given.
+
+    Examples
+    --------
+    >>> criticality_class(80.0, 100.0, 150.0)
+    1
+    >>> criticality_class(100.0, 100.0, 150.0)
+    3
+    """
+    if mtt is None or td24 is None:
+        return None
+    if mtt < td24:
+        if mtsr < mtt:
+            return 1
+        return 3 if mtsr < td24 else 4
+    return 2 if mtsr < td24 else 5
+
+
+def severity(dT_ad_K: float) -> str:
+    """``low`` below 50 K, ``medium`` from 50 K to below 200 K, ``high`` from 200 K."""
+    if dT_ad_K >= SEVERITY_HIGH_K:
+        return "high"
+    return "medium" if dT_ad_K >= SEVERITY_MEDIUM_K else "low"
+
+
+def _vent(hazards) -> tuple[str, ...]:
+    found = []
+    for h in hazards:
+        text = _NOT_VENT.sub("", h)
+        for m in _VENT_WORDS.finditer(text):
+            word = m.group(1).lower()
+            if word not in found:
+                found.append(word)
+    return tuple(found)
+
+
+@functools.lru_cache(maxsize=16)
+def _gas_keys(route: "Route") -> frozenset[str]:
+    """Keys of the route's materials that say ``phase: gas`` (a Route hashes by identity)."""
+    return frozenset(k for k, m in route.materials.items() if m.phase == "gas")
+
+
+def _gases(route: "Route", step: "Step", side: str):
+    """(key, coefficient) of the gases on ``side`` (reactants or products), in equation order."""
+    gas = _gas_keys(route)
+    if not gas:
+        return []
+    terms = step.equation.products if side == "products" else step.equation.reactants
+    return [(t.key, t.coefficient) for t in terms if t.key in gas]
+
+
+def evolved_gas_mass_kg(route: "Route", step_id: str, n_lim_mol: float) -> float:
+    """Mass of every gas step ``step_id`` evolves from ``n_lim_mol`` of limiting reagent [kg].
+
+    Full conversion, as for the volumes; used to take the gas off the mixture that a
+    telescoped step carries on (:func:`routeplan.plan.campaign.reaction_masses`).
+    """
+    step = route.step(step_id)
+    nu_lim = step.equation.coefficient(step.limiting)
+    total = 0.0
+    for key, nu in _gases(route, step, "products"):
+        M = route.materials[key].molar_mass
+        if M is not None:
+            total += gas_evolved_mol(nu, nu_lim, n_lim_mol) * M.m_as(unit("kg/mol"))
+    return total
+
+
+# ----------------------------------------------------------------------------- per step
+
+def _conditions(step: "Step") -> tuple[float, float]:
+    """Temperature [K] and absolute pressure [Pa] of the step (defaults 20 degC, 1.01325 bar)."""
+    c = step.conditions
+    T_K = c.temperature.m_as(unit("K")) if c is not None and c.temperature is not None else \
+        DEFAULT_TEMPERATURE_C + ZERO_CELSIUS_K
+    p_Pa = c.pressure.m_as(unit("Pa")) if c is not None and c.pressure is not None else DEFAULT_PRESSURE_BAR * 1e5
+    return float(T_K), float(p_Pa)
+
+
+def step_safety(route: "Route", sp: "StepPlan", nominal_L: "dict[str, float] | None" = None) -> StepSafety:
+    """Heat and gas of one batch of step ``sp`` (its batches sized).
+
+    Parameters
+    ----------
+    route : Route
+    sp : StepPlan
+        With ``batch`` set.
+    nominal_L : dict, optional
+        Vessel key -> nominal volume [L], converted once for all steps.
+
+    Returns
+    -------
+    StepSafety
+    """
+    step = route.step(sp.id)
+    dosing = step.dosing
+    dosing_min = None if dosing is None else float(dosing.time.m_as(unit("min")))
+    b = sp.batch
+    if not sp.runs or b is None or b.batches == 0:
+        return StepSafety(dosed=None if dosing is None else dosing.material, dosing_time_min=dosing_min, runs=False)
+    n_lim_mol = b.per_batch(b.limiting_n_mol)
+    nu_lim = step.equation.coefficient(step.limiting)
+    T_K, p_Pa = _conditions(step)
+
+    evolved = []
+    for key, nu in _gases(route, step, "products"):
+        n_mol = gas_evolved_mol(nu, nu_lim, n_lim_mol)
+        V_L = ideal_gas_volume_L(n_mol, T_K, p_Pa)
+        evolved.append(GasEvolved(material=key, mol_per_batch=n_mol, volume_L_per_batch=V_L,
+                                  temperature_C=T_K - ZERO_CELSIUS_K, pressure_bar=p_Pa / 1e5,
+                                  rate_L_per_min=None if dosing_min is None else V_L / dosing_min,
+                                  vent=_vent(route.materials[key].hazards)))
+    taken = []
+    for key, _nu in _gases(route, step, "reactants"):
+        n_mol = sum(c.n_mol_batch for c in sp.charges if c.material == key and c.n_mol_batch is not None)
+        taken.append(GasTakenUp(material=key, mol_per_batch=n_mol, normal_volume_L_per_batch=normal_volume_L(n_mol),
+                                vent=_vent(route.materials[key].hazards)))
+
+    free_L = None
+    if b.vessel in route.equipment:
+        nominal = nominal_L[b.vessel] if nominal_L else float(route.equipment[b.vessel].volume.m_as(unit("L")))
+        free_L = nominal - b.batch_V_L
+
+    thermal = None
+    t = step.thermal
+    if t is not None:
+        m_kg = b.per_batch(b.reaction_m_kg)
+        dT = delta_T_ad_K(float(t.reaction_enthalpy.m_as(unit("kJ/mol"))), n_lim_mol, m_kg,
+                          float(t.heat_capacity.m_as(unit("kJ/(kg*K)"))))
+        Tp_K = float(t.process_temperature.m_as(unit("K"))) if t.process_temperature is not None else T_K
+        acc = (1.0 if t.accumulation is None else t.accumulation) if dosing is not None else None
+        mtsr = mtsr_K(Tp_K, dT, 1.0 if acc is None else acc)
+        mtt = None if t.max_technical_temperature is None else float(t.max_technical_temperature.m_as(unit("K")))
+        td24 = None if t.decomposition_temperature_24h is None else \
+            float(t.decomposition_temperature_24h.m_as(unit("K")))
+        thermal = ThermalScreen(
+            reaction_mass_kg_per_batch=m_kg, delta_T_ad_K=dT, process_temperature_C=Tp_K - ZERO_CELSIUS_K,
+            mtsr_C=mtsr - ZERO_CELSIUS_K, mtt_C=None if mtt is None else mtt - ZERO_CELSIUS_K,
+            td24_C=None if td24 is None else td24 - ZERO_CELSIUS_K, accumulation=acc,
+            criticality_class=criticality_class(mtsr, mtt, td24), severity=severity(dT))
+    return StepSafety(gas_evolved=tuple(evolved), gas_taken_up=tuple(taken), thermal=thermal,
+                      dosed=None if dosing is None else dosing.material, dosing_time_min=dosing_min,
+                      free_volume_L=free_L)
+
+
+def _warnings(route: "Route", sp: "StepPlan", s: StepSafety) -> list[Problem]:
+    """The heat and gas warnings of one step, located at the step."""
+    step = route.step(sp.id)
+    out = []
+
+    def warn(message: str, hint: str) -> None:
+        out.append(Problem(Severity.WARNING, f"step {sp.id}: {message}; {SCREENING}", location=step.location,
+                           step=sp.id, hint=hint))
+
+    t = s.thermal
+    if t is not None and t.criticality_class is not None and t.criticality_class >= 3:
+        warn(f"criticality class {t.criticality_class}: MTSR {t.mtsr_C:.4g} °C against MTT {t.mtt_C:.4g} °C "
+             f"and TD24 {t.td24_C:.4g} °C",
+             "measure the heat of reaction and the decomposition by calorimetry before scale-up")
+    if t is not None and t.severity == "high":
+        warn(f"adiabatic temperature rise {t.delta_T_ad_K:.4g} K per batch, severity high (200 K or more)",
+             "dose the reagent, dilute the batch or cool it, and confirm by calorimetry")
+    if s.free_volume_L is not None:
+        for g in s.gas_evolved:
+            if s.free_volume_L <= 0 or g.volume_L_per_batch >= GAS_FREE_VOLUME_RATIO * s.free_volume_L:
+                times = "" if s.free_volume_L <= 0 else f", {g.volume_L_per_batch / s.free_volume_L:.3g} times"
+                rate = "" if g.rate_L_per_min is None else \
+                    f"; mean rate {g.rate_L_per_min:.4g} L/min over the {s.dosing_time_min:.4g} min of dosing"
+                warn(f"the volume of {g.material} evolved, {g.volume_L_per_batch:.4g} L per batch, is "
+                     f"{GAS_FREE_VOLUME_RATIO:g} or more times the free volume of vessel {sp.vessel} "
+                     f"({max(s.free_volume_L, 0):.4g} L{times}){rate}",
+                     "size the vent and the off-gas line for it")
+    if s.dosed is None:
+        for g in s.gas_evolved:
+            warn(f"{g.volume_L_per_batch:.4g} L of {g.material} per batch is evolved with everything charged at "
+                 "once (no dosing): the gas comes as fast as the reaction runs",
+                 "dose a reagent ('dosing: {material: KEY, time: 2 h}') to control the gas")
+    return out
+
+
+def assess_safety(route: "Route", steps: "tuple[StepPlan, ...]"):
+    """Give every step its heat and gas of one batch; return the new steps and the warnings.
+
+    Returns
+    -------
+    tuple
+        (tuple of StepPlan with ``safety`` set, list of Problem): criticality class 3 or
+        above, severity high, gas evolved 10 or more times the vessel's free volume per
+        batch, and gas evolved in a step with no dosing.
+    """
+    from dataclasses import replace
+
+    out, warnings = [], []
+    nominal_L = {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
+    for sp in steps:
+        s = step_safety(route, sp, nominal_L)
+        if s.runs:
+            warnings.extend(_warnings(route, sp, s))
+        out.append(replace(sp, safety=s))
+    return tuple(out), warnings
