@@ -51,6 +51,26 @@ def _q(value: float | None, name: str) -> "pint.Quantity | None":
     return Q(value, unit(name))
 
 
+class _Quantity:
+    """A read-only attribute giving a float field of a frozen plan object as a pint Quantity.
+
+    ``field`` holds the magnitude in ``unit``; with ``per_batch`` the owner's
+    ``per_batch(total)`` divides it first.  None stays None.
+    """
+
+    def __init__(self, field: str, unit: str, doc: str, *, per_batch: bool = False) -> None:
+        self.field, self.unit, self.per_batch = field, unit, per_batch
+        self.__doc__ = f"{doc} (pint Quantity in {unit}; the magnitude is ``{field}``)"
+
+    def __get__(self, obj, owner=None):
+        if obj is None:
+            return self
+        value = getattr(obj, self.field)
+        if self.per_batch:
+            value = obj.per_batch(value)
+        return _q(value, self.unit)
+
+
 @dataclass(frozen=True)
 class ChargePlan:
     """One charge of one step, for the whole campaign and per batch.
@@ -113,20 +133,9 @@ class ChargePlan:
     batches: int = 1
     leaves: bool = False
 
-    @property
-    def mol(self) -> "pint.Quantity | None":
-        """Moles of the named compound [mol]; None without a molar mass."""
-        return _q(self.n_mol, "mol")
-
-    @property
-    def mass(self) -> "pint.Quantity":
-        """Mass as charged [kg]."""
-        return _q(self.m_kg, "kg")
-
-    @property
-    def volume(self) -> "pint.Quantity | None":
-        """Volume as charged [L]; None without a density."""
-        return _q(self.V_L, "L")
+    mol = _Quantity("n_mol", "mol", "Moles of the named compound [mol]; None without a molar mass.")
+    mass = _Quantity("m_kg", "kg", "Mass as charged [kg].")
+    volume = _Quantity("V_L", "L", "Volume as charged [L]; None without a density.")
 
     def _per(self, value: float | None) -> float | None:
         return None if value is None or self.batches == 0 else value / self.batches
@@ -146,20 +155,9 @@ class ChargePlan:
         """Volume per batch [L]; None without a density or without batches."""
         return self._per(self.V_L)
 
-    @property
-    def mol_per_batch(self) -> "pint.Quantity | None":
-        """``n_mol_batch`` as a Quantity [mol]."""
-        return _q(self.n_mol_batch, "mol")
-
-    @property
-    def mass_per_batch(self) -> "pint.Quantity | None":
-        """``m_kg_batch`` as a Quantity [kg]."""
-        return _q(self.m_kg_batch, "kg")
-
-    @property
-    def volume_per_batch(self) -> "pint.Quantity | None":
-        """``V_L_batch`` as a Quantity [L]."""
-        return _q(self.V_L_batch, "L")
+    mol_per_batch = _Quantity("n_mol_batch", "mol", "``n_mol_batch`` as a Quantity [mol].")
+    mass_per_batch = _Quantity("m_kg_batch", "kg", "``m_kg_batch`` as a Quantity [kg].")
+    volume_per_batch = _Quantity("V_L_batch", "L", "``V_L_batch`` as a Quantity [L].")
 
 
 @dataclass(frozen=True)
@@ -213,40 +211,13 @@ class BatchPlan:
         """Volume per batch [L] (0 without batches)."""
         return 0.0 if self.batches == 0 else self.step_V_L / self.batches
 
-    @property
-    def step_volume(self) -> "pint.Quantity":
-        """Largest volume in the vessel over the campaign [L]."""
-        return _q(self.step_V_L, "L")
-
-    @property
-    def batch_volume(self) -> "pint.Quantity":
-        """Volume per batch [L]."""
-        return _q(self.batch_V_L, "L")
-
-    @property
-    def limiting_mol(self) -> "pint.Quantity | None":
-        """Limiting reagent per batch [mol]."""
-        return _q(self.per_batch(self.limiting_n_mol), "mol")
-
-    @property
-    def limiting_mass(self) -> "pint.Quantity | None":
-        """Limiting reagent per batch, as charged [kg]."""
-        return _q(self.per_batch(self.limiting_m_kg), "kg")
-
-    @property
-    def product_mol(self) -> "pint.Quantity | None":
-        """Product per batch [mol]."""
-        return _q(self.per_batch(self.product_n_mol), "mol")
-
-    @property
-    def product_mass(self) -> "pint.Quantity | None":
-        """Product per batch, as isolated [kg]."""
-        return _q(self.per_batch(self.product_m_kg), "kg")
-
-    @property
-    def reaction_mass(self) -> "pint.Quantity | None":
-        """Reaction mass per batch [kg]."""
-        return _q(self.per_batch(self.reaction_m_kg), "kg")
+    step_volume = _Quantity("step_V_L", "L", "Largest volume in the vessel over the campaign [L].")
+    batch_volume = _Quantity("batch_V_L", "L", "Volume per batch [L].")
+    limiting_mol = _Quantity("limiting_n_mol", "mol", "Limiting reagent per batch [mol].", per_batch=True)
+    limiting_mass = _Quantity("limiting_m_kg", "kg", "Limiting reagent per batch, as charged [kg].", per_batch=True)
+    product_mol = _Quantity("product_n_mol", "mol", "Product per batch [mol].", per_batch=True)
+    product_mass = _Quantity("product_m_kg", "kg", "Product per batch, as isolated [kg].", per_batch=True)
+    reaction_mass = _Quantity("reaction_m_kg", "kg", "Reaction mass per batch [kg].", per_batch=True)
 
 
 @dataclass(frozen=True)
@@ -320,35 +291,12 @@ class StepPlan:
         """Number of batches [-] (0 for a step that does not run)."""
         return self.batch.batches
 
-    @property
-    def limiting_mol(self) -> "pint.Quantity":
-        """Moles of limiting reagent [mol]."""
-        return _q(self.limiting_n_mol, "mol")
-
-    @property
-    def limiting_mass(self) -> "pint.Quantity":
-        """Mass of limiting reagent as charged [kg]."""
-        return _q(self.limiting_m_kg, "kg")
-
-    @property
-    def product_mol(self) -> "pint.Quantity":
-        """Moles of product made [mol]."""
-        return _q(self.product_n_mol, "mol")
-
-    @property
-    def product_mass(self) -> "pint.Quantity":
-        """Mass of product as isolated [kg]."""
-        return _q(self.product_m_kg, "kg")
-
-    @property
-    def from_stock_mol(self) -> "pint.Quantity | None":
-        """Product taken from stock [mol], or None."""
-        return _q(self.stock_n_mol, "mol")
-
-    @property
-    def from_stock_mass(self) -> "pint.Quantity | None":
-        """Product taken from stock as isolated [kg], or None."""
-        return _q(self.stock_m_kg, "kg")
+    limiting_mol = _Quantity("limiting_n_mol", "mol", "Moles of limiting reagent [mol].")
+    limiting_mass = _Quantity("limiting_m_kg", "kg", "Mass of limiting reagent as charged [kg].")
+    product_mol = _Quantity("product_n_mol", "mol", "Moles of product made [mol].")
+    product_mass = _Quantity("product_m_kg", "kg", "Mass of product as isolated [kg].")
+    from_stock_mol = _Quantity("stock_n_mol", "mol", "Product taken from stock [mol], or None.")
+    from_stock_mass = _Quantity("stock_m_kg", "kg", "Product taken from stock as isolated [kg], or None.")
 
     @property
     def runs(self) -> bool:
@@ -415,20 +363,9 @@ class RawMaterialTotal:
         """What the packs to order hold, ``packs * pack`` [kg] or [L], or None."""
         return None if self.packs is None else _q(self.packs * self.pack_size, self.pack_unit)
 
-    @property
-    def mass(self) -> "pint.Quantity":
-        """Mass as supplied [kg]."""
-        return _q(self.m_kg, "kg")
-
-    @property
-    def volume(self) -> "pint.Quantity | None":
-        """Volume as supplied [L], or None."""
-        return _q(self.V_L, "L")
-
-    @property
-    def mol(self) -> "pint.Quantity | None":
-        """Moles of the compound [mol], or None."""
-        return _q(self.n_mol, "mol")
+    mass = _Quantity("m_kg", "kg", "Mass as supplied [kg].")
+    volume = _Quantity("V_L", "L", "Volume as supplied [L], or None.")
+    mol = _Quantity("n_mol", "mol", "Moles of the compound [mol], or None.")
 
 
 @dataclass(frozen=True)
@@ -557,15 +494,8 @@ class Plan:
     record: Any = None
     derivation: "Derivation | None" = None
 
-    @property
-    def target_mass(self) -> "pint.Quantity":
-        """Mass delivered, as isolated, including overage [kg]."""
-        return _q(self.target_kg, "kg")
-
-    @property
-    def target_mol(self) -> "pint.Quantity":
-        """Moles of pure target [mol]."""
-        return _q(self.target_n_mol, "mol")
+    target_mass = _Quantity("target_kg", "kg", "Mass delivered, as isolated, including overage [kg].")
+    target_mol = _Quantity("target_n_mol", "mol", "Moles of pure target [mol].")
 
     @functools.cached_property
     def _steps_by_id(self) -> Mapping[str, StepPlan]:
