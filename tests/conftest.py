@@ -12,9 +12,18 @@ from pathlib import Path
 
 import pytest
 
+#: The repository's root, and the test data (route files with their expected findings).
+ROOT = Path(__file__).resolve().parents[1]
+DATA = Path(__file__).parent / "data"
+
 #: A valid route (four steps, every charge basis, solutions, vessels); the base of the
 #: bad-route tests, which change one thing in it at a time.
-GOOD_ROUTE = Path(__file__).parent / "bad_routes" / "good.yaml"
+GOOD_ROUTE = Path(__file__).parent / "data" / "routes" / "good.yaml"
+
+
+def route_text(name: str) -> str:
+    """The text of the test route ``tests/data/routes/NAME``."""
+    return (DATA / "routes" / name).read_text(encoding="utf-8")
 
 
 def write_route(tmp_path: Path, text: str, name: str = "route.yaml") -> Path:
@@ -53,7 +62,7 @@ def good_text() -> str:
 def run_edited(tmp_path: Path, base: str, edits, *args: str, command: str = "check"):
     """Apply ``edits`` ((old, new) pairs) to the route text ``base``, write it, and run
     ``routeplan COMMAND ROUTE ARGS...``; return (text, path, result)."""
-    from test_load_bad_routes import change
+    from route_edits import change
 
     text = change(base, edits)
     path = write_route(tmp_path, text)

@@ -1,0 +1,242 @@
+"""The derivation of every charge: the plan's own core run on recording numbers, checked with pint.
+
+For every charge the lines of its derivation are multiplied (or added) out again with
+pint, from the constants up, following the references between lines: the result must be
+the plan's moles, mass and volume to 1e-12 relative, in the same dimension (units from
+NIST SP 811, pint's definitions).  This is a dimensional-analysis proof of every number.
+"""
+
+from __future__ import annotations
+
+import re
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from routeplan.plan.planner import plan_route
+from routeplan.route.load import load_route, load_route_text
+from routeplan.units import Q
+
+ROOT = Path(__file__).resolve().parents[2]
+DEMO = sorted((ROOT / "demo_routes").glob("hx17-*.yaml"))
+GOOD = ROOT / "tests" / "data" / "routes" / "good.yaml"
+sys.path.insert(0, str(ROOT / "bench"))
+
+
+def evaluate(rows):
+    """Each line of a derivation (JSON rows) recomputed with pint from its factors and references."""
+    done = []
+    for line in rows:
+        acc = None
+        for f in line["factors"]:
+            q = done[f["ref"]] if f["ref"] is not None else Q(f["value"], f["unit"] or "")
+            if f["ref"] is not None:
+                # a reference carries the earlier line's value: it must be that line's result
+                assert q.m_as(f["unit"] or "") == pytest.approx(f["value"], rel=1e-12)
+            op = f["op"]
+            acc = (q if op == "start" else acc * q if op == "x" else acc / q if op == "/"
+                   else acc + q if op == "+" else acc - q)
+        assert acc.m_as(line["unit"]) == pytest.approx(line["value"], rel=1e-12), line["what"]
+        done.append(acc)
+    return done
+
+
+def _results(rows):
+    """Recomputed results by (what, unit) of the last line of each kind."""
+    values = evaluate(rows)
+    return {(r["what"], r["unit"]): v for r, v in zip(rows, values)}
+
+
+def check_plan(plan):
+    from routeplan.views.derivation_text import charge_derivations
+
+    n = 0
+    for sp in plan.steps:
+        for c, rows in zip(sp.charges, charge_derivations(plan, sp.id)):
+            got = _results(rows)
+            what = f"{c.material} charged to {sp.id}"
+            for unit, dim, plan_q in (("mol", "[substance]", c.mol), ("kg", "[mass]", c.mass),
+                                      ("L", "[volume]", c.volume)):
+                if plan_q is None or (unit == "L" and c.carried_from is not None):
+                    continue  # a carried volume is the telescoped mixture, sized with the batches
+                q = got[(what, unit)]
+                assert q.check(dim), (what, q)
+                assert q.m_as(unit) == pytest.approx(plan_q.m_as(unit), rel=1e-12, abs=1e-300), (what, unit)
+                n += 1
+    return n
+
+
+def _routes():
+    from plan_bench import linear_route
+    from test_campaign import ROUTE as CAMPAIGN
+    from test_plan_worked import CONVERGENT, SHARED, TWO_STEP
+
+    out = [(p.stem, load_route(p)) for p in DEMO] + [("good", load_route(GOOD))]
+    for name, text in (("campaign", CAMPAIGN), ("two_step", TWO_STEP), ("convergent", CONVERGENT),
+                       ("shared", SHARED), ("linear12", linear_route(12))):
+        out.append((name, load_route_text(text, f"{name}.yaml")))
+    return out
+
+
+ROUTES = _routes()
+
+
+@pytest.mark.parametrize("name,route", ROUTES, ids=[n for n, _ in ROUTES])
+@pytest.mark.parametrize("yields", ["expected", "low"])
+def test_every_charge_multiplies_out_to_the_plan(name, route, yields):
+    plan = plan_route(route, yields=yields, explain=True)
+    assert check_plan(plan) > 0
+
+
+def test_with_intermediates_on_the_shelf_the_derivation_subtracts_them():
+    route = load_route(ROOT / "demo_routes" / "hx17-linear.yaml")
+    plan = plan_route(route, stock=ROOT / "demo_routes" / "stock.yaml", explain=True)
+    assert check_plan(plan) > 0
+
+
+def test_doubling_the_target_doubles_every_derived_charge():
+    # law: the walk is linear in the target
+    route = load_route(GOOD)
+    from routeplan.views.derivation_text import charge_derivations
+
+    one = plan_route(route, Q(10, "kg"), explain=True)
+    two = plan_route(route, Q(20, "kg"), explain=True)
+    for sp in one.steps:
+        for a, b in zip(charge_derivations(one, sp.id), charge_derivations(two, sp.id)):
+            assert b[-1]["value"] == pytest.approx(2 * a[-1]["value"], rel=1e-12)
+
+
+def test_a_sum_shows_both_branches():
+    # an intermediate charged in two steps: the demand on its maker is the sum of both charges
+    from test_plan_worked import SHARED
+
+    route = load_route_text(SHARED, "shared.yaml")
+    plan = plan_route(route, explain=True)
+    d = plan.derivation
+    sums = [line for line in d.lines if any(f.op == "+" for f in line.factors)]
+    assert sums, "no sum line"
+    for line in sums:
+        assert all(f.ref is not None for f in line.factors)
+        assert len({f.what for f in line.factors}) == len(line.factors) >= 2
+
+
+# OpenStax, Chemistry 2e (Flowers et al., Rice University, 2019), chapter 4, Example 4.6
+# (numbers from memory): the mass of NaOH needed to make 16 g of Mg(OH)2 by
+# MgCl2 + 2 NaOH -> Mg(OH)2 + 2 NaCl is 22 g (16 g / 58.32 g/mol x 2 x 40.00 g/mol).
+TEXTBOOK = """
+route: milk of magnesia
+target: {material: MgOH2, amount: 16 g}
+materials:
+  MgCl2: {formula: MgCl2}
+  NaOH: {formula: NaOH}
+  MgOH2: {formula: Mg(OH)2}
+  NaCl: {formula: NaCl}
+steps:
+  - id: S1
+    equation: MgCl2 + 2 NaOH -> MgOH2 + 2 NaCl
+    yield: 100 %
+    charges:
+      - {material: MgCl2}
+      - {material: NaOH}
+"""
+
+
+def test_textbook_chain_mass_to_moles_to_mass():
+    from routeplan.views.derivation_text import charge_text
+
+    plan = plan_route(load_route_text(TEXTBOOK, "magnesia.yaml"), explain=True)
+    d = plan.derivation
+    lines = d.charge("S1", 1)
+    # the chain: 16 g / 58.32 g/mol = mol Mg(OH)2; / 1 (yield) -> MgCl2; x 2 (coefficient ratio) -> NaOH;
+    # x 40.00 g/mol -> mass
+    first = lines[0].factors
+    assert first[0].value == pytest.approx(0.016) and first[0].unit == "kg"
+    assert any(f.unit == "g/mol" and f.value == pytest.approx(58.32, abs=0.01) for f in first)
+    assert lines[0].value == pytest.approx(16 / 58.32, rel=1e-3)
+    assert any(f.value == 2 for line in lines for f in line.factors)  # stoichiometric ratio NaOH : MgCl2
+    last = lines[-1]
+    assert last.unit == "kg" and round(last.value * 1000) == 22  # 22 g NaOH, the example's answer
+    text = charge_text(plan, "S1", "NaOH")
+    assert "NaOH, CIAAW 2021" in text[-2] and "g/mol" in text[-2]
+    assert text[-1] == "= 548.7 mmol, 21.95 g NaOH charged to S1, as in the plan"  # 22 g to 2 figures
+
+
+def _cli(*args):
+    return subprocess.run([sys.executable, "-m", "routeplan", *args], capture_output=True, text=True, cwd=ROOT)
+
+
+@pytest.mark.parametrize("args,expect", [
+    (["S9", "NaOH50"], "S5"),
+    (["S3", "NaOH5"], "NaOH50"),
+    (["S1", "NaOH50"], "aminophenol"),
+    (["raw", "ester"], "intermediate"),
+])
+def test_bad_input_names_the_nearest_valid_names(args, expect):
+    r = _cli("explain", "demo_routes/hx17-linear.yaml", *args)
+    assert r.returncode == 2, r.stderr
+    assert "Traceback" not in r.stderr and expect in r.stderr, r.stderr
+
+
+def test_cli_final_number_is_the_plans_printed_number():
+    from routeplan.export.terminal import fmt
+    from routeplan.views.tables import column_unit, step_charge_rows
+
+    route = load_route(ROOT / "demo_routes" / "hx17-linear.yaml")
+    plan = plan_route(route)
+    for sid, material in (("S3", "NaOH50"), ("S2", "acetone"), ("S4", "HCl6M"), ("S1", "aminophenol")):
+        sp = plan.step(sid)
+        c = next(x for x in sp.charges if x.material == material)
+        rows = step_charge_rows(sp)
+        kind, col, q = ("volume", "volume_L", c.volume) if c.volume is not None else ("mass", "mass_kg", c.mass)
+        name, factor = column_unit([r[col] for r in rows], kind)
+        printed = fmt(q.m_as("L" if kind == "volume" else "kg") / factor)
+        table = _cli("plan", "demo_routes/hx17-linear.yaml").stdout
+        assert re.search(rf"\b{re.escape(printed)}\b", table)
+        out = _cli("explain", "demo_routes/hx17-linear.yaml", sid, material).stdout.splitlines()
+        assert out[-1].startswith("CAUTION")
+        assert out[-2].startswith("= ") and f" {printed} {name}" in out[-2], out[-2]
+        # and the derivation line of that amount ends in the same printed number
+        assert any(line.endswith(f"= {printed} {name} {material} charged to {sid}") for line in out), out
+
+
+def test_workbook_derivation_sheet_holds_every_factor(tmp_path):
+    import openpyxl
+
+    from routeplan.export.workbook import write_workbook
+    from routeplan.views.derivation_text import plan_derivation_rows
+
+    plan = plan_route(load_route(GOOD), explain=True)
+    path = write_workbook(plan, tmp_path / "d.xlsx")
+    ws = openpyxl.load_workbook(path)["Derivation"]
+    rows = plan_derivation_rows(plan)
+    cells = [[c.value for c in r] for r in ws.iter_rows(min_row=6)]
+    assert len(cells) == len(rows)
+    for got, want in zip(cells, rows):
+        assert got[0] == want["step"] and got[5] == pytest.approx(want["value"], rel=1e-12)
+    # without --explain there is no such sheet
+    assert "Derivation" not in openpyxl.load_workbook(write_workbook(plan_route(load_route(GOOD)),
+                                                                     tmp_path / "e.xlsx")).sheetnames
+
+
+def test_plan_json_explain_through_the_cli(tmp_path):
+    import json
+
+    r = _cli("plan", str(GOOD), "--json", str(tmp_path / "p.json"), "--explain", "-q")
+    assert r.returncode == 0, r.stderr
+    data = json.loads((tmp_path / "p.json").read_text())
+    for step in data["steps"]:
+        for c in step["charges"]:
+            got = evaluate(c["derivation"])[-1]
+            assert got.m_as(c["derivation"][-1]["unit"]) == pytest.approx(c["derivation"][-1]["value"], rel=1e-12)
+    r = _cli("plan", str(GOOD), "--json", str(tmp_path / "q.json"), "-q")
+    assert "derivation" not in (tmp_path / "q.json").read_text()
+
+
+@pytest.mark.parametrize("record_yields", ["expected", "actual"])
+def test_the_rest_of_a_recorded_campaign_multiplies_out(record_yields):
+    route = load_route(ROOT / "demo_routes" / "hx17-linear.yaml")
+    plan = plan_route(route, record=ROOT / "demo_routes" / "record.yaml", record_yields=record_yields,
+                      explain=True)
+    assert check_plan(plan) > 0
