@@ -15,8 +15,9 @@ Data only: sentences are :mod:`routeplan.views.derivation_text`'s.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Mapping
+
+from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -109,7 +110,7 @@ class Traced:
         return f"Traced({self.q!r}, {self.node[0]})"
 
 
-@dataclass(frozen=True)
+@frozen
 class Factor:
     """One factor of a line.
 
@@ -138,7 +139,7 @@ class Factor:
     ref: int | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Line:
     """One line: factors multiplied (or added) out to ``value`` [``unit``], called ``what``."""
 
@@ -205,7 +206,7 @@ def _factory(route: "Route"):
     return quantity
 
 
-@dataclass(frozen=True)
+@frozen
 class Derivation:
     """Every named amount of a plan with the lines that derive it.
 

@@ -18,9 +18,11 @@ Words used throughout
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 from types import MappingProxyType
 from typing import TYPE_CHECKING, Any, Mapping
+
+from routeplan.frozen import frozen
 
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -375,7 +377,7 @@ def _frozen(d: Mapping) -> Mapping:
     return MappingProxyType(dict(d))
 
 
-@dataclass(frozen=True, eq=False)
+@frozen(eq=False)
 class Metrics:
     """The metrics of one plan; every ratio is per kg of target as delivered.
 

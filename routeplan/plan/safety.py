@@ -29,10 +29,10 @@ from __future__ import annotations
 
 import functools
 import re
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 from routeplan.errors import Problem
+from routeplan.frozen import frozen
 from routeplan.route.checks_safety import DEFAULT_PRESSURE_BAR, DEFAULT_TEMPERATURE_C
 from routeplan.units import unit
 from routeplan.vocab import Severity
@@ -91,7 +91,7 @@ _VENT_WORDS = re.compile(r"\b(toxic|flammable)\b", re.I)
 _NOT_VENT = re.compile(r"\bnon-?\s*(toxic|flammable)\b|\bnot\s+(toxic|flammable)\b", re.I)
 
 
-@dataclass(frozen=True)
+@frozen
 class GasEvolved:
     """A gas given off by one batch of a step.
 
@@ -120,7 +120,7 @@ class GasEvolved:
     vent: tuple[str, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class GasTakenUp:
     """A gas taken up by one batch of a step (a hydrogenation, an oxidation).
 
@@ -142,7 +142,7 @@ class GasTakenUp:
     vent: tuple[str, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class ThermalScreen:
     """The heat of one batch, by Stoessel's method.
 
@@ -177,7 +177,7 @@ class ThermalScreen:
     severity: str
 
 
-@dataclass(frozen=True)
+@frozen
 class StepSafety:
     """Heat and gas of one batch of one step.
 

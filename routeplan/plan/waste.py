@@ -30,10 +30,11 @@ Plain floats in fixed units: masses [kg], amounts [mol].
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Problem
+from routeplan.frozen import frozen
 from routeplan.route.model import STREAMS
 from routeplan.units import unit
 
@@ -102,7 +103,7 @@ def stream_of(material: "Material") -> str | None:
     return None
 
 
-@dataclass(frozen=True)
+@frozen
 class ByProduct:
     """A by-product of a step from its equation.
 
@@ -124,7 +125,7 @@ class ByProduct:
     gas: bool = False
 
 
-@dataclass(frozen=True)
+@frozen
 class StreamMasses:
     """Masses of waste by stream [kg].
 
@@ -156,7 +157,7 @@ class StreamMasses:
                             self.halogenated_kg + other.halogenated_kg, self.residue_kg + other.residue_kg)
 
 
-@dataclass(frozen=True)
+@frozen
 class StepWaste:
     """What leaves one step besides its product.
 
@@ -206,7 +207,7 @@ class StepWaste:
         return sum(b.mass_kg for b in self.by_products if b.mass_kg is not None)
 
 
-@dataclass(frozen=True)
+@frozen
 class Waste:
     """Waste of the whole campaign.
 

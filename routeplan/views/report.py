@@ -9,9 +9,9 @@ writer can put it in a ``data-value`` attribute and a test can read the report b
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
+from routeplan.frozen import frozen
 from routeplan.views.tables import (charge_label, column_unit, display_quantity, fmt, raw_material_rows,
                                     step_charge_rows)
 
@@ -23,7 +23,7 @@ __all__ = ["Cell", "Table", "Section", "StepSection", "ChartData", "Report", "pl
 
 
 
-@dataclass(frozen=True)
+@frozen
 class Cell:
     """A table cell: text shown, and the number behind it in the column's base unit."""
 
@@ -32,7 +32,7 @@ class Cell:
     numeric: bool = False
 
 
-@dataclass(frozen=True)
+@frozen
 class Table:
     """A table: column keys, headings (with units) and rows of cells; ``keys_by_row``
     names each row where rows are facts (``p10``, ``buy:water``)."""
@@ -44,7 +44,7 @@ class Table:
     keys_by_row: tuple[str, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class Section:
     """A section from an optional part of the Plan (uncertainty, safety, record, ...).
 
@@ -66,7 +66,7 @@ class Section:
     facts: Table | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class StepSection:
     """One step of the report.
 
@@ -102,7 +102,7 @@ class StepSection:
     extra: tuple[Section, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class ChartData:
     """Series for the charts, every value in the unit named.
 
@@ -148,7 +148,7 @@ class ChartData:
     timeline: dict | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Report:
     """Everything the report of one plan shows."""
 
