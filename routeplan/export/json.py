@@ -34,6 +34,7 @@ def _charge(c, batches: int) -> dict[str, Any]:
         "basis_value": c.basis_value,
         "intermediate": c.intermediate,
         "carried_from": c.carried_from,
+        "leaves": c.leaves,
         "per_batch": {
             "mol": _per(magnitude(c.mol, "mol"), batches),
             "mass_kg": _per(magnitude(c.mass, "kg"), batches),
@@ -87,6 +88,8 @@ def _step(sp) -> dict[str, Any]:
         "batches": batches,
         "batch_volume_L": None if b is None else magnitude(b.batch_volume, "L"),
         "fill_fraction": None if b is None else b.fill_fraction,
+        "transfer_volume_L": None if b is None else magnitude(b.transfer_volume, "L"),
+        "transfer_mass_kg": None if b is None else magnitude(b.transfer_mass, "kg"),
         "charges": [_charge(c, batches) for c in sp.charges],
         "from_stock_mol": magnitude(sp.from_stock_mol, "mol"),
         "from_stock_kg": magnitude(sp.from_stock_mass, "kg"),

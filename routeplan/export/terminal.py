@@ -133,7 +133,9 @@ def _step_table(sp, route, new_table=Table) -> Table:
     return t
 
 
-def _step_footer(sp) -> str:
+def _step_footer(plan, sp) -> str:
+    from routeplan.views.transfer_text import transfer_text
+
     pm = sp.product_mass.m_as("kg")
     pu, pf = column_unit([pm], "mass")
     text = f"  makes {fmt(sp.product_mol.m_as('mol'))} mol {sp.product} ({fmt(pm / pf)} {pu}"
@@ -145,6 +147,9 @@ def _step_footer(sp) -> str:
     if b is not None:
         for note in b.notes:
             text += f"\n  note: {note}"
+    transfer = transfer_text(plan, sp)
+    if transfer:
+        text += f"\n  {transfer}"
     return text
 
 
@@ -237,7 +242,8 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
               + (f", planned at the steps' [bold]{plan.yield_basis}[/bold] yields" if plan.yield_basis != "expected"
                  else ""))
     con("[dim]n: amount of the compound, m: mass and V: volume as charged; "
-              "(S1) after a material: made in step S1; in solution: V is the reaction mixture carried in[/dim]")
+              "(S1) after a material: made in step S1; in solution: V is the reaction mixture carried in; "
+              "(separated): run off right after it is charged, not carried on[/dim]")
     con()
     for sp in plan.steps:
         title = f"{sp.id} · {sp.name}" if sp.name and sp.name != sp.id else sp.id
@@ -245,7 +251,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
                   + ("   [italic]telescoped: the product goes on in solution[/italic]" if not sp.isolated else ""))
         if sp.runs:
             con(_step_table(sp, plan.route, con.table))
-            con(escape(_step_footer(sp)))
+            con(escape(_step_footer(plan, sp)))
             for line in step_safety_lines(sp):
                 con(escape("  " + line))
         stock_line = _stock_line(sp)

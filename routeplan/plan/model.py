@@ -108,13 +108,15 @@ class ChargePlan:
         True when the line was added by the loader (reactant with no charge line).
     carried_from : str or None
         Id of the telescoped step whose reaction mixture brings this intermediate in
-        solution; ``V_L`` is then the volume of mixture carried in [L] and ``m_kg`` the
-        mass of the compound in it [kg] (the mixture is not weighed).
+        solution; ``V_L`` is then the volume of mixture carried in [L] (what stays in
+        that step's vessel at the transfer, :func:`routeplan.plan.core.contents`) and
+        ``m_kg`` the mass of the compound in it [kg] (the mixture is not weighed).
     batches : int
         Batches of the step [-] (0 for a step that does not run).
     leaves : bool
-        True for a charge that leaves the vessel before the product goes on (a wash
-        separated and discarded), so it is not carried into the next step.
+        True for a work-up charge that leaves the vessel right after it is charged (a
+        wash separated and discarded, a filter aid filtered off; ``leaves: true``), so
+        it is not carried into the next step: it is the step's waste.
     """
 
     order: int
@@ -169,7 +171,8 @@ class BatchPlan:
     batches : int
         Number of batches [-] (0 for a step that does not run).
     step_V_L : float
-        Largest volume in the vessel over the whole campaign [L].
+        Largest volume in the vessel over the whole campaign [L]: the charges in order
+        of addition, a charge that leaves taken out right after it is charged.
     fill_fraction : float or None
         Volume per batch over the vessel's nominal volume [-]; None without a vessel.
     vessel : str or None
@@ -183,7 +186,11 @@ class BatchPlan:
     reaction_m_kg : float
         Mass that takes part in the reaction over the campaign [kg]: every charge
         except ``role: workup``, a telescoped mixture at the mass carried in
-        (:func:`routeplan.plan.campaign.reaction_masses`).
+        (:func:`routeplan.plan.core.contents`).
+    transfer_V_L, transfer_m_kg : float or None
+        For a telescoped step, the mixture that goes on to the next step over the
+        campaign: its volume [L] (None where no charge has one) and mass [kg], the
+        charges that stay less the gas evolved; None for an isolated step.
 
     The per-batch attributes (``batch_volume``, ``limiting_mol``, ``limiting_mass``,
     ``product_mol``, ``product_mass``, ``reaction_mass``) are those totals divided by
@@ -201,10 +208,12 @@ class BatchPlan:
     product_n_mol: float = 0.0
     product_m_kg: float = 0.0
     reaction_m_kg: float = 0.0
+    transfer_V_L: float | None = None
+    transfer_m_kg: float | None = None
 
-    def per_batch(self, total: float) -> float | None:
-        """``total`` divided by the batches, or None for a step without batches."""
-        return None if self.batches == 0 else total / self.batches
+    def per_batch(self, total: float | None) -> float | None:
+        """``total`` divided by the batches, or None for a step without batches (or for None)."""
+        return None if total is None or self.batches == 0 else total / self.batches
 
     @property
     def batch_V_L(self) -> float:
@@ -218,6 +227,8 @@ class BatchPlan:
     product_mol = _Quantity("product_n_mol", "mol", "Product per batch [mol].", per_batch=True)
     product_mass = _Quantity("product_m_kg", "kg", "Product per batch, as isolated [kg].", per_batch=True)
     reaction_mass = _Quantity("reaction_m_kg", "kg", "Reaction mass per batch [kg].", per_batch=True)
+    transfer_volume = _Quantity("transfer_V_L", "L", "Mixture that goes on, per batch [L].", per_batch=True)
+    transfer_mass = _Quantity("transfer_m_kg", "kg", "Mixture that goes on, per batch [kg].", per_batch=True)
 
 
 @dataclass(frozen=True)

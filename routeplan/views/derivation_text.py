@@ -95,8 +95,8 @@ def charge_text(plan: "Plan", step: str, material: str) -> list[str]:
             amounts.append(f"{_num(q.m_as(unit) / factor, 4)} {name}")
     out.append(f"= {', '.join(amounts)} {material} charged to {step}, as in the plan")
     if c.carried_from is not None:
-        out.append(f"(the volume in the plan is the whole mixture carried in from {c.carried_from}, "
-                   f"sized with the batches, not this line's volume)")
+        out.append(f"(the volume is that of {c.carried_from}'s mixture carried in: every charge of "
+                   f"{c.carried_from} that stays to the transfer, a charge that leaves before it not counted)")
     return out
 
 

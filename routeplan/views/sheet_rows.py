@@ -153,9 +153,12 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
     volume per batch at 0 degC and 101.325 kPa [L], the figure it is charged by, and
     ``mass_kg`` its mass, not weighed.  ``tolerance`` [-] is how far the mass weighed in
     may be from the mass to charge, either way (the line's own, else the route's
-    ``charge_tolerance``).
+    ``charge_tolerance``).  ``leaves_note`` says that a charge leaves right after it is
+    charged (None otherwise); ``transfer`` how a mixture carried in is transferred
+    (:func:`routeplan.views.transfer_text.carried_note`; None for other lines).
     """
     from routeplan.views.safety_text import gas_charges
+    from routeplan.views.transfer_text import LEAVES_NOTE, carried_note
 
     route = plan.route
     step = route.step(sp.id)
@@ -200,6 +203,8 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
             "made_in": c.carried_from or (None if made is None else made.id),
             "in_solution": c.carried_from is not None,
             "intermediate": c.intermediate,
+            "leaves_note": LEAVES_NOTE if c.leaves else None,
+            "transfer": None if c.carried_from is None else carried_note(plan, c.carried_from),
         })
         _prefill(plan, rows[-1])
     return rows
