@@ -193,13 +193,17 @@ def _print_purchases(con, plan) -> None:
     from routeplan.views.purchase_rows import not_bought_note, purchase_rows
 
     rows = purchase_rows(plan)
-    t = con.table(title="[bold]To order, whole campaign[/bold]", box=box.SIMPLE_HEAD, title_justify="left",
+    stock = plan.stock is not None
+    title = "To order, whole campaign" + (", less the stock on hand" if stock else "")
+    t = con.table(title=f"[bold]{title}[/bold]", box=box.SIMPLE_HEAD, title_justify="left",
                   pad_edge=False)
-    for head, just in (("material", "left"), ("need [kg]", "right"), ("need [L]", "right"), ("pack", "right"),
-                       ("packs", "right"), ("ordered", "right")):
+    extra = (("from stock [kg]", "right"), ("to buy [kg]", "right"), ("to buy [L]", "right")) if stock else ()
+    for head, just in (("material", "left"), ("need [kg]", "right"), ("need [L]", "right"), *extra,
+                       ("pack", "right"), ("packs", "right"), ("ordered", "right")):
         t.add_column(escape(head), justify=just)
     for r in rows:
-        t.add_row(escape(r["material"]), fmt(r["need_kg"]), fmt(r["need_L"]), escape(r["pack"] or "–"),
+        bought = (fmt(r["stock_kg"]), fmt(r["buy_kg"]), fmt(r["buy_L"])) if stock else ()
+        t.add_row(escape(r["material"]), fmt(r["need_kg"]), fmt(r["need_L"]), *bought, escape(r["pack"] or "–"),
                   "–" if r["packs"] is None else str(r["packs"]), escape(r["ordered"] or "–"))
     con(t)
     note = not_bought_note(plan)

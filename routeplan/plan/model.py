@@ -347,9 +347,13 @@ class RawMaterialTotal:
     pack_unit : str or None
         ``"kg"`` for a pack by mass, ``"L"`` for one by volume.
     packs : int or None
-        Fewest whole packs covering ``m_kg`` (a pack by mass) or ``V_L`` (a pack by
-        volume) [-] (:func:`routeplan.plan.purchase.packs_to_order`); None without a
-        pack or when not bought.  ``ordered`` is ``packs * pack`` as a Quantity.
+        Fewest whole packs covering what is left to buy, ``buy_m_kg`` (a pack by mass)
+        or ``buy_V_L`` (a pack by volume) [-]
+        (:func:`routeplan.plan.purchase.packs_to_order`); None without a pack or when
+        not bought.  ``ordered`` is ``packs * pack`` as a Quantity.
+    stock_m_kg : float or None
+        What the stock on hand gives of it, as supplied [kg]: ``min(on hand, m_kg)``;
+        None without a stock list or when the list does not name it.
     """
 
     material: str
@@ -363,6 +367,19 @@ class RawMaterialTotal:
     pack_size: float | None = None
     pack_unit: str | None = None
     packs: int | None = None
+    stock_m_kg: float | None = None
+
+    @property
+    def buy_m_kg(self) -> float:
+        """What is left to buy after the stock, as supplied [kg]: ``m_kg - stock_m_kg``."""
+        return self.m_kg if self.stock_m_kg is None else self.m_kg - self.stock_m_kg
+
+    @property
+    def buy_V_L(self) -> float | None:
+        """The same as a volume [L] (``V_L`` in proportion); None without a density."""
+        if self.V_L is None or self.stock_m_kg is None:
+            return self.V_L
+        return self.V_L * (self.buy_m_kg / self.m_kg) if self.m_kg > 0 else 0.0
 
     @property
     def pack(self) -> "pint.Quantity | None":
@@ -377,6 +394,8 @@ class RawMaterialTotal:
     mass = _Quantity("m_kg", "kg", "Mass as supplied [kg].")
     volume = _Quantity("V_L", "L", "Volume as supplied [L], or None.")
     mol = _Quantity("n_mol", "mol", "Moles of the compound [mol], or None.")
+    buy_mass = _Quantity("buy_m_kg", "kg", "What is left to buy after the stock [kg].")
+    buy_volume = _Quantity("buy_V_L", "L", "What is left to buy after the stock [L], or None.")
 
 
 @dataclass(frozen=True)

@@ -473,9 +473,10 @@ def stock_rows(plan: "Plan") -> list[dict[str, Any]]:
 
     ``need_kg``: mass for the requested target [kg]; ``on_hand_kg``: mass in stock [kg]
     (None when the stock list does not name it); ``to_buy_kg``: the plan's mass to buy
-    [kg] (0 when the stock covers the need); ``status``: ``not in stock``, ``in stock,
-    enough`` or ``in stock, short``, with ``; limits the target`` for the material that
-    limits the largest target.
+    [kg] (0 when the stock covers the need; None for a material marked ``bought:
+    false``); ``status``: ``not in stock``, ``in stock, enough``, ``in stock, short`` or
+    ``not bought``, with ``; limits the target`` for the material that limits the largest
+    target.
     """
     s = plan.stock
     if s is None:
@@ -485,7 +486,9 @@ def stock_rows(plan: "Plan") -> list[dict[str, Any]]:
     for r in plan.raw_materials:
         have = s.on_hand.get(r.material)
         to_buy = buy.get(r.material, 0.0)
-        if have is None:
+        if not r.bought:
+            to_buy, status = None, "not bought (the route marks it 'bought: false')"
+        elif have is None:
             status = "not in stock"
         else:
             status = "in stock, short" if to_buy > 0 else "in stock, enough"
@@ -509,7 +512,7 @@ def stock_summary_rows(plan: "Plan") -> list[dict[str, Any]]:
     if s is None:
         return []
     needed = [r.material for r in plan.raw_materials]
-    missing = [k for k in needed if k not in s.on_hand]
+    missing = [r.material for r in plan.raw_materials if r.material not in s.on_hand and r.bought]
     unused, idle = stock_not_needed(plan)
     rows = []
     if s.source:
