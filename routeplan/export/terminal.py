@@ -133,7 +133,9 @@ def _step_table(sp, route, new_table=Table) -> Table:
     return t
 
 
-def _step_footer(sp) -> str:
+def _step_footer(plan, sp) -> str:
+    from routeplan.views.transfer_text import transfer_text
+
     pm = sp.product_mass.m_as("kg")
     pu, pf = column_unit([pm], "mass")
     text = f"  makes {fmt(sp.product_mol.m_as('mol'))} mol {sp.product} ({fmt(pm / pf)} {pu}"
@@ -145,6 +147,9 @@ def _step_footer(sp) -> str:
     if b is not None:
         for note in b.notes:
             text += f"\n  note: {note}"
+    transfer = transfer_text(plan, sp)
+    if transfer:
+        text += f"\n  {transfer}"
     return text
 
 
@@ -188,13 +193,17 @@ def _print_purchases(con, plan) -> None:
     from routeplan.views.purchase_rows import not_bought_note, purchase_rows
 
     rows = purchase_rows(plan)
-    t = con.table(title="[bold]To order, whole campaign[/bold]", box=box.SIMPLE_HEAD, title_justify="left",
+    stock = plan.stock is not None
+    title = "To order, whole campaign" + (", less the stock on hand" if stock else "")
+    t = con.table(title=f"[bold]{title}[/bold]", box=box.SIMPLE_HEAD, title_justify="left",
                   pad_edge=False)
-    for head, just in (("material", "left"), ("need [kg]", "right"), ("need [L]", "right"), ("pack", "right"),
-                       ("packs", "right"), ("ordered", "right")):
+    extra = (("from stock [kg]", "right"), ("to buy [kg]", "right"), ("to buy [L]", "right")) if stock else ()
+    for head, just in (("material", "left"), ("need [kg]", "right"), ("need [L]", "right"), *extra,
+                       ("pack", "right"), ("packs", "right"), ("ordered", "right")):
         t.add_column(escape(head), justify=just)
     for r in rows:
-        t.add_row(escape(r["material"]), fmt(r["need_kg"]), fmt(r["need_L"]), escape(r["pack"] or "–"),
+        bought = (fmt(r["stock_kg"]), fmt(r["buy_kg"]), fmt(r["buy_L"])) if stock else ()
+        t.add_row(escape(r["material"]), fmt(r["need_kg"]), fmt(r["need_L"]), *bought, escape(r["pack"] or "–"),
                   "–" if r["packs"] is None else str(r["packs"]), escape(r["ordered"] or "–"))
     con(t)
     note = not_bought_note(plan)
@@ -237,7 +246,8 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
               + (f", planned at the steps' [bold]{plan.yield_basis}[/bold] yields" if plan.yield_basis != "expected"
                  else ""))
     con("[dim]n: amount of the compound, m: mass and V: volume as charged; "
-              "(S1) after a material: made in step S1; in solution: V is the reaction mixture carried in[/dim]")
+              "(S1) after a material: made in step S1; in solution: V is the reaction mixture carried in; "
+              "(separated): run off right after it is charged, not carried on[/dim]")
     con()
     for sp in plan.steps:
         title = f"{sp.id} · {sp.name}" if sp.name and sp.name != sp.id else sp.id
@@ -245,7 +255,7 @@ def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = 
                   + ("   [italic]telescoped: the product goes on in solution[/italic]" if not sp.isolated else ""))
         if sp.runs:
             con(_step_table(sp, plan.route, con.table))
-            con(escape(_step_footer(sp)))
+            con(escape(_step_footer(plan, sp)))
             for line in step_safety_lines(sp):
                 con(escape("  " + line))
         stock_line = _stock_line(sp)

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from routeplan.views.purchase_rows import not_bought_note
 from routeplan.views.sheet_rows import stock_not_needed
 from routeplan.views.tables import display_quantity
 
@@ -14,7 +15,7 @@ def stock_lines(plan) -> list[str]:
     lines = [""]
     tgt = plan.target_material
     in_stock = set(s.on_hand)
-    missing = [r.material for r in plan.raw_materials if r.material not in in_stock]
+    missing = [r.material for r in plan.raw_materials if r.material not in in_stock and r.bought]
     overage = plan.route.target.overage
     if s.max_target is None:
         lines.append("Stock: no raw material this plan needs is in the stock list.")
@@ -49,6 +50,9 @@ def stock_lines(plan) -> list[str]:
             lines.append(f"  {key}: {display_quantity(mass.m_as('kg'), 'mass')}")
     else:
         lines.append("Nothing to buy: the stock covers the requested target.")
+    note = not_bought_note(plan)
+    if note:
+        lines.append("  " + note)
     return lines
 
 

@@ -6,9 +6,9 @@ has its columns declared once, with the heading and unit shown to people.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
+from routeplan.frozen import frozen
 from routeplan.units import magnitude
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -30,7 +30,7 @@ __all__ = [
 ]
 
 
-@dataclass(frozen=True)
+@frozen
 class Column:
     """A table column: row key, heading and unit (empty for none)."""
 
@@ -100,6 +100,7 @@ def step_charge_rows(sp: "StepPlan") -> list[dict[str, Any]]:
             "batch_volume_L": None if vol is None or n == 0 else vol / n,
             "intermediate": c.intermediate,
             "carried_from": c.carried_from,
+            "leaves": c.leaves,
         })
     return rows
 
@@ -208,9 +209,12 @@ def charge_label(row: dict[str, Any], maker) -> str:
     """The material of a charge row as people read it: ``acetamidophenol (B1)``.
 
     ``maker`` maps an intermediate to the step making it; a charge carried in solution
-    reads ``salt (S2, in solution)``.
+    reads ``salt (S2, in solution)``, a charge that leaves right after it is charged
+    ``water (separated)``.
     """
     name = row["material"]
+    if row.get("leaves"):
+        return f"{name} (separated)"
     if row["carried_from"]:
         return f"{name} ({row['carried_from']}, in solution)"
     if row["intermediate"]:
