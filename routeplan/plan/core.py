@@ -415,7 +415,7 @@ def _share(n: Number, made: Number) -> Number:
     return n / made if made > made * 0 else 1.0  # a zero in made's own unit (pint, recording numbers)
 
 
-@dataclass(frozen=True)
+@frozen
 class Contents:
     """What the vessel of one step holds over the campaign.
 
