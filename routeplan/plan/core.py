@@ -493,9 +493,9 @@ def contents(core: CoreRoute, steps: Mapping[str, WalkStep]) -> dict[str, Conten
             lines_m.append(m)
             if V is not None:
                 held = _plus(held, V)  # [L]
-                fullest = _larger(fullest, held)
             if c.leaves:
-                if V is not None:
+                if V is not None:  # the vessel is fullest just before a charge leaves, or at the end
+                    fullest = _larger(fullest, held)
                     held = held - V  # separated right after it is charged [L]
                 continue
             if V is not None:
@@ -506,6 +506,8 @@ def contents(core: CoreRoute, steps: Mapping[str, WalkStep]) -> dict[str, Conten
         gas = None
         for ratio, M in s.gases:
             gas = _plus(gas, ratio * w.n_lim * M)  # [-] * [mol] * [kg/mol] = [kg]
+        if held is not None:  # volumes only add between leaving charges: no other peak
+            fullest = _larger(fullest, held)
         out[s.id] = Contents(tuple(lines_V), tuple(lines_m), fullest, stays_V,
                              stays_m if gas is None else stays_m - gas, m_rxn, gas)
     return out
