@@ -11,11 +11,13 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from routeplan.views.tables import column_unit, step_charge_rows
+from routeplan.views.display_units import plan_units
+from routeplan.views.numbers import sig
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.derivation import Line
     from routeplan.plan.model import Plan
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = ["line_text", "lines_text", "charge_lines", "charge_text", "target_text", "raw_text",
            "derivation_rows", "charge_derivations", "plan_derivation_rows"]
@@ -39,9 +41,10 @@ def _with_unit(value: float, unit: str, digits: int = 6) -> str:
 def line_text(line: "Line", result_scale: tuple[str, float] | None = None) -> str:
     """One line: ``25 kg x 1.02 (1 + overage, f line 11) / 278.308 g/mol (...) = 91.17 mol HX17 to make``.
 
-    ``result_scale`` is ``(unit, factor)`` in which the result is shown (the plan table's
-    column unit), default the line's own unit; results have 4 significant figures, as the
-    plan prints them.
+    ``result_scale`` is ``(unit, factor)`` in which the result is shown (the plan's unit
+    of its kind), default the line's own unit; results have 4 significant figures, as the
+    plan prints them (:func:`routeplan.views.numbers.sig`).  Factors keep 6, so that the
+    arithmetic can be followed.
     """
     parts = []
     for f in line.factors:
@@ -52,7 +55,7 @@ def line_text(line: "Line", result_scale: tuple[str, float] | None = None) -> st
             text += f" ({f.what}, {f.source})" if f.source else f" ({f.what})"
         parts.append(text if f.op == "start" else f"{_OP[f.op]} {text}")
     unit, factor = result_scale or (line.unit, 1.0)
-    return " ".join(parts) + f" = {_num(line.value / factor, 4)} {unit} {line.what}"
+    return " ".join(parts) + f" = {sig(line.value / factor)} {unit} {line.what}"
 
 
 def lines_text(lines, scales: dict[int, tuple[str, float]] | None = None) -> list[str]:
@@ -61,13 +64,9 @@ def lines_text(lines, scales: dict[int, tuple[str, float]] | None = None) -> lis
     return [f"{i + 1}. {line_text(line, scales.get(i))}" for i, line in enumerate(lines)]
 
 
-def _step_scales(plan: "Plan", step: str) -> dict[str, tuple[str, float]]:
-    """The unit the plan's table of ``step`` shows each kind in: unit -> (shown unit, factor)."""
-    rows = step_charge_rows(plan.step(step))
-    out = {}
-    for unit, col in (("mol", "mol"), ("kg", "mass_kg"), ("L", "volume_L")):
-        out[unit] = column_unit([r[col] for r in rows], _KIND[unit])
-    return out
+def _scales(units: "DisplayUnits") -> dict[str, tuple[str, float]]:
+    """The unit the plan shows each kind in: base unit -> (shown unit, factor)."""
+    return {base: (units.unit(kind).symbol, units.unit(kind).factor) for base, kind in _KIND.items()}
 
 
 def charge_lines(plan: "Plan", step: str, material: str):
@@ -78,10 +77,14 @@ def charge_lines(plan: "Plan", step: str, material: str):
     return index, plan.derivation.charge(step, index)
 
 
-def charge_text(plan: "Plan", step: str, material: str) -> list[str]:
-    """The derivation of a charge, one line per chain; its last lines are the plan's numbers."""
+def charge_text(plan: "Plan", step: str, material: str, units: "DisplayUnits | None" = None) -> list[str]:
+    """The derivation of a charge, one line per chain; its last lines are the plan's numbers.
+
+    ``units``: the units the plan is printed in (default :func:`plan_units`), so that the
+    last line reads as the plan's table does.
+    """
     index, lines = charge_lines(plan, step, material)
-    scales = _step_scales(plan, step)
+    scales = _scales(units or plan_units(plan))
     # the results of the charge itself (its last lines) in the units of the plan's table
     own = {plan.derivation.lines[plan.derivation.named[k]].what for k in plan.derivation.named
            if k[:3] == ("charge", step, index)}
@@ -89,10 +92,10 @@ def charge_text(plan: "Plan", step: str, material: str) -> list[str]:
     out = [f"{material} charged to {step}: how the plan gets its numbers"] + lines_text(lines, shown)
     c = plan.step(step).charges[index]
     amounts = []
-    for unit, q in (("mol", c.mol), ("kg", c.mass), ("L", c.volume)):
-        if q is not None:
+    for unit, value in (("mol", c.n_mol), ("kg", c.m_kg), ("L", c.V_L)):
+        if value is not None:
             name, factor = scales[unit]
-            amounts.append(f"{_num(q.m_as(unit) / factor, 4)} {name}")
+            amounts.append(f"{sig(value / factor)} {name}")
     out.append(f"= {', '.join(amounts)} {material} charged to {step}, as in the plan")
     if c.carried_from is not None:
         out.append(f"(the volume in the plan is the whole mixture carried in from {c.carried_from}, "
@@ -105,17 +108,18 @@ def target_text(plan: "Plan") -> list[str]:
     return [f"{plan.target_material}: moles to make"] + lines_text(plan.derivation.chain(("target",)))
 
 
-def raw_text(plan: "Plan", material: str) -> list[str]:
-    """The derivation of a raw material's mass over the campaign, every charge that adds to it."""
+def raw_text(plan: "Plan", material: str, units: "DisplayUnits | None" = None) -> list[str]:
+    """The derivation of a raw material's mass over the campaign, every charge that adds to it
+    (its total in ``units``, default :func:`plan_units`, as the plan prints it)."""
     from routeplan.plan.derivation import find_raw
 
     find_raw(plan.route, material, [r.material for r in plan.raw_materials])
     lines = plan.derivation.chain(("raw", material, "m"))
-    scale = column_unit([r.m_kg for r in plan.raw_materials], "mass")
+    scale = _scales(units or plan_units(plan))["kg"]
     total = next(r for r in plan.raw_materials if r.material == material)
     return ([f"{material} over the campaign: how the plan gets its mass"]
             + lines_text(lines, {len(lines) - 1: scale})
-            + [f"= {_num(total.m_kg / scale[1], 4)} {scale[0]} {material} over the campaign, as in the plan"])
+            + [f"= {sig(total.m_kg / scale[1])} {scale[0]} {material} over the campaign, as in the plan"])
 
 
 def derivation_rows(lines) -> list[dict[str, Any]]:
