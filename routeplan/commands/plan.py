@@ -42,7 +42,8 @@ from routeplan.vocab import YieldCase
                    "('expected') or at the assay-corrected mean yield its recorded lots gave ('actual').")
 @click.option("--explain", "explain", is_flag=True,
               help="With --json: add to each charge the derivation of its numbers (factors with value, unit, "
-                   "what and source); with --xlsx: add a Derivation sheet.")
+                   "what and source); with --xlsx: add a Derivation sheet with live formulas.  The --html "
+                   "report always has them: a number of a charge table opens its derivation.")
 @click.option("--units", "units", metavar="UNITS", help=UNITS_HELP)
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
@@ -73,8 +74,16 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
     level = confidence_option(confidence, draws, seed)
     r = load_route(route)
+    # the report always shows derivations (closed, and left out of print unless opened);
+    # the JSON and the workbook carry them only when asked for
     plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), confidence=level, draws=draws,
-                      seed=seed, record=record_file, record_yields=record_yields, explain=explain)
+                      seed=seed, record=record_file, record_yields=record_yields,
+                      explain=explain or html_out is not None)
+    bare = plan
+    if not explain and plan.derivation is not None:
+        from dataclasses import replace
+
+        bare = replace(plan, derivation=None)
     if strict and plan.warnings:
         echo_warnings(plan.warnings, strict=True)
         n = len(plan.warnings)
@@ -84,11 +93,11 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
         if json_out is not None:
             from routeplan.export.json import plan_to_json
 
-            out.text(json_out, plan_to_json(plan))
+            out.text(json_out, plan_to_json(bare))
         if xlsx_out is not None:
             from routeplan.export.workbook import write_workbook
 
-            write_workbook(plan, out.file(xlsx_out, suffix=".xlsx"))
+            write_workbook(bare, out.file(xlsx_out, suffix=".xlsx"))
         if html_out is not None:
             from routeplan.export.html import write_plan_html
 
@@ -96,7 +105,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
         if csv_dir is not None:
             from routeplan.export.csv import write_csv
 
-            write_csv(plan, out.folder(csv_dir))
+            write_csv(bare, out.folder(csv_dir))
     finish_outputs(out)
     if json_out == "-" or quiet:
         echo_warnings(plan.warnings)

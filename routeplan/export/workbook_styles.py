@@ -118,6 +118,7 @@ class Styles:
         self.molar_mass = add(num_format="0.00", border=1, border_color=_BORDER_COLOUR)
         self.density = add(num_format="0.000", border=1, border_color=_BORDER_COLOUR)
         self.percent = add(num_format=PERCENT_FORMAT, border=1, border_color=_BORDER_COLOUR)
+        self.general = add(num_format="General", border=1, border_color=_BORDER_COLOUR)
         self.money = add(num_format="#,##0.00", border=1, border_color=_BORDER_COLOUR)
         self.money_bold = add(num_format="#,##0.00", bold=True, border=1, border_color=_BORDER_COLOUR)
         self.fill_text = add(bg_color=_FILL_IN, border=1, border_color=_BORDER_COLOUR, locked=False)

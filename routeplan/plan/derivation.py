@@ -15,6 +15,7 @@ Data only: sentences are :mod:`routeplan.views.derivation_text`'s.
 
 from __future__ import annotations
 
+import functools
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Mapping
 
@@ -128,6 +129,10 @@ class Factor:
         ``"line 2 of this derivation"`` for an earlier result.
     ref : int or None
         Index of the earlier line whose result this factor is, else None.
+    line : int or None
+        In a chain cut at a step (:meth:`Derivation.step_chain`): index in
+        :attr:`Derivation.lines` of the line whose result this factor is, where that
+        line is derived with another step; else None.
     """
 
     op: str
@@ -136,6 +141,7 @@ class Factor:
     what: str
     source: str
     ref: int | None = None
+    line: int | None = None
 
 
 @dataclass(frozen=True)
@@ -224,6 +230,50 @@ class Derivation:
 
     def chain(self, *keys: tuple) -> tuple[Line, ...]:
         """The lines needed for ``keys``, in order, renumbered from 0 (refs follow)."""
+        return self.cut(*keys)[1]
+
+    def charge(self, step: str, index: int) -> tuple[Line, ...]:
+        """The lines of charge ``index`` (0-based) of ``step``, down to its moles, mass and volume."""
+        return self.chain(*self.charge_keys(step, index))
+
+    def charge_keys(self, step: str, index: int) -> tuple[tuple, ...]:
+        """The named keys of charge ``index`` of ``step`` that have a line (moles, mass, volume)."""
+        return tuple(k for k in (("charge", step, index, x) for x in "nmV") if k in self.named)
+
+    def home(self, i: int) -> str | None:
+        """The step with which line ``i`` is derived: the step a charge line charges, the
+        step whose limiting reagent or demand the line is; None for a line of no step
+        (the target alone, an unnamed part of a line)."""
+        return self._homes.get(i)
+
+    @functools.cached_property
+    def _homes(self) -> dict[int, str]:
+        rank = {"charge": 0, "limiting": 1, "limiting_mass": 1, "product": 2}
+        best: dict[int, tuple[int, str]] = {}
+        for key, i in self.named.items():
+            if key[0] in rank and (i not in best or rank[key[0]] < best[i][0]):
+                best[i] = (rank[key[0]], key[1])
+        return {i: step for i, (_r, step) in best.items()}
+
+    def cut(self, *keys: tuple, step: str | None = None) -> tuple[tuple[int, ...], tuple[Line, ...]]:
+        """The lines for ``keys`` (with ``step``: only those derived with that step), renumbered from 0.
+
+        With ``step``, a line derived with another step is not followed: the factor that
+        is its result keeps ``ref=None``, cites ``"derived in S4"`` and names the line in
+        ``line``, so that a report can link to where that step derives it.  A report that
+        shows every charge so grows with the number of charges, not with the depth of
+        the route times the number of charges.
+
+        Returns
+        -------
+        (indices, lines)
+            The index in :attr:`lines` of each line shown, and the lines.
+        """
+        if step is None:
+            return self._cut(keys, lambda i: True)
+        return self._cut(keys, lambda i: self.home(i) in (None, step))
+
+    def _cut(self, keys, follow) -> tuple[tuple[int, ...], tuple[Line, ...]]:
         need: set[int] = set()
         todo = [self.named[k] for k in keys]
         while todo:
@@ -231,21 +281,24 @@ class Derivation:
             if i in need:
                 continue
             need.add(i)
-            todo.extend(f.ref for f in self.lines[i].factors if f.ref is not None)
+            todo.extend(f.ref for f in self.lines[i].factors if f.ref is not None and follow(f.ref))
         order = sorted(need)
         new = {old: k for k, old in enumerate(order)}
         out = []
         for old in order:
             line = self.lines[old]
-            facs = tuple(Factor(f.op, f.value, f.unit, f.what,
-                                f"line {new[f.ref] + 1} of this derivation" if f.ref is not None else f.source,
-                                None if f.ref is None else new[f.ref]) for f in line.factors)
-            out.append(Line(facs, line.value, line.unit, line.what))
-        return tuple(out)
-
-    def charge(self, step: str, index: int) -> tuple[Line, ...]:
-        """The lines of charge ``index`` (0-based) of ``step``, down to its moles, mass and volume."""
-        return self.chain(*[k for k in (("charge", step, index, x) for x in "nmV") if k in self.named])
+            facs = []
+            for f in line.factors:
+                if f.ref is None:
+                    facs.append(f)
+                elif f.ref in new:
+                    facs.append(Factor(f.op, f.value, f.unit, f.what, f"line {new[f.ref] + 1} of this derivation",
+                                       new[f.ref]))
+                else:
+                    facs.append(Factor(f.op, f.value, f.unit, f.what, f"derived in {self.home(f.ref)}",
+                                       None, f.ref))
+            out.append(Line(tuple(facs), line.value, line.unit, line.what))
+        return tuple(order), tuple(out)
 
 
 def _unit_text(q) -> str:
@@ -303,8 +356,8 @@ class _Builder:
 
     def _auto(self, t: Traced, op: str, what: str) -> Factor:
         """An unnamed compound amount inside a line: a line of its own."""
-        if id(t) not in self.names:
-            self.names[id(t)] = (what, _unit_text(t.q))
+        if id(t) not in self.names:  # in its simplest unit: mol, not kg*mol/g
+            self.names[id(t)] = (what, _unit_text(t.q.to_reduced_units()))
             self.keep.append(t)
         return self._ref(t, op)
 
@@ -343,7 +396,14 @@ class _Builder:
             return self._terms(t, op)
         if t.node[0] == "leaf":
             return [self._leaf(t, op)]
-        return [self._auto(t, op, "term")]
+        return [self._auto(t, op, _lead_what(t) or "term")]
+
+
+def _lead_what(t: Traced) -> str | None:
+    """What the first constant of a product is (``"ester on the shelf"``), to name the term it leads."""
+    while t.node[0] in ("mul", "div"):
+        t = t.node[1]
+    return t.node[1] if t.node[0] == "leaf" else None
 
 
 def _is_overage(t: Traced) -> bool:
@@ -424,13 +484,19 @@ def derive(route: "Route", amount_kg: float, *, yields: str = "expected",
     return b.build()
 
 
-def _nearest(word: str, names) -> str:
-    """``"did you mean A, B?"`` from the names closest to ``word``, or every name when none is close."""
+def _close(word: str, names) -> list[str]:
+    """The (up to 3) names closest to ``word``, case aside (difflib's ratio, 0.6 or more)."""
     import difflib
 
+    names = list(dict.fromkeys(names))
+    by_lower = {n.lower(): n for n in names}
+    return [by_lower[n] for n in difflib.get_close_matches(word.lower(), list(by_lower), n=3, cutoff=0.6)]
+
+
+def _nearest(word: str, names) -> str:
+    """``"valid names: A, B"``: the names closest to ``word``, or every name when none is close."""
     names = list(names)
-    close = difflib.get_close_matches(word, names, n=3, cutoff=0.4) or names
-    return "valid names: " + ", ".join(close)
+    return "valid names: " + ", ".join(_close(word, names) or names)
 
 
 def find_charge(route: "Route", step: str, material: str) -> int:
@@ -452,8 +518,11 @@ def find_charge(route: "Route", step: str, material: str) -> int:
     if material in charged:
         return charged.index(material)
     if material not in route.materials:
+        close = [m for m in _close(material, charged + list(route.materials))]
+        hint = (f"did you mean {', '.join(dict.fromkeys(close))}? " if close else "") \
+            + f"charged in {step}: " + ", ".join(charged)
         raise PlanError(f"no material '{material}' in the route", location=Location(key="MATERIAL"),
-                        step=step, hint=_nearest(material, charged))
+                        step=step, hint=hint)
     raise PlanError(f"'{material}' is not charged in step {step}", location=Location(key="MATERIAL"),
                     step=step, hint="charged there: " + ", ".join(charged))
 

@@ -648,9 +648,13 @@ def validation_problems(error: ValidationError, positions: Positions) -> list[Pr
     Returns
     -------
     list of Problem
-        One error per pydantic error, each with file, line, column and key path.
+        One error per pydantic error, each with file, line, column and key path.  A
+        required key reported missing is left out where an unknown key of the same
+        mapping is its misspelling (``yeild`` for ``yield``): one mistake, one message.
     """
     out = []
+    missing: list[tuple[tuple, str, int]] = []   # (parent, key, index in out)
+    misspelt: set[tuple[tuple, str]] = set()     # (parent, the key suggested)
     for err in error.errors(include_url=False):
         loc = tuple(err["loc"])
         kind = err["type"]
@@ -667,6 +671,7 @@ def validation_problems(error: ValidationError, positions: Positions) -> list[Pr
             where = positions.at(parent, show=loc)
             message = "is required but missing"
             hint = MISSING_HINTS.get((model, key)) if model else None
+            missing.append((tuple(parent), str(key), len(out)))
         elif kind == "extra_forbidden":
             parent, key = loc[:-1], str(loc[-1])
             model = model_at(parent)
@@ -678,6 +683,8 @@ def validation_problems(error: ValidationError, positions: Positions) -> list[Pr
                 [v for v in valid if len(key) >= 2 and v.startswith(key.lower())][:1]
             message = f"unknown key '{key}'"
             hint = f"did you mean '{near[0]}'?" if near else "valid keys here: " + ", ".join(valid)
+            if near:
+                misspelt.add((tuple(parent), near[0]))
             odd = lookalike_hint(key)
             if odd:
                 hint = odd + ("" if near or not valid else "; valid keys here: " + ", ".join(valid))
@@ -694,4 +701,5 @@ def validation_problems(error: ValidationError, positions: Positions) -> list[Pr
             else:  # pragma: no cover - every model field goes through the cases above
                 message = f"{err['msg']}, got {describe_value(value)}"
         out.append(Problem(Severity.ERROR, message, where, hint=hint))
-    return out
+    drop = {i for parent, key, i in missing if (parent, key) in misspelt}
+    return [p for i, p in enumerate(out) if i not in drop]

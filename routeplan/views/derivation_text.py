@@ -9,21 +9,22 @@ writer, the workbook's Derivation sheet and the HTML report take :func:`derivati
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
-from routeplan.views.display_units import plan_units
 from routeplan.views.numbers import sig
+from routeplan.views.tables import column_unit, fmt, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.derivation import Line
     from routeplan.plan.model import Plan
     from routeplan.views.display_units import DisplayUnits
 
-__all__ = ["line_text", "lines_text", "charge_lines", "charge_text", "target_text", "raw_text",
-           "derivation_rows", "charge_derivations", "plan_derivation_rows"]
+__all__ = ["FactorView", "LineView", "Explanation", "line_views", "line_text", "lines_text", "charge_lines",
+           "charge_explanation", "charge_text", "target_text", "raw_text", "derivation_rows",
+           "charge_derivations", "plan_derivation_rows", "step_explanations", "sheet_blocks"]
 
 _KIND = {"mol": "amount", "kg": "mass", "L": "volume"}
-_OP = {"x": "x", "/": "/", "+": "+", "-": "-"}
 
 
 def _num(value: float, digits: int = 6) -> str:
@@ -38,35 +39,165 @@ def _with_unit(value: float, unit: str, digits: int = 6) -> str:
     return _num(value, digits) + (f" {unit}" if unit else "")
 
 
-def line_text(line: "Line", result_scale: tuple[str, float] | None = None) -> str:
-    """One line: ``25 kg x 1.02 (1 + overage, f line 11) / 278.308 g/mol (...) = 91.17 mol HX17 to make``.
+@dataclass(frozen=True)
+class FactorView:
+    """One factor as people read it.
 
-    ``result_scale`` is ``(unit, factor)`` in which the result is shown (the plan's unit
-    of its kind), default the line's own unit; results have 4 significant figures, as the
-    plan prints them (:func:`routeplan.views.numbers.sig`).  Factors keep 6, so that the
-    arithmetic can be followed.
+    Attributes
+    ----------
+    op : str
+        ``""`` for the first factor, else ``"x"``, ``"/"``, ``"+"`` or ``"-"``.
+    value : float
+        Magnitude in ``unit``.
+    text : str
+        The value to 6 significant figures.
+    unit : str
+        Its unit (``""`` for a pure number [-]).
+    what, source : str
+        What it is and where it comes from (the route file's line, a standard's table,
+        ``"line 3"`` for an earlier line, ``"derived in S4"``).
+    ref : int or None
+        Index (0-based) of the earlier line of the same explanation whose result this is.
+    elsewhere : int or None
+        Index in ``plan.derivation.lines`` of the line whose result this is, where that
+        line is derived with another step (an explanation cut at its step).
     """
+
+    op: str
+    value: float
+    text: str
+    unit: str
+    what: str
+    source: str
+    ref: int | None = None
+    elsewhere: int | None = None
+
+
+@dataclass(frozen=True)
+class LineView:
+    """One line: factors and the result they give.
+
+    Attributes
+    ----------
+    factors : tuple of FactorView
+    value : float
+        Result in ``base_unit`` (the derivation's own unit: mol, kg, L, ...).
+    base_unit : str
+    result : str
+        Result to 4 significant figures in ``unit``, as the plan's tables print it.
+    unit : str
+        Unit shown (the plan table's column unit for the charge's own numbers).
+    what : str
+        What the result is (``"NaOH50 charged to S3"``).
+    amount : str or None
+        ``"n"``, ``"m"`` or ``"V"`` where the result is the charge's own moles, mass or
+        volume as in the plan; else None.
+    origin : int
+        Index of the line in ``plan.derivation.lines``.
+    """
+
+    factors: tuple[FactorView, ...]
+    value: float
+    base_unit: str
+    result: str
+    unit: str
+    what: str
+    amount: str | None
+    origin: int
+
+
+@dataclass(frozen=True)
+class Explanation:
+    """How the plan gets one number: a title, the lines, the plan's own numbers and notes.
+
+    Attributes
+    ----------
+    title : str
+    lines : tuple of LineView
+    amounts : tuple of (str, float, str, str)
+        The plan's numbers this explains: kind (``"n"``, ``"m"``, ``"V"``), value in the
+        base unit (mol, kg, L), text to 4 significant figures and unit shown.
+    subject : str
+        What the numbers are of (``"NaOH50 charged to S3"``).
+    notes : tuple of str
+    """
+
+    title: str
+    lines: tuple[LineView, ...]
+    amounts: tuple[tuple[str, float, str, str], ...]
+    subject: str
+    notes: tuple[str, ...] = ()
+
+    @property
+    def closing(self) -> str:
+        """``= 151.4 mol, 12.11 kg, 7.966 L NaOH50 charged to S3, as in the plan``."""
+        return f"= {', '.join(f'{t} {u}' for _k, _v, t, u in self.amounts)} {self.subject}, as in the plan"
+
+    def text(self) -> list[str]:
+        """The explanation as the ``explain`` command prints it."""
+        return [self.title] + [f"{i + 1}. {line_text(x)}" for i, x in enumerate(self.lines)] + [self.closing] \
+            + list(self.notes)
+
+
+def line_views(lines, origins=None, scales: dict[int, tuple[str, float]] | None = None,
+               amounts: dict[int, str] | None = None, number=fmt) -> tuple[LineView, ...]:
+    """Lines of a derivation for people.
+
+    ``scales`` maps a line index to the ``(unit, factor)`` its result is shown in (the
+    plan table's column unit; default the line's own unit); ``amounts`` maps a line index
+    to the charge's number it is (``"n"``, ``"m"``, ``"V"``); ``origins`` gives each
+    line's index in the plan's derivation; ``number`` writes a result.
+    """
+    scales = scales or {}
+    amounts = amounts or {}
+    out = []
+    for i, line in enumerate(lines):
+        facs = tuple(FactorView("" if f.op == "start" else f.op, f.value, _num(f.value), f.unit, f.what,
+                                f"line {f.ref + 1}" if f.ref is not None else f.source, f.ref, f.line)
+                     for f in line.factors)
+        unit, factor = scales.get(i, (line.unit, 1.0))
+        out.append(LineView(facs, line.value, line.unit, number(line.value / factor), unit, line.what,
+                            amounts.get(i), i if origins is None else origins[i]))
+    return tuple(out)
+
+
+def line_text(line) -> str:
+    """One line: ``25 kg (target mass of HX17, f line 11) x 1.02 (...) / 278.308 g/mol (...) = 91.17 mol HX17 to make``.
+
+    ``line`` is a :class:`LineView`, or a :class:`~routeplan.plan.derivation.Line`
+    (shown in its own unit).
+    """
+    if not isinstance(line, LineView):
+        line = line_views([line])[0]
     parts = []
     for f in line.factors:
-        text = _with_unit(f.value, f.unit)
+        text = f.text + (f" {f.unit}" if f.unit else "")
         if f.ref is not None:
-            text += f" {f.what} (line {f.ref + 1})"
+            text += f" {f.what} ({f.source})"
         else:
             text += f" ({f.what}, {f.source})" if f.source else f" ({f.what})"
-        parts.append(text if f.op == "start" else f"{_OP[f.op]} {text}")
-    unit, factor = result_scale or (line.unit, 1.0)
-    return " ".join(parts) + f" = {sig(line.value / factor)} {unit} {line.what}"
+        parts.append(f"{f.op} {text}" if f.op else text)
+    return " ".join(parts) + f" = {line.result} {line.unit} {line.what}"
 
 
-def lines_text(lines, scales: dict[int, tuple[str, float]] | None = None) -> list[str]:
+def lines_text(lines, scales: dict[int, tuple[str, float]] | None = None, number=fmt) -> list[str]:
     """Numbered lines of a derivation."""
-    scales = scales or {}
-    return [f"{i + 1}. {line_text(line, scales.get(i))}" for i, line in enumerate(lines)]
+    return [f"{i + 1}. {line_text(x)}" for i, x in enumerate(line_views(lines, scales=scales, number=number))]
 
 
-def _scales(units: "DisplayUnits") -> dict[str, tuple[str, float]]:
-    """The unit the plan shows each kind in: base unit -> (shown unit, factor)."""
-    return {base: (units.unit(kind).symbol, units.unit(kind).factor) for base, kind in _KIND.items()}
+def _step_scales(plan: "Plan", step: str, units: "DisplayUnits | None" = None) -> dict[str, tuple[str, float]]:
+    """The unit each kind is shown in: base unit -> (shown unit, factor).
+
+    With ``units`` (the terminal's one set for the whole plan), its units; without, the
+    units the report's table of ``step`` picks for its own columns.
+    """
+    if units is not None:
+        return {base: (units.unit(kind).symbol, units.unit(kind).factor) for base, kind in _KIND.items()}
+    rows = step_charge_rows(plan.step(step))
+    out = {}
+    for unit, col in (("mol", "mol"), ("kg", "mass_kg"), ("L", "volume_L")):
+        out[unit] = column_unit([r[col] for r in rows], _KIND[unit])
+    return out
 
 
 def charge_lines(plan: "Plan", step: str, material: str):
@@ -77,30 +208,50 @@ def charge_lines(plan: "Plan", step: str, material: str):
     return index, plan.derivation.charge(step, index)
 
 
-def charge_text(plan: "Plan", step: str, material: str, units: "DisplayUnits | None" = None) -> list[str]:
-    """The derivation of a charge, one line per chain; its last lines are the plan's numbers.
+def charge_explanation(plan: "Plan", step: str, index: int, *, within_step: bool = False,
+                       units: "DisplayUnits | None" = None) -> Explanation:
+    """How the plan gets charge ``index`` (0-based) of ``step``: moles, mass and volume.
 
-    ``units``: the units the plan is printed in (default :func:`plan_units`), so that the
-    last line reads as the plan's table does.
+    The charge's own results are shown in the units of the plan's table of that step, so
+    that they read digit for digit as there: with ``units`` the terminal's units and
+    numbers (:mod:`routeplan.views.numbers`), as ``plan`` prints them; without, the
+    report table's.  With ``within_step``, the lines stop at the amounts another step
+    derives (:meth:`routeplan.plan.derivation.Derivation.cut`).
     """
-    index, lines = charge_lines(plan, step, material)
-    scales = _scales(units or plan_units(plan))
-    # the results of the charge itself (its last lines) in the units of the plan's table
-    own = {plan.derivation.lines[plan.derivation.named[k]].what for k in plan.derivation.named
-           if k[:3] == ("charge", step, index)}
-    shown = {i: scales[line.unit] for i, line in enumerate(lines) if line.what in own and line.unit in scales}
-    out = [f"{material} charged to {step}: how the plan gets its numbers"] + lines_text(lines, shown)
+    number = fmt if units is None else sig
+    d = plan.derivation
+    keys = d.charge_keys(step, index)
+    origins, lines = d.cut(*keys, step=step if within_step else None)
     c = plan.step(step).charges[index]
+    scales = _step_scales(plan, step, units)
+    own = {d.named[k]: k[3] for k in keys}
+    if c.carried_from is not None:  # the plan's volume is the mixture carried in, not this line's
+        own = {i: x for i, x in own.items() if x != "V"}
+    where = {o: i for i, o in enumerate(origins)}
+    shown = {i: scales[line.unit] for i, line in enumerate(lines)
+             if origins[i] in {d.named[k] for k in keys} and line.unit in scales}
+    views = line_views(lines, origins, shown, {where[o]: x for o, x in own.items()}, number)
     amounts = []
-    for unit, value in (("mol", c.n_mol), ("kg", c.m_kg), ("L", c.V_L)):
-        if value is not None:
+    for kind, unit, q in (("n", "mol", c.mol), ("m", "kg", c.mass), ("V", "L", c.volume)):
+        if q is not None:
             name, factor = scales[unit]
-            amounts.append(f"{sig(value / factor)} {name}")
-    out.append(f"= {', '.join(amounts)} {material} charged to {step}, as in the plan")
+            value = q.m_as(unit)
+            amounts.append((kind, value, number(value / factor), name))
+    subject = f"{c.material} charged to {step}"
+    notes = ()
     if c.carried_from is not None:
-        out.append(f"(the volume in the plan is the whole mixture carried in from {c.carried_from}, "
-                   f"sized with the batches, not this line's volume)")
-    return out
+        notes = (f"(the volume in the plan is the whole mixture carried in from {c.carried_from}, "
+                 f"sized with the batches, not this line's volume)",)
+    return Explanation(f"{c.material} charged to {step}: how the plan gets its numbers", views, tuple(amounts),
+                       subject, notes)
+
+
+def charge_text(plan: "Plan", step: str, material: str, units: "DisplayUnits | None" = None) -> list[str]:
+    """The derivation of a charge, one line per chain; its last lines are the plan's numbers
+    (in ``units``, the terminal's, where given)."""
+    from routeplan.plan.derivation import find_charge
+
+    return charge_explanation(plan, step, find_charge(plan.route, step, material), units=units).text()
 
 
 def target_text(plan: "Plan") -> list[str]:
@@ -109,17 +260,20 @@ def target_text(plan: "Plan") -> list[str]:
 
 
 def raw_text(plan: "Plan", material: str, units: "DisplayUnits | None" = None) -> list[str]:
-    """The derivation of a raw material's mass over the campaign, every charge that adds to it
-    (its total in ``units``, default :func:`plan_units`, as the plan prints it)."""
+    """The derivation of a raw material's mass over the campaign, every charge that adds to
+    it; its total in ``units`` (the terminal's, where given) as the plan prints it."""
     from routeplan.plan.derivation import find_raw
 
     find_raw(plan.route, material, [r.material for r in plan.raw_materials])
     lines = plan.derivation.chain(("raw", material, "m"))
-    scale = _scales(units or plan_units(plan))["kg"]
+    if units is None:
+        scale, number = column_unit([r.m_kg for r in plan.raw_materials], "mass"), fmt
+    else:
+        scale, number = (units.mass.symbol, units.mass.factor), sig
     total = next(r for r in plan.raw_materials if r.material == material)
     return ([f"{material} over the campaign: how the plan gets its mass"]
-            + lines_text(lines, {len(lines) - 1: scale})
-            + [f"= {sig(total.m_kg / scale[1])} {scale[0]} {material} over the campaign, as in the plan"])
+            + lines_text(lines, {len(lines) - 1: scale}, number)
+            + [f"= {number(total.m_kg / scale[1])} {scale[0]} {material} over the campaign, as in the plan"])
 
 
 def derivation_rows(lines) -> list[dict[str, Any]]:
@@ -155,4 +309,99 @@ def plan_derivation_rows(plan: "Plan") -> list[dict[str, Any]]:
                                  "op": f.op, "value": f.value, "unit": f.unit, "what": f.what,
                                  "source": f.source, "result": line.value, "result_unit": line.unit,
                                  "result_what": line.what})
+    return rows
+
+
+def step_explanations(plan: "Plan"):
+    """Every charge of every running step explained within its step, and where each line is first shown.
+
+    Returns
+    -------
+    (shown, first)
+        ``shown``: a list of ``(step index, step id, charge index, ChargePlan,
+        Explanation)`` for the charges that have a derivation, in the plan's order;
+        ``first``: index of a line in ``plan.derivation.lines`` -> ``(k, line index)``,
+        its first showing (``shown[k]``), where a factor derived with another step
+        (:attr:`FactorView.elsewhere`) can point.  Both empty without a derivation.
+    """
+    shown, first = [], {}
+    if plan.derivation is None:
+        return shown, first
+    for si, sp in enumerate(plan.steps):
+        if not sp.runs:
+            continue
+        for ci, c in enumerate(sp.charges):
+            ex = charge_explanation(plan, sp.id, ci, within_step=True)
+            if ex.lines:
+                for li, line in enumerate(ex.lines):
+                    first.setdefault(line.origin, (len(shown), li))
+                shown.append((si, sp.id, ci, c, ex))
+    return shown, first
+
+
+#: Where the factor that turns a product of units into the result's unit comes from.
+UNIT_CONVERSION_SOURCE = "SI prefixes (NIST SP 811)"
+
+
+def _conversion(units: list[tuple[str, str]], result_unit: str) -> tuple[float, str]:
+    """The number that turns the product of ``units`` (op, unit) into ``result_unit``, and the
+    product's unit as text (``"kg·mol/g"``); pint's unit definitions (NIST SP 811)."""
+    from routeplan.units import Q
+
+    q = Q(1.0, "")
+    for op, unit in units:
+        q = q / Q(1.0, unit or "") if op == "/" else q * Q(1.0, unit or "")
+    return float(q.m_as(result_unit or "")), ("" if q.dimensionless else f"{q.units:~P}")
+
+
+def sheet_blocks(plan: "Plan") -> list[dict[str, Any]]:
+    """The derivation of every charge as blocks of rows for a sheet with live formulas.
+
+    One block per charge that has a derivation, in the plan's order of steps and charges:
+    ``{"step", "order", "material", "lines"}``; each line ``{"rows", "value", "unit",
+    "what", "amount", "origin"}`` (``value`` [``unit``] the result, ``amount`` ``n``/``m``/
+    ``V`` where it is the plan's number of the charge); each row one factor ``{"op",
+    "value", "unit", "what", "source", "ref", "at"}``: ``ref`` the index of an earlier
+    line of the same block whose result it is, ``at`` the (block, line) that derives it
+    with another step.  The lines stop at their step, as in the report
+    (:func:`charge_explanation` ``within_step``).
+
+    Where the product of a line's units is not the result's unit (kg / (g/mol) is 1000
+    mol), a row ``x 1000 (unit conversion ...)`` follows, so that the product of the
+    rows' values is the result; in a sum it follows the term it converts.  Rows read from
+    the first: ``x`` and ``/`` apply to the term so far, ``+`` and ``-`` start a new term.
+    """
+    shown, first = step_explanations(plan)
+    blocks: list[dict[str, Any]] = []
+    for _si, sid, _ci, c, ex in shown:
+        lines = [{"value": line.value, "unit": line.base_unit, "what": line.what, "amount": line.amount,
+                  "origin": line.origin, "factors": line.factors} for line in ex.lines]
+        blocks.append({"step": sid, "order": c.order, "material": c.material, "lines": lines})
+    for block in blocks:
+        for line in block["lines"]:
+            line["rows"] = _sheet_rows(line.pop("factors"), line["unit"], first)
+    return blocks
+
+
+def _sheet_rows(factors, result_unit: str, first: dict[int, tuple[int, int]]) -> list[dict[str, Any]]:
+    """The rows of one line of :func:`sheet_blocks`, each term closed by its unit conversion."""
+    rows: list[dict[str, Any]] = []
+    term: list[tuple[str, str]] = []
+
+    def close_term() -> None:
+        if term:
+            factor, product = _conversion(term, result_unit)
+            if abs(factor - 1.0) > 1e-12:
+                rows.append({"op": "x", "value": factor, "unit": "",
+                             "what": f"unit conversion: {product or '1'} to {result_unit or '1'}",
+                             "source": UNIT_CONVERSION_SOURCE, "ref": None, "at": None})
+            term.clear()
+
+    for f in factors:
+        if f.op in ("+", "-"):
+            close_term()
+        term.append(("/" if f.op == "/" else "x", f.unit))
+        rows.append({"op": f.op or "start", "value": f.value, "unit": f.unit, "what": f.what, "source": f.source,
+                     "ref": f.ref, "at": None if f.elsewhere is None else first[f.elsewhere]})
+    close_term()
     return rows

@@ -10,7 +10,7 @@ writer can put it in a ``data-value`` attribute and a test can read the report b
 from __future__ import annotations
 
 from dataclasses import dataclass
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 from routeplan.views.tables import (charge_label, column_unit, display_quantity, fmt, raw_material_rows,
                                     step_charge_rows)
@@ -18,18 +18,20 @@ from routeplan.views.tables import (charge_label, column_unit, display_quantity,
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
 
-__all__ = ["Cell", "Table", "Section", "StepSection", "ChartData", "Report", "plan_report", "charge_table",
-           "chart_data", "fact_table", "columns_table"]
+__all__ = ["Cell", "Table", "Section", "ChargeDerivation", "StepSection", "ChartData", "Report", "plan_report",
+           "charge_table", "charge_derivations_view", "chart_data", "fact_table", "columns_table"]
 
 
 
 @dataclass(frozen=True)
 class Cell:
-    """A table cell: text shown, and the number behind it in the column's base unit."""
+    """A table cell: text shown, the number behind it in the column's base unit, and the
+    anchor of the line that derives it (``link``), where the report shows derivations."""
 
     text: str
     value: float | None = None
     numeric: bool = False
+    link: str | None = None
 
 
 @dataclass(frozen=True)
@@ -67,6 +69,32 @@ class Section:
 
 
 @dataclass(frozen=True)
+class ChargeDerivation:
+    """How the plan gets the numbers of one charge, as the report shows it.
+
+    Attributes
+    ----------
+    anchor : str
+        Id of the block; ``anchor + "-" + k`` is the id of its line k (1-based).
+    order : int
+        The charge's number in its step.
+    material : str
+    explanation : Explanation
+        The lines (:func:`routeplan.views.derivation_text.charge_explanation`, cut at
+        the step: an amount another step derives links to it).
+    links : tuple of (str or None)
+        For each factor of each line, in order, the anchor of the line that derives it
+        elsewhere in the report, else None; one tuple per line.
+    """
+
+    anchor: str
+    order: int
+    material: str
+    explanation: Any
+    links: tuple[tuple[str | None, ...], ...]
+
+
+@dataclass(frozen=True)
 class StepSection:
     """One step of the report.
 
@@ -88,6 +116,9 @@ class StepSection:
         Fill of the vessel per batch [-].
     extra : tuple of Section
         Sections from optional Plan fields.
+    derivations : tuple of ChargeDerivation
+        How each charge's numbers are made, where the plan has a derivation; the
+        numbers of the charge table link to their lines.
     """
 
     id: str
@@ -100,6 +131,7 @@ class StepSection:
     batches: int
     fill: float | None
     extra: tuple[Section, ...] = ()
+    derivations: tuple[ChargeDerivation, ...] = ()
 
 
 @dataclass(frozen=True)
@@ -165,13 +197,15 @@ class Report:
     extra: tuple[Section, ...] = ()
 
 
-def charge_table(sp: "StepPlan", route) -> Table:
+def charge_table(sp: "StepPlan", route, links: dict[tuple[int, str], str] | None = None) -> Table:
     """The charge table of one step: the terminal's rows and columns, units per column.
 
     Columns: #, material, role, equiv [-], amount, mass and volume (in one unit each,
     chosen for the column as on the terminal), and per batch when the step has several.
-    The numbers behind the cells are in mol, kg and L.
+    The numbers behind the cells are in mol, kg and L.  ``links`` maps (row, column key)
+    to the anchor of the line deriving that number.
     """
+    links = links or {}
     rows = step_charge_rows(sp)
     mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
     vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
@@ -185,17 +219,49 @@ def charge_table(sp: "StepPlan", route) -> Table:
         heads += [f"m/batch [{mu}]", f"V/batch [{vu}]"]
         units += ["kg", "L"]
 
-    def num(value: float | None, factor: float, digits: int = 4) -> Cell:
-        return Cell(fmt(None if value is None else value / factor, digits), value, True)
+    def num(value: float | None, factor: float, digits: int = 4, link: str | None = None) -> Cell:
+        return Cell(fmt(None if value is None else value / factor, digits), value, True,
+                    None if value is None else link)
 
     out = []
-    for r in rows:
+    for i, r in enumerate(rows):
         cells = [Cell(str(r["order"]), r["order"], True), Cell(charge_label(r, route.maker)), Cell(r["role"]),
-                 num(r["equiv"], 1.0, 3), num(r["mol"], nf), num(r["mass_kg"], mf), num(r["volume_L"], vf)]
+                 num(r["equiv"], 1.0, 3), num(r["mol"], nf, link=links.get((i, "mol"))),
+                 num(r["mass_kg"], mf, link=links.get((i, "mass_kg"))),
+                 num(r["volume_L"], vf, link=links.get((i, "volume_L")))]
         if per_batch:
             cells += [num(r["batch_mass_kg"], mf), num(r["batch_volume_L"], vf)]
         out.append(tuple(cells))
     return Table(tuple(keys), tuple(heads), tuple(out), tuple(units))
+
+
+#: The charge table's column of each of a charge's numbers.
+_AMOUNT_COLUMN = {"n": "mol", "m": "mass_kg", "V": "volume_L"}
+
+
+def charge_derivations_view(plan: "Plan") -> dict[str, tuple[tuple[ChargeDerivation, ...], dict]]:
+    """Step id -> (the derivation of each charge, the charge table's links to their lines).
+
+    Each charge's lines stop at the amounts another step derives (the demand on the
+    step, from the step that uses its product); such a factor links to the line that
+    derives it, in that step's charge.  Empty when the plan has no derivation.
+    """
+    from routeplan.views.derivation_text import step_explanations
+
+    shown, first = step_explanations(plan)
+    anchors = [f"d{si + 1}-{ci + 1}" for si, _sid, ci, _c, _ex in shown]
+    home = {origin: f"{anchors[k]}-{li + 1}" for origin, (k, li) in first.items()}
+    out: dict[str, tuple[list, dict]] = {}
+    for anchor, (_si, sid, ci, c, ex) in zip(anchors, shown):
+        derivations, links = out.setdefault(sid, ([], {}))
+        derivations.append(ChargeDerivation(
+            anchor, c.order, c.material, ex,
+            tuple(tuple(None if f.elsewhere is None else home.get(f.elsewhere) for f in line.factors)
+                  for line in ex.lines)))
+        for k, line in enumerate(ex.lines, 1):
+            if line.amount is not None:
+                links[(ci, _AMOUNT_COLUMN[line.amount])] = f"{anchor}-{k}"
+    return {sid: (tuple(d), links) for sid, (d, links) in out.items()}
 
 
 def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
@@ -461,13 +527,16 @@ def plan_report(plan: "Plan") -> Report:
     if plan.yield_basis != "expected":
         summary.append(("planned at", f"the steps' {plan.yield_basis} yields", "yield_basis", None))
     steps = []
+    derived = charge_derivations_view(plan)
     for sp in plan.steps:
         title = sp.id if not sp.name or sp.name == sp.id else f"{sp.id} · {sp.name}"
         extra = _step_sections(plan, sp)
+        derivations, links = derived.get(sp.id, ((), {}))
         steps.append(StepSection(
             id=sp.id, title=title, equation=sp.equation, yield_=sp.yield_, telescoped=not sp.isolated,
-            charges=charge_table(sp, route) if sp.runs else None, facts=_step_facts(plan, sp),
-            batches=sp.batches, fill=None if sp.batch is None else sp.batch.fill_fraction, extra=extra))
+            charges=charge_table(sp, route, links) if sp.runs else None, facts=_step_facts(plan, sp),
+            batches=sp.batches, fill=None if sp.batch is None else sp.batch.fill_fraction, extra=extra,
+            derivations=derivations))
     stock = ()
     if plan.stock is not None:
         from routeplan.views.stock_text import stock_lines
