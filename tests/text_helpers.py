@@ -18,14 +18,14 @@ def significant_figures(text: str, figures: int) -> int:
     """Significant figures a number as written carries, read with the module's rule.
 
     Every digit from the first non-zero one counts, trailing zeros after a decimal point
-    too.  A whole number from 10 000 up is written in full: its digits after the first
-    ``figures`` must all be zeros, which only hold the place.
+    too.  A whole number with more digits than ``figures`` is written in full: its digits
+    after the first ``figures`` must all be zeros, which only hold the place.
     """
     body = text.replace(" ", "").lstrip("-")
     if "e" in body:
         body = body.split("e")[0]
     digits = body.replace(".", "").lstrip("0")
-    if "." not in body and len(digits) > 4:
+    if "." not in body and len(digits) > figures:
         assert set(digits[figures:]) <= {"0"}, text  # nothing significant beyond the figures
         return figures
     return len(digits)

@@ -8,9 +8,10 @@ The one home of the rule the terminal (and any sentence a view builds) follows:
 * a share or ratio without a unit (yields and other percentages, kg/kg ratios such as the
   PMI, equivalents) is written to **3** significant figures (``63.4 %``, ``92.0 %``,
   ``38.6``, ``1.10``);
-* from 10 000 up, the number is rounded to those figures and written whole, its digits
-  grouped in threes by a space (``13 190``, ``1 234 000``): the zeros after the fourth
-  figure only hold the place.  Grouping by a space, never by a comma or a point, and not
+* a number too large for its figures after the decimal point is rounded to them and
+  written whole, the zeros after the last figure only holding the place (``1230`` for
+  1234.5 at 3 figures); from 10 000 up its digits are grouped in threes by a space
+  (``13 190``, ``1 234 000``).  Grouping by a space, never by a comma or a point, and not
   splitting a four-digit number, follows the SI Brochure (BIPM, 9th edition 2019,
   section 5.4.4);
 * below 0.0001, and from 10^15 up, the number is written with an exponent (``1.234e-05``);
@@ -59,8 +60,8 @@ def sig(value: float | None, figures: int = QUANTITY_FIGURES) -> str:
     --------
     >>> [sig(x) for x in (20.2, 0.6632, 2667.4, 13194.6, 0.0, 1e-6, None)]
     ['20.20', '0.6632', '2667', '13 190', '0', '1.000e-06', '–']
-    >>> sig(9999.7), sig(0.63412, 3), sig(100.0, 3)
-    ('10 000', '0.634', '100')
+    >>> sig(9999.7), sig(0.63412, 3), sig(100.0, 3), sig(1234.5, 3)
+    ('10 000', '0.634', '100', '1230')
     """
     if value is None:
         return "–"
@@ -75,9 +76,11 @@ def sig(value: float | None, figures: int = QUANTITY_FIGURES) -> str:
     rounded = round(value, figures - 1 - exponent)
     if abs(rounded) >= _GROUP_FROM:
         return _grouped(int(rounded))
+    if abs(rounded) >= 10 ** figures:  # whole, its last digits holding the place (1234 at 3 figures: 1230)
+        return str(int(rounded))
     text = f"{rounded:#.{figures}g}"
-    if "e" in text:  # 9999.7 at 4 figures rounds to 1.000e+04
-        return _grouped(int(round(rounded)))
+    if "e" in text:  # 999.96 at 4 figures rounds to 1.000e+03
+        return str(int(round(rounded)))
     return text.rstrip(".")
 
 

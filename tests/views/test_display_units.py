@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import re
+
 import pytest
 
 from conftest import ROOT, run_cli
@@ -78,3 +80,15 @@ def test_a_bad_value_exits_2_before_planning(command):
 def test_help_names_the_choices():
     out = run_cli("plan", "--help").stdout
     assert "--units" in out and "g,mmol,mL" in " ".join(out.split())
+
+
+@pytest.mark.parametrize("units", ["lab", "plant", "t,m3"])
+def test_explain_closes_on_the_numbers_plan_prints_in_the_same_units(units):
+    # the last line of explain is the plan's own row, digit for digit, whatever the units
+    table = run_cli("plan", DEMO, "--units", units).stdout
+    row = next(x for x in table.splitlines() if x.split()[:2] == ["2", "acetone"])
+    out = run_cli("explain", DEMO, "S2", "acetone", "--units", units).stdout.splitlines()
+    closing = next(x for x in out if x.startswith("= "))
+    numbers = [part.rsplit(" ", 1)[0] for part in closing[2:].split(" acetone")[0].split(", ")]
+    cells = re.split(r" {2,}", row.strip())  # columns are two spaces apart; 13 190 is one cell
+    assert numbers == cells[4:7], (closing, row)
