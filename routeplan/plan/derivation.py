@@ -19,6 +19,8 @@ import functools
 from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Mapping
 
+from routeplan.units import magnitude
+
 if TYPE_CHECKING:  # pragma: no cover
     import pint
 
@@ -303,9 +305,17 @@ class Derivation:
 
 def _unit_text(q) -> str:
     """The unit of ``q`` in pint's short form (``"g/mol"``), ``""`` for a pure number."""
+    return _units_text(q.units)
+
+
+@functools.lru_cache(maxsize=256)
+def _units_text(units) -> str:
+    """:func:`_unit_text` of a pint Unit, formatted once per unit."""
     import re
 
-    return "" if q.dimensionless else re.sub(r"\bl\b", "L", f"{q.units:~C}")  # litre as L (NIST SP 811)
+    if units.dimensionless:
+        return ""
+    return re.sub(r"\bl\b", "L", f"{units:~C}")  # litre as L (NIST SP 811)
 
 
 class _Builder:
@@ -345,7 +355,7 @@ class _Builder:
                 terms.insert(0, Factor("x", 1.0, "", "one", ""))
         facs = tuple(Factor("start" if i == 0 else f.op, f.value, f.unit, f.what, f.source, f.ref)
                      for i, f in enumerate(terms))
-        self.lines.append(Line(facs, float(t.q.m_as(unit)), unit, what))
+        self.lines.append(Line(facs, magnitude(t.q, unit), unit, what))
         self.index[id(t)] = len(self.lines) - 1
         return self.index[id(t)]
 
@@ -385,18 +395,23 @@ class _Builder:
         return [self._leaf(t, op)]
 
     def _terms(self, t: Traced, op: str) -> list[Factor]:
-        left, right = t.node[1], t.node[2]
-        other = op if t.node[0] == "add" else ("-" if op == "+" else "+")
-        return self._term(left, op) + self._term(right, other)
-
-    def _term(self, t: Traced, op: str) -> list[Factor]:
-        if id(t) in self.names:
-            return [self._ref(t, op)]
-        if t.node[0] in ("add", "sub") and not _is_overage(t):
-            return self._terms(t, op)
-        if t.node[0] == "leaf":
-            return [self._leaf(t, op)]
-        return [self._auto(t, op, _lead_what(t) or "term")]
+        """The terms of the sum ``t``, left to right, without recursion: a raw material
+        charged in every step of a long route sums thousands of charges."""
+        out: list[Factor] = []
+        todo = [(t, op, True)]
+        while todo:
+            node, sign, top = todo.pop()
+            if not top and id(node) in self.names:
+                out.append(self._ref(node, sign))
+            elif node.node[0] in ("add", "sub") and not _is_overage(node):
+                other = sign if node.node[0] == "add" else ("-" if sign == "+" else "+")
+                todo.append((node.node[2], other, False))
+                todo.append((node.node[1], sign, False))  # popped first: left before right
+            elif node.node[0] == "leaf":
+                out.append(self._leaf(node, sign))
+            else:
+                out.append(self._auto(node, sign, _lead_what(node) or "term"))
+        return out
 
 
 def _lead_what(t: Traced) -> str | None:

@@ -339,11 +339,19 @@ def scheme_layout(plan: "Plan") -> Scheme:
     # order: depth-first from the sinks up through the inputs, then barycentre sweeps
     seen: dict[str, int] = {}
 
-    def visit(n: str) -> None:
-        for p in sorted(g.predecessors(n), key=rank):
-            if p not in seen:
-                visit(p)
-        seen[n] = len(seen)
+    def visit(root: str) -> None:
+        # post-order, inputs first; a stack, not recursion: a long linear route is deeper
+        # than Python's recursion limit
+        stack = [(root, iter(sorted(g.predecessors(root), key=rank)))]
+        while stack:
+            n, inputs = stack[-1]
+            for p in inputs:
+                if p not in seen:
+                    stack.append((p, iter(sorted(g.predecessors(p), key=rank))))
+                    break
+            else:
+                stack.pop()
+                seen[n] = len(seen)
 
     sinks = sorted((n for n in g if g.out_degree(n) == 0), key=lambda n: (not g.nodes[n].get("target"), rank(n)))
     for s in sinks:

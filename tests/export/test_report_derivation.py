@@ -180,14 +180,14 @@ def test_an_amount_of_another_step_links_to_its_derivation(browser, pages):
     b = browser
     b.open(path)
     # textContent: the text of a closed derivation is not rendered
-    links = b.evaluate("""[...document.querySelectorAll('details.derivation td.source a')]
+    links = b.evaluate("""[...document.querySelectorAll('details.derivation td:nth-child(6) a')]
         .filter(a => a.textContent.startsWith('derived in '))
         .map((a, i) => ({i, what: a.closest('tr').cells[4].textContent,
                          value: parseFloat(a.closest('tr').cells[2].textContent),
                          to: a.textContent.slice('derived in '.length)}))""")
     assert len(links) >= 4
     for link in links:
-        anchor = (f"[...document.querySelectorAll('details.derivation td.source a')]"
+        anchor = (f"[...document.querySelectorAll('details.derivation td:nth-child(6) a')]"
                   f".filter(a => a.textContent.startsWith('derived in '))[{link['i']}]")
         b.evaluate(f"{anchor}.closest('details').open = true")  # as a reader would, to see the link
         click(b, anchor)
@@ -212,7 +212,7 @@ def test_a_shared_intermediate_shows_the_sum_of_both_branches(browser, pages):
     assert float(total[-1][2]) == float(f"{charged['S2'] + charged['S3']:.4g}")
     # each branch opens its own step's derivation
     for step in ("S2", "S3"):
-        click(b, f"[...document.querySelectorAll('section.step[data-step=\"S1\"] details[data-material=\"PhCOOH\"] td.source a')]"
+        click(b, f"[...document.querySelectorAll('section.step[data-step=\"S1\"] details[data-material=\"PhCOOH\"] td:nth-child(6) a')]"
                  f".find(a => a.innerText === 'derived in {step}')")
         line = target_line(b)
         assert line["open"] and line["step"] == step and line["what"] == f"BzCl charged to {step}"
@@ -224,7 +224,7 @@ def test_markup_in_the_route_files_name_is_shown_as_text(browser, pages):
     b = browser
     b.open(path)
     click(b, "document.querySelector('details.derivation summary')")
-    sources = b.evaluate("[...document.querySelectorAll('details.derivation[open] td.source')].map(td => td.innerText)")
+    sources = b.evaluate("[...document.querySelectorAll('details.derivation[open] tbody tr:not(.result) td:nth-child(6)')].map(td => td.innerText)")
     assert any(HOSTILE_NAME in s for s in sources), sources[:5]
     assert b.evaluate("document.querySelectorAll('img').length") == 0
     assert b.evaluate("document.title") != "1"

@@ -153,3 +153,16 @@ def test_ordered_placement_is_the_isotonic_regression(items, gap):
     assert np.allclose(got, ref, atol=1e-6)
     for i in range(1, len(got)):
         assert got[i] - got[i - 1] >= (widths[i - 1] + widths[i]) / 2 + gap - 1e-6
+
+
+def test_a_route_longer_than_the_recursion_limit_is_laid_out():
+    # 1100 steps in a line: deeper than Python's recursion limit (1000 frames); every
+    # step gets a box, each below the one before, from the raw materials down
+    n = 1100
+    plan = routeplan.plan_route(load_route_text(linear_route(n).replace("yield: 97 %", "yield: 99.9 %"),
+                                                "long.yaml"))
+    layout = scheme_layout(plan)
+    steps = [b for b in layout.nodes if b.kind == "step"]
+    assert len(steps) == n
+    ys = [b.y for b in sorted(steps, key=lambda b: int(b.step[1:]))]
+    assert ys == sorted(ys) and len(set(ys)) == n  # each step below the one before

@@ -259,3 +259,20 @@ def test_the_rest_of_a_recorded_campaign_multiplies_out(record_yields):
     plan = plan_route(route, record=ROOT / "demo_routes" / "record.yaml", record_yields=record_yields,
                       explain=True)
     assert check_plan(plan) > 0
+
+
+def test_a_route_longer_than_the_recursion_limit_is_derived():
+    # 1500 steps in a line, each charging THF: the raw material's mass over the campaign is
+    # one sum of 1500 charges (no recursion over the sum), and it is the plan's
+    from plan_bench import linear_route
+
+    n = 1500
+    route = load_route_text(linear_route(n).replace("yield: 97 %", "yield: 99.9 %"), "long.yaml")
+    plan = plan_route(route, explain=True)
+    lines = plan.derivation.chain(("raw", "THF", "m"))
+    total = lines[-1]
+    assert len(total.factors) == sum(c.material == "THF" for sp in plan.steps for c in sp.charges) >= n
+    assert all(f.ref is not None for f in total.factors)
+    raw = next(r for r in plan.raw_materials if r.material == "THF")
+    assert total.value == pytest.approx(raw.m_kg, rel=1e-12)
+    assert sum(lines[f.ref].value for f in total.factors) == pytest.approx(raw.m_kg, rel=1e-12)
