@@ -6,22 +6,13 @@ from __future__ import annotations
 
 import io
 import sys
-import time
 
 from conftest import ROOT
 
 sys.path.insert(0, str(ROOT / "bench"))
 
+from engine_bench import best as _best  # noqa: E402  the bench's best-of timing
 from plan_bench import linear_route  # noqa: E402
-
-
-def _best(fn, repeat: int) -> float:
-    out = float("inf")
-    for _ in range(repeat):
-        t = time.perf_counter()
-        fn()
-        out = min(out, time.perf_counter() - t)
-    return out
 
 
 def test_two_hundred_steps_print_in_a_few_plans_time():
