@@ -200,9 +200,9 @@ def write_csv(plan: "Plan", folder: str | os.PathLike, *, written: datetime | No
     for i, sp in enumerate(plan.steps, start=1):
         paths.append(write_table(out_dir / step_file_name(i, sp.id), CHARGE_COLUMNS, step_charge_rows(sp)))
     paths.append(write_table(out_dir / "raw-materials.csv", raw_export_columns(plan), raw_export_rows(plan)))
-    from routeplan.views.purchase_rows import PURCHASE_COLUMNS, purchase_rows
+    from routeplan.views.purchase_rows import purchase_columns, purchase_rows
 
-    paths.append(write_table(out_dir / "purchases.csv", PURCHASE_COLUMNS, purchase_rows(plan)))
+    paths.append(write_table(out_dir / "purchases.csv", purchase_columns(plan), purchase_rows(plan)))
     paths.append(write_table(out_dir / "materials.csv", material_columns(plan), material_rows(plan)))
     from routeplan.views.safety_text import SAFETY_COLUMNS, safety_rows
 

@@ -34,6 +34,7 @@ def _charge(c, batches: int) -> dict[str, Any]:
         "basis_value": c.basis_value,
         "intermediate": c.intermediate,
         "carried_from": c.carried_from,
+        "leaves": c.leaves,
         "per_batch": {
             "mol": _per(magnitude(c.mol, "mol"), batches),
             "mass_kg": _per(magnitude(c.mass, "kg"), batches),
@@ -87,6 +88,8 @@ def _step(sp) -> dict[str, Any]:
         "batches": batches,
         "batch_volume_L": None if b is None else magnitude(b.batch_volume, "L"),
         "fill_fraction": None if b is None else b.fill_fraction,
+        "transfer_volume_L": None if b is None else magnitude(b.transfer_volume, "L"),
+        "transfer_mass_kg": None if b is None else magnitude(b.transfer_mass, "kg"),
         "charges": [_charge(c, batches) for c in sp.charges],
         "from_stock_mol": magnitude(sp.from_stock_mol, "mol"),
         "from_stock_kg": magnitude(sp.from_stock_mass, "kg"),
@@ -140,7 +143,7 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
             "limited_by": s.limited_by,
             "to_buy": [{"material": k, "mass_kg": magnitude(m, "kg")} for k, m in s.to_buy],
             "on_hand": [{"material": k, "mass_kg": magnitude(m, "kg")} for k, m in s.on_hand.items()],
-            "not_in_stock": [r.material for r in plan.raw_materials if r.material not in s.on_hand],
+            "not_in_stock": [r.material for r in plan.raw_materials if r.material not in s.on_hand and r.bought],
             "intermediates": [
                 {"material": sp.product, "step": sp.id, "on_hand_kg": magnitude(s.on_hand[sp.product], "kg"),
                  "taken_kg": magnitude(sp.from_stock_mass, "kg"), "taken_mol": magnitude(sp.from_stock_mol, "mol"),
@@ -217,13 +220,16 @@ def plan_to_json(plan: "Plan", *, indent: int = 2) -> str:
 
 
 def _buying(r) -> dict[str, Any]:
-    """The buying keys of a raw material: ``bought``, ``pack`` (``{"mass_kg": ...}`` or
-    ``{"volume_L": ...}``, null without one), ``packs`` [-] and ``ordered`` (the same form
-    as ``pack``)."""
+    """The buying keys of a raw material: ``bought``, ``stock_kg`` (what the stock gives,
+    null without a stock list naming it), ``to_buy`` (``{"mass_kg", "volume_L"}``: the
+    need less the stock), ``pack`` (``{"mass_kg": ...}`` or ``{"volume_L": ...}``, null
+    without one), ``packs`` [-] (covering ``to_buy``) and ``ordered`` (the same form as
+    ``pack``)."""
 
     def size(q):
         if q is None:
             return None
         return {"mass_kg": magnitude(q, "kg")} if q.check("[mass]") else {"volume_L": magnitude(q, "L")}
 
-    return {"bought": r.bought, "pack": size(r.pack), "packs": r.packs, "ordered": size(r.ordered)}
+    return {"bought": r.bought, "stock_kg": r.stock_m_kg, "to_buy": {"mass_kg": r.buy_m_kg, "volume_L": r.buy_V_L},
+            "pack": size(r.pack), "packs": r.packs, "ordered": size(r.ordered)}

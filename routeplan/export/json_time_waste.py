@@ -11,7 +11,9 @@ the others are additions:
 * ``waste``: ``aqueous_kg``, ``organic_kg``, ``halogenated_kg``, ``residue_kg``
   (contract), plus ``gas_kg`` (by-products leaving as gas, part of the residue),
   ``inputs_kg``, ``product_kg``, ``waste_kg`` and ``steps`` (per step, over the
-  campaign and per batch, with the by-products from the equation).
+  campaign and per batch, with the by-products from the equation and ``separated_kg``
+  and ``separated_materials``: the charges that left the vessel right after they were
+  charged, ``leaves: true``, part of the streams).
 * ``cost_of_goods``: ``raw_materials``, ``plant``, ``waste``, ``per_kg`` (contract, in
   ``currency``), plus ``currency``, ``unpriced`` (per part, what has no price) and
   ``per_kg_by_part``.
@@ -66,6 +68,8 @@ def waste_dict(plan: "Plan") -> dict[str, Any] | None:
         "steps": [{"step": sw.step, "batches": sw.batches, "inputs_kg": sw.inputs_kg,
                    "product_kg": sw.product_kg, "waste_kg": sw.waste_kg, **_streams(sw.campaign),
                    "gas_kg": sw.gas_kg,
+                   "separated_kg": sw.separated_kg,
+                   "separated_materials": list(sw.separated_materials),
                    "per_batch": None if sw.per_batch is None else _streams(sw.per_batch),
                    "stream_materials": {k: list(v) for k, v in sw.stream_materials.items()},
                    "by_products": [{"material": b.material, "mol": b.mol, "mass_kg": b.mass_kg, "gas": b.gas}

@@ -210,20 +210,27 @@ def _outside_rule(r: int) -> str:
 
 
 def role_text(row: dict[str, Any]) -> str:
-    """The role cell of a charge: its role, ``limiting reagent``, and where an
-    intermediate comes from (``made in S1``, or for one carried in solution
-    ``in solution from S3: transfer the whole mixture; mass = content, not weighed``).
+    """The role cell of a charge: its role, ``limiting reagent``, where an intermediate
+    comes from (``made in S1``, or for one carried in solution ``in solution from S3:
+    transfer the whole mixture; mass = content, not weighed``, the transfer as the row's
+    ``transfer`` says it), and for a charge that leaves the row's ``leaves_note``.
 
     Examples
     --------
     >>> role_text({"role": "reactant", "limiting": True, "made_in": "S3", "rule": "carried"})
     'reactant, limiting reagent, in solution from S3: transfer the whole mixture; mass = content, not weighed'
+    >>> role_text({"role": "workup", "limiting": False, "made_in": None, "rule": "volumes",
+    ...            "leaves_note": "separated and discarded right after this line, not transferred"})
+    'workup, separated and discarded right after this line, not transferred'
     """
     parts = [row["role"]]
     if row["limiting"]:
         parts.append("limiting reagent")
+    if row.get("leaves_note"):
+        parts.append(row["leaves_note"])
     if row["rule"] == "carried":
-        parts.append(f"in solution from {row['made_in']}: transfer the whole mixture; mass = content, not weighed")
+        how = row.get("transfer") or "transfer the whole mixture"
+        parts.append(f"in solution from {row['made_in']}: {how}; mass = content, not weighed")
     elif row["rule"] == "gas":
         parts.append("gas: charge the normal volume (0 °C, 101.325 kPa); mass not weighed")
     elif row["made_in"]:
@@ -347,8 +354,8 @@ def _lot_cell(ws, st: Styles, row: dict[str, Any], r: int, mass_f: str | None) -
         })
     else:
         put(ws, r, lot_col, None, st.not_used)
-        message = (f"This charge is the reaction mixture of step {row['made_in']}, transferred whole: "
-                   "no lot assay applies." if carried else
+        message = (f"This charge is the reaction mixture of step {row['made_in']} "
+                   f"({row.get('transfer') or 'transfer the whole mixture'}): no lot assay applies." if carried else
                    "A gas is charged by its normal volume: no lot assay applies." if row["rule"] == "gas"
                    else _RECORDED_ONLY)
         ws.data_validation(r, lot_col, r, lot_col, {

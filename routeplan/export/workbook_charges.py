@@ -28,6 +28,7 @@ from typing import TYPE_CHECKING, Any
 
 from routeplan.views.safety_text import SCREENING_NOTE, sheet_safety_pairs
 from routeplan.views.sheet_rows import batch_charge_rows
+from routeplan.views.transfer_text import transfer_text
 from routeplan.export.workbook_charge_table import (COL, FILL_IN_COLUMNS, INPUT_KEYS, LAST_COLUMN,
                                                     PRINT_LAST_COLUMN, PRINTED_COLUMNS, REFERENCE_COLUMNS,
                                                     SHEET_COLUMNS, charge_formulas, limiting_mol_formula,
@@ -169,7 +170,7 @@ def write_charge_sheet(ws, st: Styles, plan: "Plan", sp: "StepPlan", k: int | No
     pair(7, _LEFT, "limiting reagent", sp.limiting)
     pair(7, _RIGHT, "limiting reagent per batch [mol]", lim_mol, st.quantity(lim_mol, plain=True))
     product_kg = float(sp.product_mass.m_as("kg")) / n
-    made = "as isolated" if sp.isolated else "in solution, goes on to the next step"
+    made = "as isolated" if sp.isolated else (transfer_text(plan, sp) or "in solution, goes on to the next step")
     pair(8, _LEFT, "product", f"{sp.product}, {made}")
     pair(8, _RIGHT, "product per batch [kg]", product_kg, st.quantity(product_kg, plain=True))
     pair(9, _WIDE, "route", context["route_line"])

@@ -31,7 +31,7 @@ from routeplan.views.sheet_rows import STEP_METRIC_COLUMNS, STOCK_COLUMNS, mater
 from routeplan.export.workbook_records import protect
 from routeplan.export.workbook_styles import Styles, fit_widths, lines_height, put, sheet_title, wrapped_lines
 from routeplan.views.mass_intensity_rows import MASS_INTENSITY_COLUMNS, mass_intensity_rows, step_intensity_lines
-from routeplan.views.purchase_rows import PURCHASE_COLUMNS, not_bought_note, purchase_rows
+from routeplan.views.purchase_rows import not_bought_note, purchase_columns, purchase_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -423,8 +423,11 @@ def _stock_table(sh: _Sheet, r: int, rows: list[dict[str, Any]]) -> int:
         put(ws, r, ci["need_kg"], row["need_kg"], st.quantity(row["need_kg"]))
         put(ws, r, ci["on_hand_kg"], row["on_hand_kg"], st.input_quantity(row["on_hand_kg"]))
         need, have = ref(r, ci["need_kg"]), ref(r, ci["on_hand_kg"])
-        ws.write_formula(r, ci["to_buy_kg"], f"=MAX(0,{need}-{have})", st.quantity(row["to_buy_kg"], bold=True),
-                         row["to_buy_kg"])
+        if row["to_buy_kg"] is None:  # not bought: nothing to buy, whatever is on hand
+            put(ws, r, ci["to_buy_kg"], None, st.cell_text)
+        else:
+            ws.write_formula(r, ci["to_buy_kg"], f"=MAX(0,{need}-{have})",
+                             st.quantity(row["to_buy_kg"], bold=True), row["to_buy_kg"])
         ws.merge_range(r, status, r, status + _STATUS_SPAN, "", st.cell_text)
         put(ws, r, status, row["status"], st.cell_text)
         sh.fit_row(r, {0: row["material"], 1: row["name"], status: row["status"]},
@@ -463,18 +466,21 @@ def _mass_intensity(sh: _Sheet, plan: "Plan", r: int) -> int:
 
 
 def _purchases(sh: _Sheet, plan: "Plan", r: int, out: dict[str, int]) -> int:
-    """The purchase list: bought materials, need in kg and in L, pack, packs to order and
-    what they hold; then the note on materials not bought.  Return the last row."""
+    """The purchase list: bought materials, need in kg and in L (with a stock list, what
+    the stock gives and what is left to buy), pack, packs to order and what they hold;
+    then the note on materials not bought.  Return the last row."""
     ws, st = sh.ws, sh.st
     rows = purchase_rows(plan)
+    cols = purchase_columns(plan)
     r += 2
-    put(ws, r, 0, "To order, whole campaign (packs cover the need)", st.subtitle)
+    put(ws, r, 0, "To order, whole campaign (packs cover what is left to buy after the stock file's amounts)"
+        if plan.stock is not None else "To order, whole campaign (packs cover the need)", st.subtitle)
     r += 1
     out["purchases"] = r
-    sh.headings(r, [sheet_title(c) for c in PURCHASE_COLUMNS])
+    sh.headings(r, [sheet_title(c) for c in cols])
     for row in rows:
         r += 1
-        for i, col in enumerate(PURCHASE_COLUMNS):
+        for i, col in enumerate(cols):
             v = row[col.key]
             fmt = (st.integer if col.key == "packs" else st.quantity(v) if isinstance(v, float) else st.cell_text)
             put(ws, r, i, v, fmt)

@@ -1,14 +1,17 @@
 """Campaign sizing: the volume of each step and its batches in its vessel.
 
 Volume of a step
-    The largest volume in the vessel is taken as the sum of the volumes of every charge
-    that has one (solvents, liquids with a density, solutions, and solids with a
-    density), plus, for a step that charges the product of a telescoped step, the whole
-    volume carried in from that step (in proportion to the share of that product the
-    step takes).  Work-up charges (quench water, washes) count too: they are added to
-    the same vessel, and counting them all is the safe side when the aqueous layer is
-    not drained between additions.  A charge without a known volume (a solid without a
-    density, an isolated intermediate without a density) is left out, with a note.
+    The largest volume in the vessel over the campaign (:func:`routeplan.plan.core.contents`,
+    the arithmetic core): the charges in order of addition, each adding its volume
+    (solvents, liquids with a density, solutions, and solids with a density), a step that
+    charges the product of a telescoped step adding the volume of that step's mixture as
+    it is at the transfer (in proportion to the share of that product the step takes).
+    Work-up charges (quench water, washes) count too: they are added to the same vessel.
+    A work-up charge that leaves (``leaves: true``: a wash layer separated and
+    discarded, a filter aid filtered off) is taken out right after it is charged, before
+    the next line, so it counts while it is in the vessel and is not carried on.  A
+    charge without a known volume (a solid without a density, an isolated intermediate
+    without a density) is left out, with a note.
 
 Batches
     ``batches = ceil(step volume / (vessel volume * max_fill))`` for a step with a
@@ -58,12 +61,12 @@ class Sized:
     Attributes
     ----------
     V_L : float
-        Largest volume in the vessel over the campaign [L].
+        Largest volume in the vessel over the campaign [L] (its fullest).
     notes : tuple of str
         What was left out of the volume and why, what came in solution.
-    carried_in : Mapping[int, tuple[str, float]]
+    carried_in : Mapping[int, tuple[str, float or None]]
         Charge index (0-based) -> (id of the telescoped step, volume of its mixture
-        carried in [L]).
+        carried in [L], None when that mixture has no known volume).
     batches : int
         Number of batches [-] (0 for a step that does not run).
     fill : float or None
@@ -72,61 +75,59 @@ class Sized:
         Mass that takes part in the reaction over the campaign [kg]: every charge but
         ``role: workup`` (a catalyst and a gas taken up included); a telescoped mixture
         at everything charged to the step that made it less the gas that step evolved
-        (``phase: gas`` products at full conversion,
-        :func:`routeplan.plan.safety.evolved_gas_mass_kg`), in proportion to the share
-        of its product taken (ROUTE-FORMAT.md, "Readings fixed for the extensions").
+        (``phase: gas`` products at full conversion) and any charge that left before the
+        transfer, in proportion to the share of its product taken (ROUTE-FORMAT.md,
+        "Readings fixed for the extensions").
+    transfer_V_L, transfer_m_kg : float or None
+        For a telescoped step, the volume [L] and mass [kg] of the mixture that goes on
+        (the charges that stay, less the gas evolved); None for an isolated step (and
+        the volume None where no charge has one).
     """
 
     V_L: float
     notes: tuple[str, ...]
-    carried_in: Mapping[int, tuple[str, float]]
+    carried_in: Mapping[int, tuple[str, float | None]]
     batches: int
     fill: float | None
     reaction_m_kg: float
+    transfer_V_L: float | None = None
+    transfer_m_kg: float | None = None
 
 
 def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list[Problem]]:
     """Volumes, reaction masses and batches of every step, and the warnings.
 
-    In execution order, so a telescoped step is sized before the step that takes its
-    mixture.  A step that does not run gets 0 batches, no fill and no warning.
+    The volumes and masses are the core's (:func:`routeplan.plan.core.contents`); a step
+    that does not run gets 0 batches, no fill and no warning.
     """
     from routeplan.units import unit
 
-    from routeplan.plan.safety import evolved_gas_mass_kg
+    from routeplan.plan.core import contents
 
-    L = unit("L")
-    maker = route.maker
-    nominal_L = {k: float(v.volume.m_as(L)) for k, v in route.equipment.items()}
+    nominal_L = {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
+    held = contents(walked.core, walked.steps)
     out: dict[str, Sized] = {}
-    charged: dict[str, float] = {}  # everything charged to a step [kg]
     warnings: list[Problem] = []
     for sid, w in walked.steps.items():
         step = route.step(sid)
-        V_total, m_rxn, m_all = 0.0, 0.0, 0.0
+        h = held[sid]
         notes: list[str] = []
-        carried_in: dict[int, tuple[str, float]] = {}
-        for i, (c, (n, m, V)) in enumerate(zip(w.step.charges, w.charges)):
-            src = maker.get(c.material) if c.intermediate else None
-            if src is not None and not route.step(src).isolated:
-                made = walked.steps[src].n_product
-                share = n / made if made > 0 and n is not None else 1.0
-                V_in = out[src].V_L * share
-                V_total += V_in
-                carried_in[i] = (src, V_in)
-                m = charged[src] * share  # the whole mixture comes in
-                notes.append(f"{c.material} comes in solution from {src}: "
-                             f"{out[src].V_L * share:.4g} L of its mixture carried in")
-            elif V is not None:
-                V_total += V
-            else:
+        carried_in: dict[int, tuple[str, float | None]] = {}
+        for i, (c, V) in enumerate(zip(w.step.charges, h.lines_V)):
+            if c.carried_from is not None:
+                carried_in[i] = (c.carried_from, V)
+                notes.append(f"{c.material} comes in solution from {c.carried_from}: "
+                             + ("its mixture, of no known volume, carried in" if V is None else
+                                f"{V:.4g} L of its mixture carried in"))
+            elif V is None:
                 notes.append(f"{c.material} has no density, so its volume is left out")
-            m_all += m
-            if step.charges[i].role != "workup":
-                m_rxn += m
-        charged[sid] = m_all - evolved_gas_mass_kg(route, sid, w.n_lim)  # the gas leaves the mixture
+        V_total = 0.0 if h.fullest_V is None else h.fullest_V
+        telescoped = not step.isolated
+        parts = dict(reaction_m_kg=h.reaction_m,
+                     transfer_V_L=h.transfer_V if telescoped else None,
+                     transfer_m_kg=h.transfer_m if telescoped else None)
         if sid in walked.not_run:
-            out[sid] = Sized(V_total, (), carried_in, 0, None, m_rxn)
+            out[sid] = Sized(V_total, (), carried_in, 0, None, **parts)
             continue
         vessel = route.equipment.get(step.vessel) if step.vessel else None
         if vessel is None:
@@ -155,7 +156,7 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
                     f"{per_batch / shown:.3g} times the largest batch run so far ({shown:.4g} kg)",
                     location=step.location, step=sid,
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
-        out[sid] = Sized(V_total, tuple(notes), carried_in, batches, fill, m_rxn)
+        out[sid] = Sized(V_total, tuple(notes), carried_in, batches, fill, **parts)
     return out, warnings
 
 

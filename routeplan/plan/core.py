@@ -38,6 +38,8 @@ __all__ = [
     "charge_amounts",
     "WalkStep",
     "walk",
+    "Contents",
+    "contents",
 ]
 
 Number = Any  # float, numpy array or pint Quantity
@@ -102,6 +104,10 @@ class CoreCharge:
 
     ``factor`` is the basis as a number with its unit: equiv [-] for the molar bases,
     volumes [L/kg] (litres per kg of limiting reagent as charged), mass ratio [kg/kg].
+    ``carried_from`` is the id of the telescoped step whose mixture brings this
+    intermediate in solution (None otherwise); ``leaves`` marks a work-up charge that
+    leaves the vessel right after it is charged (``leaves: true``); ``workup`` a line of
+    ``role: workup`` (not in the reaction mass).
     """
 
     material: str
@@ -109,11 +115,19 @@ class CoreCharge:
     factor: Number
     form: Form
     intermediate: bool
+    carried_from: str | None = None
+    leaves: bool = False
+    workup: bool = False
 
 
 @dataclass(frozen=True)
 class CoreStep:
-    """One step as numbers: ``nu_ratio = nu_product / nu_limiting`` [-], ``yield_`` [-]."""
+    """One step as numbers: ``nu_ratio = nu_product / nu_limiting`` [-], ``yield_`` [-].
+
+    ``gases`` holds, for each product of the equation with ``phase: gas`` and a molar
+    mass, ``(nu_gas / nu_limiting [-], M [kg/mol])``: the gas evolved at full conversion
+    leaves the mixture (:func:`contents`).
+    """
 
     id: str
     product: str
@@ -123,6 +137,7 @@ class CoreStep:
     product_form: Form
     limiting_form: Form
     charges: tuple[CoreCharge, ...]
+    gases: tuple = ()
 
 
 @dataclass(frozen=True)
@@ -212,15 +227,25 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
                 factor = quantity(c.value, "kg/kg", ("mass_ratio", step, c))
             else:
                 factor = quantity(c.equiv, "", ("equiv", step, c))
-            charges.append(CoreCharge(c.material, str(c.basis), factor, form(c.material),
-                                      route.is_intermediate(c.material)))
+            intermediate = route.is_intermediate(c.material)
+            src = route.maker.get(c.material) if intermediate else None
+            charges.append(CoreCharge(c.material, str(c.basis), factor, form(c.material), intermediate,
+                                      carried_from=src if src is not None and not route.step(src).isolated else None,
+                                      leaves=c.leaves, workup=c.role == "workup"))
         eq = step.equation
+        nu_lim = eq.coefficient(step.limiting)
+        gases = []
+        for t in eq.products:
+            mat = route.materials[t.key]
+            if mat.phase == "gas" and mat.molar_mass is not None:
+                gases.append((quantity(t.coefficient / nu_lim, "", ("gas_ratio", step, t.key)),
+                              quantity(magnitude(mat.molar_mass, "kg/mol"), "kg/mol", ("molar_mass", mat))))
         steps.append(CoreStep(
             id=sid, product=step.product, limiting=step.limiting,
             nu_ratio=quantity(eq.coefficient(step.product) / eq.coefficient(step.limiting), "", ("nu_ratio", step)),
             yield_=quantity(y, "", ("yield", step, str(yields) if chosen is not None else "expected")),
             product_form=form(step.product), limiting_form=form(step.limiting),
-            charges=tuple(charges)))
+            charges=tuple(charges), gases=tuple(gases)))
     tgt = route.materials[route.target.material]
     if tgt.molar_mass is None:  # the loader forbids this; kept as a guard
         raise PlanError(f"target '{tgt.key}' has no molar mass")
@@ -351,3 +376,136 @@ def walk(core: CoreRoute, n_target_mol: Number, shelf_mol: Mapping[str, Number] 
                 demand[c.material] = demand.get(c.material, zero) + n
         out[s.id] = WalkStep(s, n_p, taken, n_lim, m_lim, lines)
     return {s.id: out[s.id] for s in core.steps}
+
+
+# ------------------------------------------------------------- what each vessel holds
+
+
+def _is_array(x: Any) -> bool:
+    """True for a numpy array (not a pint Quantity, not a recording number)."""
+    return getattr(x, "shape", ()) != () and not hasattr(x, "units") and hasattr(x, "dtype")
+
+
+def _larger(a: Number | None, b: Number) -> Number:
+    """The larger of ``a`` and ``b`` (``b`` when ``a`` is None; element by element on arrays)."""
+    if a is None:
+        return b
+    if _is_array(a) or _is_array(b):
+        import numpy as np
+
+        return np.maximum(a, b)
+    return b if b > a else a
+
+
+def _plus(a: Number | None, b: Number) -> Number:
+    """``a + b``, starting from ``b`` when ``a`` is None (no unitless zero to add to)."""
+    return b if a is None else a + b
+
+
+def _share(n: Number, made: Number) -> Number:
+    """Share of a telescoped step's product that a line takes [-]: ``n / made``, 1 when
+    nothing is made (a step with no demand carries nothing anyway)."""
+    if n is made:  # the only line that takes it (a recording number: no "x n / n" in a derivation)
+        return 1.0
+    if _is_array(n) or _is_array(made):
+        import numpy as np
+
+        with np.errstate(divide="ignore", invalid="ignore"):
+            return np.where(made > 0, n / np.where(made > 0, made, 1.0), 1.0)
+    return n / made if made > made * 0 else 1.0  # a zero in made's own unit (pint, recording numbers)
+
+
+@dataclass(frozen=True)
+class Contents:
+    """What the vessel of one step holds over the campaign.
+
+    Attributes
+    ----------
+    lines_V : tuple
+        Per charge line, the volume it brings into the vessel [L] or None (no density):
+        its own volume, or for a line carried in solution from a telescoped step the
+        volume of that step's mixture that comes with it.
+    lines_m : tuple
+        Per charge line, the mass it brings in [kg]: its mass as charged, or the mass of
+        the mixture carried in.
+    fullest_V : Number or None
+        Largest volume in the vessel [L]: the lines in order of addition, each line that
+        leaves taken out again right after it is charged; None when no line has a volume.
+    transfer_V : Number or None
+        Volume at the end, what goes on to the next step when the step is telescoped [L]:
+        the lines that stay.
+    transfer_m : Number
+        Mass at the end [kg]: the lines that stay, less the gas evolved.
+    reaction_m : Number
+        Reaction mass [kg]: every line but ``role: workup``, a mixture carried in at its
+        mass.
+    gas_m : Number or None
+        Gas evolved at full conversion [kg]; None for a step that evolves none.
+    """
+
+    lines_V: tuple
+    lines_m: tuple
+    fullest_V: Number | None
+    transfer_V: Number | None
+    transfer_m: Number
+    reaction_m: Number
+    gas_m: Number | None
+
+
+def contents(core: CoreRoute, steps: Mapping[str, WalkStep]) -> dict[str, Contents]:
+    """What every step's vessel holds, in execution order, from the walk's numbers.
+
+    A line carried in solution from a telescoped step brings that step's mixture as it
+    is at the transfer, in proportion to the share of its product the line takes
+    (``share = n charged / n made``): ``V = transfer_V(src) * share``,
+    ``m = transfer_m(src) * share``.  In order of addition the vessel gains each line's
+    volume; a line that leaves (``leaves: true``) is taken out again right after it is
+    charged, so it counts in the fullest volume but not in what is transferred.  At the
+    end, ``transfer_V`` is the sum of the lines that stay and ``transfer_m`` their mass
+    less the gas evolved (``nu_gas / nu_lim * n_lim * M`` at full conversion).  The
+    reaction mass counts every line but ``role: workup``.  Plain arithmetic only, as
+    the walk: floats, numpy arrays and pint Quantities alike.
+
+    Parameters
+    ----------
+    core : CoreRoute
+        The compiled route.
+    steps : Mapping[str, WalkStep]
+        The walk (:func:`walk`).
+
+    Returns
+    -------
+    dict
+        Step id -> :class:`Contents`, in execution order.
+    """
+    out: dict[str, Contents] = {}
+    for s in core.steps:
+        w = steps[s.id]
+        held = fullest = stays_V = stays_m = m_rxn = None
+        lines_V, lines_m = [], []
+        for c, (n, m, V) in zip(s.charges, w.charges):
+            if c.carried_from is not None:
+                src = out[c.carried_from]
+                share = _share(n, steps[c.carried_from].n_product)  # [mol] / [mol]
+                V = None if src.transfer_V is None else src.transfer_V * share  # [L] * [-]
+                m = src.transfer_m * share  # [kg] * [-]
+            lines_V.append(V)
+            lines_m.append(m)
+            if V is not None:
+                held = _plus(held, V)  # [L]
+                fullest = _larger(fullest, held)
+            if c.leaves:
+                if V is not None:
+                    held = held - V  # separated right after it is charged [L]
+                continue
+            if V is not None:
+                stays_V = _plus(stays_V, V)  # [L]
+            stays_m = _plus(stays_m, m)  # [kg]
+            if not c.workup:
+                m_rxn = _plus(m_rxn, m)  # [kg]
+        gas = None
+        for ratio, M in s.gases:
+            gas = _plus(gas, ratio * w.n_lim * M)  # [-] * [mol] * [kg/mol] = [kg]
+        out[s.id] = Contents(tuple(lines_V), tuple(lines_m), fullest, stays_V,
+                             stays_m if gas is None else stays_m - gas, m_rxn, gas)
+    return out

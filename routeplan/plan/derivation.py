@@ -190,6 +190,9 @@ def _label(route: "Route", what: tuple) -> tuple[str, str]:
     if kind == "nu_ratio":
         return (f"nu({obj.product}) / nu({obj.limiting}) in {obj.id}",
                 _where(route, obj.location) + " (equation)")
+    if kind == "gas_ratio":
+        return (f"nu({rest[0]}) / nu({obj.limiting}) in {obj.id} (gas evolved)",
+                _where(route, obj.location) + " (equation)")
     step, charge = obj, rest[0]
     words = {"volumes": "volumes", "mass_ratio": "mass ratio"}.get(kind, str(charge.basis).replace("_", " "))
     src = _where(route, charge.location)
@@ -223,8 +226,10 @@ class Derivation:
         Every line, each after the lines it refers to.
     named : Mapping[tuple, int]
         ``("target",)``, ``("product", step)``, ``("limiting", step)``,
-        ``("limiting_mass", step)``, ``("charge", step, index, "n"|"m"|"V")``,
-        ``("raw", material, "m")`` -> index of its line.
+        ``("limiting_mass", step)``, ``("charge", step, index, "n"|"m"|"V")`` (for a
+        line carried in solution, ``"V"`` is the volume of mixture carried in),
+        ``("transfer", step, "V"|"m")`` (a telescoped step's mixture that goes on),
+        ``("reaction_mass", step)``, ``("raw", material, "m")`` -> index of its line.
     """
 
     lines: tuple[Line, ...]
@@ -250,6 +255,8 @@ class Derivation:
 
     @functools.cached_property
     def _homes(self) -> dict[int, str]:
+        # a telescoped step's mixture that goes on has no home: it is shown with the charge
+        # that carries it in, its terms (that step's charges) linked to where they are derived
         rank = {"charge": 0, "limiting": 1, "limiting_mass": 1, "product": 2}
         best: dict[int, tuple[int, str]] = {}
         for key, i in self.named.items():
@@ -450,7 +457,7 @@ def derive(route: "Route", amount_kg: float, *, yields: str = "expected",
     record : optional
         The campaign record (its file is cited for those yields and for what is in hand).
     """
-    from routeplan.plan.core import compile_route, target_amount, walk
+    from routeplan.plan.core import compile_route, contents, target_amount, walk
     from routeplan.plan.walk import shelf_moles
     from routeplan.units import Q
 
@@ -476,6 +483,7 @@ def derive(route: "Route", amount_kg: float, *, yields: str = "expected",
                    for k, v in shelf_kg.items()}
         shelf = shelf_moles(route, core, on_hand)
     steps = walk(core, n_target, shelf)
+    held = contents(core, steps)
     b.name(("target",), n_target, f"{tgt.material} to make", "mol")
     for sid in reversed(list(steps)):
         w = steps[sid]
@@ -485,9 +493,18 @@ def derive(route: "Route", amount_kg: float, *, yields: str = "expected",
             b.name(("limiting", sid), w.n_lim, f"{s.limiting} (limiting) in {sid}", "mol")
             b.name(("limiting_mass", sid), w.m_lim, f"{s.limiting} (limiting) in {sid}", "kg")
         for i, (c, (n, m, V)) in enumerate(zip(s.charges, w.charges)):
+            if c.carried_from is not None:  # the volume in the plan is the mixture carried in
+                V = held[sid].lines_V[i]
             for x, t, unit in (("n", n, "mol"), ("m", m, "kg"), ("V", V, "L")):
                 if isinstance(t, Traced):
                     b.name(("charge", sid, i, x), t, f"{c.material} charged to {sid}", unit)
+    for sid, h in held.items():
+        if not route.step(sid).isolated:
+            for x, t, unit in (("V", h.transfer_V, "L"), ("m", h.transfer_m, "kg")):
+                if isinstance(t, Traced):
+                    b.name(("transfer", sid, x), t, f"mixture of {sid} that goes on", unit)
+        if isinstance(h.reaction_m, Traced):
+            b.name(("reaction_mass", sid), h.reaction_m, f"reaction mass of {sid}", "kg")
     # raw materials: the masses summed in execution order, as routeplan.plan.totals sums them
     raw: dict[str, Any] = {}
     for sid, w in steps.items():

@@ -108,13 +108,15 @@ class ChargePlan:
         True when the line was added by the loader (reactant with no charge line).
     carried_from : str or None
         Id of the telescoped step whose reaction mixture brings this intermediate in
-        solution; ``V_L`` is then the volume of mixture carried in [L] and ``m_kg`` the
-        mass of the compound in it [kg] (the mixture is not weighed).
+        solution; ``V_L`` is then the volume of mixture carried in [L] (what stays in
+        that step's vessel at the transfer, :func:`routeplan.plan.core.contents`) and
+        ``m_kg`` the mass of the compound in it [kg] (the mixture is not weighed).
     batches : int
         Batches of the step [-] (0 for a step that does not run).
     leaves : bool
-        True for a charge that leaves the vessel before the product goes on (a wash
-        separated and discarded), so it is not carried into the next step.
+        True for a work-up charge that leaves the vessel right after it is charged (a
+        wash separated and discarded, a filter aid filtered off; ``leaves: true``), so
+        it is not carried into the next step: it is the step's waste.
     """
 
     order: int
@@ -169,7 +171,8 @@ class BatchPlan:
     batches : int
         Number of batches [-] (0 for a step that does not run).
     step_V_L : float
-        Largest volume in the vessel over the whole campaign [L].
+        Largest volume in the vessel over the whole campaign [L]: the charges in order
+        of addition, a charge that leaves taken out right after it is charged.
     fill_fraction : float or None
         Volume per batch over the vessel's nominal volume [-]; None without a vessel.
     vessel : str or None
@@ -183,7 +186,11 @@ class BatchPlan:
     reaction_m_kg : float
         Mass that takes part in the reaction over the campaign [kg]: every charge
         except ``role: workup``, a telescoped mixture at the mass carried in
-        (:func:`routeplan.plan.campaign.reaction_masses`).
+        (:func:`routeplan.plan.core.contents`).
+    transfer_V_L, transfer_m_kg : float or None
+        For a telescoped step, the mixture that goes on to the next step over the
+        campaign: its volume [L] (None where no charge has one) and mass [kg], the
+        charges that stay less the gas evolved; None for an isolated step.
 
     The per-batch attributes (``batch_volume``, ``limiting_mol``, ``limiting_mass``,
     ``product_mol``, ``product_mass``, ``reaction_mass``) are those totals divided by
@@ -201,10 +208,12 @@ class BatchPlan:
     product_n_mol: float = 0.0
     product_m_kg: float = 0.0
     reaction_m_kg: float = 0.0
+    transfer_V_L: float | None = None
+    transfer_m_kg: float | None = None
 
-    def per_batch(self, total: float) -> float | None:
-        """``total`` divided by the batches, or None for a step without batches."""
-        return None if self.batches == 0 else total / self.batches
+    def per_batch(self, total: float | None) -> float | None:
+        """``total`` divided by the batches, or None for a step without batches (or for None)."""
+        return None if total is None or self.batches == 0 else total / self.batches
 
     @property
     def batch_V_L(self) -> float:
@@ -218,6 +227,8 @@ class BatchPlan:
     product_mol = _Quantity("product_n_mol", "mol", "Product per batch [mol].", per_batch=True)
     product_mass = _Quantity("product_m_kg", "kg", "Product per batch, as isolated [kg].", per_batch=True)
     reaction_mass = _Quantity("reaction_m_kg", "kg", "Reaction mass per batch [kg].", per_batch=True)
+    transfer_volume = _Quantity("transfer_V_L", "L", "Mixture that goes on, per batch [L].", per_batch=True)
+    transfer_mass = _Quantity("transfer_m_kg", "kg", "Mixture that goes on, per batch [kg].", per_batch=True)
 
 
 @dataclass(frozen=True)
@@ -336,9 +347,13 @@ class RawMaterialTotal:
     pack_unit : str or None
         ``"kg"`` for a pack by mass, ``"L"`` for one by volume.
     packs : int or None
-        Fewest whole packs covering ``m_kg`` (a pack by mass) or ``V_L`` (a pack by
-        volume) [-] (:func:`routeplan.plan.purchase.packs_to_order`); None without a
-        pack or when not bought.  ``ordered`` is ``packs * pack`` as a Quantity.
+        Fewest whole packs covering what is left to buy, ``buy_m_kg`` (a pack by mass)
+        or ``buy_V_L`` (a pack by volume) [-]
+        (:func:`routeplan.plan.purchase.packs_to_order`); None without a pack or when
+        not bought.  ``ordered`` is ``packs * pack`` as a Quantity.
+    stock_m_kg : float or None
+        What the stock on hand gives of it, as supplied [kg]: ``min(on hand, m_kg)``;
+        None without a stock list or when the list does not name it.
     """
 
     material: str
@@ -352,6 +367,19 @@ class RawMaterialTotal:
     pack_size: float | None = None
     pack_unit: str | None = None
     packs: int | None = None
+    stock_m_kg: float | None = None
+
+    @property
+    def buy_m_kg(self) -> float:
+        """What is left to buy after the stock, as supplied [kg]: ``m_kg - stock_m_kg``."""
+        return self.m_kg if self.stock_m_kg is None else self.m_kg - self.stock_m_kg
+
+    @property
+    def buy_V_L(self) -> float | None:
+        """The same as a volume [L] (``V_L`` in proportion); None without a density."""
+        if self.V_L is None or self.stock_m_kg is None:
+            return self.V_L
+        return self.V_L * (self.buy_m_kg / self.m_kg) if self.m_kg > 0 else 0.0
 
     @property
     def pack(self) -> "pint.Quantity | None":
@@ -366,6 +394,8 @@ class RawMaterialTotal:
     mass = _Quantity("m_kg", "kg", "Mass as supplied [kg].")
     volume = _Quantity("V_L", "L", "Volume as supplied [L], or None.")
     mol = _Quantity("n_mol", "mol", "Moles of the compound [mol], or None.")
+    buy_mass = _Quantity("buy_m_kg", "kg", "What is left to buy after the stock [kg].")
+    buy_volume = _Quantity("buy_V_L", "L", "What is left to buy after the stock [L], or None.")
 
 
 @dataclass(frozen=True)

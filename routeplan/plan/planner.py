@@ -156,7 +156,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         raise PlanError(f"unknown yield basis '{yields}'", hint="use expected, low or high")
     amount_kg = _amount_kg(route, target)
     guards.check_target(amount_kg, route.target.overage, route.target.location)
-    on_hand, source, shelf_kg = None, None, None
+    on_hand, source, shelf_kg, raw_on_hand = None, None, None, None
     if stock is not None:
         from routeplan.inputs.stock import load_stock
         from routeplan.plan.stock import intermediate_stock
@@ -164,6 +164,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         on_hand, source = load_stock(route, stock)
         shelf = intermediate_stock(route, on_hand)
         shelf_kg = {k: float(v.m_as(unit("kg"))) for k, v in shelf.items()} or None
+        raw_on_hand = {k: float(v.m_as(unit("kg"))) for k, v in on_hand.items() if k not in shelf}
 
     account, shelf_kg, yield_of = _record_inputs(route, record, shelf_kg, yields, record_yields)
     shelf_name = "the stock" if account is None else "what is in hand" if stock is None else "the stock and what is in hand"
@@ -175,7 +176,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     steps, safety_warnings = assess_safety(route, steps)
     draft = Draft(route=route, target_material=route.target.material,
                   target_kg=amount_kg * (1 + route.target.overage), target_n_mol=walked.n_target_mol,
-                  steps=steps, raw_materials=with_packs(route, raw_material_totals(route, steps)),
+                  steps=steps, raw_materials=with_packs(route, raw_material_totals(route, steps), raw_on_hand),
                   overall_yield=overall_yield(route, steps, walked.n_target_mol), yield_basis=yields)
     warnings: list[Problem] = [*route.warnings, *batch_warnings, *safety_warnings,
                                *(() if account is None else account.warnings)]

@@ -1,9 +1,10 @@
 """Buying in packs: how many packs of each raw material to order.
 
 A material may give the size of one pack as sold (``pack: 25 kg`` or ``pack: 2.5 L``);
-the packs to order are the fewest whole packs whose content covers the campaign's need
-of that material, a mass for a pack given as a mass and a volume for one given as a
-volume.  A material marked ``bought: false`` (process water from the site's supply) is
+the packs to order are the fewest whole packs whose content covers what is left to buy
+of that material (the campaign's need less what the stock on hand gives, with
+``--stock``), a mass for a pack given as a mass and a volume for one given as a volume
+(the volume in proportion to the mass, at the material's density).  A material marked ``bought: false`` (process water from the site's supply) is
 charged but not bought: it gets no packs and the purchase list leaves it out.
 
 Pure functions on plain numbers and Plan parts; nothing here formats or prints.
@@ -13,7 +14,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import replace
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Mapping
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import RawMaterialTotal
@@ -62,8 +63,10 @@ def packs_to_order(need: float, pack: float) -> int:
     return max(k, 1)
 
 
-def with_packs(route: "Route", raws: "tuple[RawMaterialTotal, ...]") -> "tuple[RawMaterialTotal, ...]":
-    """The raw-material totals with their pack size, packs to order and whether bought.
+def with_packs(route: "Route", raws: "tuple[RawMaterialTotal, ...]",
+               on_hand_kg: "Mapping[str, float] | None" = None) -> "tuple[RawMaterialTotal, ...]":
+    """The raw-material totals with what the stock gives, their pack size, the packs to
+    order and whether bought.
 
     Parameters
     ----------
@@ -71,23 +74,29 @@ def with_packs(route: "Route", raws: "tuple[RawMaterialTotal, ...]") -> "tuple[R
         The route (each material's ``pack`` and ``bought``).
     raws : tuple of RawMaterialTotal
         The totals over the campaign.
+    on_hand_kg : Mapping[str, float], optional
+        The stock on hand: material key -> mass as supplied [kg].
 
     Returns
     -------
     tuple of RawMaterialTotal
-        The same totals with ``bought``, ``pack_size`` and ``pack_unit`` ([kg] or [L])
-        and ``packs`` [-] set; ``packs`` is None without a pack size or for a material
-        not bought.
+        The same totals with ``bought``, ``stock_m_kg`` (``min(on hand, need)`` [kg],
+        None when the stock does not name the material), ``pack_size`` and
+        ``pack_unit`` ([kg] or [L]) and ``packs`` [-] set: the fewest packs covering
+        ``buy_m_kg`` or ``buy_V_L`` (need less stock); ``packs`` is None without a pack
+        size or for a material not bought.
     """
     out = []
     for r in raws:
         mat = route.materials[r.material]
+        have = None if on_hand_kg is None else on_hand_kg.get(r.material)
+        r = replace(r, bought=mat.bought, stock_m_kg=None if have is None else min(have, r.m_kg))
         size, unit_, packs = None, None, None
         if mat.pack is not None:
             unit_ = "kg" if mat.pack.check("[mass]") else "L"
             size = float(mat.pack.m_as(unit_))
-            need = r.m_kg if unit_ == "kg" else r.V_L
+            need = r.buy_m_kg if unit_ == "kg" else r.buy_V_L
             if mat.bought and need is not None:
                 packs = packs_to_order(need, size)
-        out.append(replace(r, bought=mat.bought, pack_size=size, pack_unit=unit_, packs=packs))
+        out.append(replace(r, pack_size=size, pack_unit=unit_, packs=packs))
     return tuple(out)

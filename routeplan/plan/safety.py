@@ -15,7 +15,9 @@ Gas taken up (a reactant with ``phase: gas``)
     101.325 kPa).
 Heat (a step with ``thermal``)
     ``delta_T_ad = -dH_r * n_lim / (m * cp)`` with ``m`` the reaction mass of the batch
-    (:func:`routeplan.plan.campaign.reaction_masses`); ``MTSR = Tp + X_ac * delta_T_ad``
+    (:func:`routeplan.plan.core.contents`: a mixture carried in from a telescoped step
+    counts what stays at its transfer, less the gas evolved and any charge that left);
+    ``MTSR = Tp + X_ac * delta_T_ad``
     for a dosed step (``X_ac`` the accumulation, default 1), ``Tp + delta_T_ad`` for a
     batch step; the criticality class from MTSR, MTT and TD24; the severity from
     ``delta_T_ad``.  An endothermic step has a negative ``delta_T_ad``; nothing is
@@ -60,7 +62,6 @@ __all__ = [
     "mtsr_K",
     "criticality_class",
     "severity",
-    "evolved_gas_mass_kg",
     "step_safety",
     "assess_safety",
 ]
@@ -327,22 +328,6 @@ def _gases(route: "Route", step: "Step", side: str):
         return []
     terms = step.equation.products if side == "products" else step.equation.reactants
     return [(t.key, t.coefficient) for t in terms if t.key in gas]
-
-
-def evolved_gas_mass_kg(route: "Route", step_id: str, n_lim_mol: float) -> float:
-    """Mass of every gas step ``step_id`` evolves from ``n_lim_mol`` of limiting reagent [kg].
-
-    Full conversion, as for the volumes; used to take the gas off the mixture that a
-    telescoped step carries on (:func:`routeplan.plan.campaign.reaction_masses`).
-    """
-    step = route.step(step_id)
-    nu_lim = step.equation.coefficient(step.limiting)
-    total = 0.0
-    for key, nu in _gases(route, step, "products"):
-        M = route.materials[key].molar_mass
-        if M is not None:
-            total += gas_evolved_mol(nu, nu_lim, n_lim_mol) * M.m_as(unit("kg/mol"))
-    return total
 
 
 # ----------------------------------------------------------------------------- per step

@@ -59,7 +59,8 @@ def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]", 
         ``max_target`` [kg] (the largest target amount, before the route's overage, as
         ``--target`` takes it; over the raw materials in stock, any intermediate in
         stock used first; None if none of them is needed), ``limited_by``, ``to_buy``
-        (key, mass [kg]) for the requested target (materials not in stock in full),
+        (key, mass [kg]) for the requested target (materials not in stock in full;
+        never a material marked ``bought: false``),
         and ``on_hand``.
     """
     from routeplan.plan.model import StockPlan
@@ -72,19 +73,24 @@ def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]", 
     target = plan.target_mass / (1 + plan.route.target.overage)
     best_ratio, limited_by = None, None
     to_buy = []
-    for r in plan.raw_materials:
+    from routeplan.plan.purchase import with_packs
+
+    # what is left to buy after the stock has one home: with_packs (the plan's own raw
+    # materials carry it already when planned with this stock; a plan made without it too)
+    raws = with_packs(plan.route, plan.raw_materials, {k: float(v.m_as(unit("kg"))) for k, v in on_hand.items()})
+    for r in raws:
         need = r.mass
         have = on_hand.get(r.material)
         if have is None:
-            to_buy.append((r.material, need))
+            if r.bought:  # a material marked 'bought: false' is never to buy
+                to_buy.append((r.material, need))
             continue
         if need.magnitude > 0:
             ratio = (have / need).m_as("")
             if best_ratio is None or ratio < best_ratio:
                 best_ratio, limited_by = ratio, r.material
-        short = need - have
-        if short.magnitude > 0:
-            to_buy.append((r.material, short.to(unit("kg"))))
+        if r.buy_m_kg > 0:  # need less stock (routeplan.plan.purchase.with_packs)
+            to_buy.append((r.material, r.buy_mass))
     max_target = None if best_ratio is None else (target * best_ratio).to(unit("kg"))
     shelf = intermediate_stock(plan.route, on_hand)
     if any(m.magnitude > 0 for m in shelf.values()):

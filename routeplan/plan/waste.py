@@ -6,7 +6,10 @@ Definitions (ROUTE-FORMAT.md, "Time, plant and waste" and its readings)
     solvents of the telescoped step are waste of that step, not of the next.
     Masses are read from the plan's float fields (``ChargePlan.m_kg``, ``m_kg_batch``).
     *Product taken on*: the step's product as isolated (``StepPlan.product_m_kg``).
-    *Waste of a step* = inputs - product taken on.
+    *Waste of a step* = inputs - product taken on.  A work-up charge that leaves the
+    vessel before the transfer (``leaves: true``, a wash run off) is the step's waste
+    like its other solvents, in its stream; ``StepWaste.separated_kg`` says how much of
+    the waste left that way.
     *Streams*: charges of role ``solvent`` or ``workup``, and every charge of a material
     that names a ``stream``, go to the stream :func:`stream_of` gives; an intermediate
     charged is never in a stream (it is the compound, taken on).
@@ -182,6 +185,12 @@ class StepWaste:
         By-products that leave as gas to the scrubber [kg] (part of the residue).
     raw_kg : float
         The raw materials among the inputs (every charge but an intermediate) [kg].
+    separated_kg : float
+        The charges that leave the vessel right after they are charged
+        (``ChargePlan.leaves``: washes run off, filter aids filtered off), part of the
+        streams or the residue [kg].
+    separated_materials : tuple of str
+        Their keys, in order of addition.
     """
 
     step: str
@@ -194,6 +203,8 @@ class StepWaste:
     stream_materials: Mapping[str, tuple[str, ...]] = field(default_factory=dict)
     gas_kg: float = 0.0
     raw_kg: float = 0.0
+    separated_kg: float = 0.0
+    separated_materials: tuple[str, ...] = ()
 
     @property
     def waste_kg(self) -> float:
@@ -346,8 +357,10 @@ def step_waste(route: "Route", sp: "StepPlan") -> StepWaste:
         per_batch = _with_residue(b_streams, sum(b_masses) - sp.batch.per_batch(sp.batch.product_m_kg))
     items = by_products(route, sp.id, sp.product_n_mol)
     raw = sum(m for c, m in zip(sp.charges, masses) if not c.intermediate)
+    left = [c for c in sp.charges if c.leaves]
     return StepWaste(step=sp.id, batches=sp.batches if sp.runs else 0, inputs_kg=inputs, product_kg=product,
-                     raw_kg=raw,
+                     raw_kg=raw, separated_kg=sum((c.m_kg for c in left), 0.0),
+                     separated_materials=tuple(dict.fromkeys(c.material for c in left)),
                      campaign=_with_residue(streams, inputs - product), per_batch=per_batch, by_products=items,
                      stream_materials={k: tuple(v) for k, v in names.items() if v},
                      gas_kg=gas_evolved_kg(items))

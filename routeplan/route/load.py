@@ -156,6 +156,9 @@ def _load_bytes(data: bytes, file: str) -> Route:
     from routeplan.route.checks_buying import buying_problems
 
     problems += buying_problems(parts, facts, pos)
+    from routeplan.route.checks_transfer import leaving_problems
+
+    problems += leaving_problems(parts, facts, pos)
     errors = [p for p in problems if p.severity == Severity.ERROR]
     if errors:
         raise RouteError(_sorted(errors), file=file)
@@ -306,7 +309,8 @@ def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
             value = getattr(c, basis)
         role = c.role if c.role is not None else _default_role(basis, c.material in reactants)
         lines.append(Charge(material=c.material, basis=basis, value=float(value), role=role,
-                            location=pos.at(("steps", i, "charges", j)), tolerance=c.tolerance))
+                            location=pos.at(("steps", i, "charges", j)), tolerance=c.tolerance,
+                            leaves=bool(c.leaves)))
     y = s.yield_
     return Step(
         id=s.id, name=s.name if s.name is not None else s.id, equation=eq, equation_text=s.equation,

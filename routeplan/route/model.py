@@ -190,6 +190,10 @@ class Charge:
     tolerance : float or None
         How far the mass weighed in may be from the mass to charge, either way [-];
         None: the route's ``charge_tolerance``.
+    leaves : bool
+        True for a work-up charge that leaves the vessel right after it is charged and
+        worked (a wash layer separated and discarded, a filter aid filtered off), before
+        the next line: it is not carried into the next step (``leaves: true``).
     """
 
     material: str
@@ -199,6 +203,7 @@ class Charge:
     implicit: bool = False
     location: Location | None = None
     tolerance: float | None = None
+    leaves: bool = False
 
     def __post_init__(self) -> None:
         if not isinstance(self.basis, Basis):

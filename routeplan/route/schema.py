@@ -459,6 +459,9 @@ class ChargeModel(_Model):
                     WithJsonSchema({"enum": [str(r) for r in ROLES], "description": "role of the charge"})] = None
     tolerance: Percent("how far the mass weighed in may be from the mass to charge, either way, before the "
                        "charge sheet flags it; default the route's charge_tolerance") = None
+    leaves: Boolean = Field(False, description="true for a work-up charge that leaves the vessel right after it "
+                                               "is charged and worked (a wash layer separated and discarded, a "
+                                               "filter aid filtered off): it is not carried into the next step")
 
 
 class ControlModel(_Model):

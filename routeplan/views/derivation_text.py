@@ -224,9 +224,7 @@ def charge_explanation(plan: "Plan", step: str, index: int, *, within_step: bool
     origins, lines = d.cut(*keys, step=step if within_step else None)
     c = plan.step(step).charges[index]
     scales = _step_scales(plan, step, units)
-    own = {d.named[k]: k[3] for k in keys}
-    if c.carried_from is not None:  # the plan's volume is the mixture carried in, not this line's
-        own = {i: x for i, x in own.items() if x != "V"}
+    own = {d.named[k]: k[3] for k in keys}  # a carried line's "V" is the mixture carried in
     where = {o: i for i, o in enumerate(origins)}
     shown = {i: scales[line.unit] for i, line in enumerate(lines)
              if origins[i] in {d.named[k] for k in keys} and line.unit in scales}
@@ -240,8 +238,8 @@ def charge_explanation(plan: "Plan", step: str, index: int, *, within_step: bool
     subject = f"{c.material} charged to {step}"
     notes = ()
     if c.carried_from is not None:
-        notes = (f"(the volume in the plan is the whole mixture carried in from {c.carried_from}, "
-                 f"sized with the batches, not this line's volume)",)
+        notes = (f"(the volume is that of {c.carried_from}'s mixture carried in: every charge of "
+                 f"{c.carried_from} that stays to the transfer, a charge that leaves before it not counted)",)
     return Explanation(f"{c.material} charged to {step}: how the plan gets its numbers", views, tuple(amounts),
                        subject, notes)
 

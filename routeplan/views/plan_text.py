@@ -86,7 +86,9 @@ def batch_notes(sp: "StepPlan", u: DisplayUnits) -> list[str]:
     return notes
 
 
-def _step_footer(sp: "StepPlan", u: DisplayUnits) -> list[Para]:
+def _step_footer(plan: "Plan", sp: "StepPlan", u: DisplayUnits) -> list[Para]:
+    from routeplan.views.transfer_text import transfer_text
+
     out = [Para(f"makes {u.amount_text(sp.product_n_mol)} {sp.product} ({u.mass_text(sp.product_m_kg)} "
                 + ("as isolated)" if sp.isolated else "in solution)"), indent=2)]
     b = sp.batch
@@ -94,6 +96,9 @@ def _step_footer(sp: "StepPlan", u: DisplayUnits) -> list[Para]:
         out.append(Para(f"vessel {b.vessel}: {_plural(b.batches, 'batch', 'batches')} of "
                         f"{u.volume_text(b.batch_V_L)}, fill {pct(b.fill_fraction)} of nominal volume", indent=2))
     out += [Para(f"note: {note}", indent=2) for note in batch_notes(sp, u)]
+    transfer = transfer_text(plan, sp, u)
+    if transfer:
+        out.append(Para(transfer, indent=2))
     return out
 
 
@@ -116,7 +121,7 @@ def _step_blocks(sp: "StepPlan", plan: "Plan", u: DisplayUnits) -> list[Block]:
     out: list[Block] = [Para(step_title(sp), style="heading")]
     if sp.runs:
         out.append(_step_grid(sp, plan, u))
-        out += _step_footer(sp, u)
+        out += _step_footer(plan, sp, u)
         out += [para_of_line("  " + line) for line in step_safety_lines(sp, u)]
     stock = _stock_para(sp, u)
     if stock is not None:
@@ -139,13 +144,19 @@ def _purchase_blocks(plan: "Plan", u: DisplayUnits) -> list[Block]:
     """The purchase list (bought materials, need, packs to order) and the note on materials not bought."""
     from routeplan.views.purchase_rows import not_bought_note, purchase_rows
 
+    stock = plan.stock is not None
+    extra = (Col(u.heading("from stock", "mass"), "right"), Col(u.heading("to buy", "mass"), "right"),
+             Col(u.heading("to buy", "volume"), "right")) if stock else ()
     cols = (Col("material", wrap=True), Col(u.heading("need", "mass"), "right"),
-            Col(u.heading("need", "volume"), "right"), Col("pack", "right"), Col("packs", "right"),
+            Col(u.heading("need", "volume"), "right"), *extra, Col("pack", "right"), Col("packs", "right"),
             Col("ordered", "right"))
     rows = tuple((r["material"], u.number(r["need_kg"], "mass"), u.number(r["need_L"], "volume"),
+                  *((u.number(r["stock_kg"], "mass"), u.number(r["buy_kg"], "mass"), u.number(r["buy_L"], "volume"))
+                    if stock else ()),
                   r["pack"] or "–", "–" if r["packs"] is None else str(r["packs"]), r["ordered"] or "–")
                  for r in purchase_rows(plan))
-    out: list[Block] = [Grid(cols, rows, title="To order, whole campaign")]
+    title = "To order, whole campaign" + (", less the stock on hand" if stock else "")
+    out: list[Block] = [Grid(cols, rows, title=title)]
     note = not_bought_note(plan)
     if note:
         out.append(Para(note, indent=2))
@@ -232,7 +243,8 @@ def plan_blocks(plan: "Plan", units: DisplayUnits | None = None, *, width: int =
     out: list[Block] = [
         Para(header_text(plan, u), style="heading"),
         Para("n: amount of the compound, m: mass and V: volume as charged; (S1) after a material: made in step "
-             "S1; in solution: V is the reaction mixture carried in", style="dim"),
+             "S1; in solution: V is the reaction mixture carried in; (separated): run off right after it is "
+             "charged, not carried on", style="dim"),
         Para(f"units of the whole plan: {u.legend()}", style="dim"),
         blank(),
     ]

@@ -2,7 +2,8 @@
 
 What to order for the campaign, one row per bought material in order of first use: the
 need as a mass [kg] and, where a density is known (a solution, a liquid), as a volume
-[L]; the pack size; the packs to order and what they hold.  Materials the route marks
+[L]; with a stock list, what the stock gives [kg] and what is left to buy [kg] and [L];
+the pack size; the packs to order (covering what is left to buy) and what they hold.  Materials the route marks
 ``bought: false`` are left out, and :func:`not_bought_note` says so.  Read from the Plan
 only (``RawMaterialTotal.pack``, ``packs``, ``ordered``); nothing is computed here.
 """
@@ -17,7 +18,8 @@ from routeplan.views.tables import Column
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
 
-__all__ = ["PURCHASE_COLUMNS", "purchase_rows", "not_bought", "not_bought_note", "pack_text"]
+__all__ = ["PURCHASE_COLUMNS", "STOCK_PURCHASE_COLUMNS", "purchase_columns", "purchase_rows", "not_bought",
+           "not_bought_note", "pack_text"]
 
 #: Columns of the purchase list.
 PURCHASE_COLUMNS = (
@@ -29,6 +31,18 @@ PURCHASE_COLUMNS = (
     Column("packs", "packs to order", "-"),
     Column("ordered", "ordered"),
 )
+
+#: The same with a stock list: what the stock gives and what is left to buy, before the pack.
+STOCK_PURCHASE_COLUMNS = PURCHASE_COLUMNS[:4] + (
+    Column("stock_kg", "from stock", "kg"),
+    Column("buy_kg", "to buy", "kg"),
+    Column("buy_L", "to buy", "L"),
+) + PURCHASE_COLUMNS[4:]
+
+
+def purchase_columns(plan: "Plan") -> tuple[Column, ...]:
+    """:data:`STOCK_PURCHASE_COLUMNS` for a plan with a stock list, else :data:`PURCHASE_COLUMNS`."""
+    return STOCK_PURCHASE_COLUMNS if plan.stock is not None else PURCHASE_COLUMNS
 
 
 def pack_text(q) -> str | None:
@@ -50,14 +64,19 @@ def purchase_rows(plan: "Plan") -> list[dict[str, Any]]:
     """One row per bought raw material (see :data:`PURCHASE_COLUMNS`).
 
     ``need_kg`` [kg] and ``need_L`` [L] (None without a density) are the whole
-    campaign's; ``pack`` and ``ordered`` are text with their unit (None without a pack);
-    ``packs`` [-] is None without a pack.
+    campaign's; ``stock_kg`` [kg] what the stock gives (0 when it does not name the
+    material), ``buy_kg`` [kg] and ``buy_L`` [L] what is left to buy; ``pack`` and
+    ``ordered`` are text with their unit (None without a pack); ``packs`` [-], covering
+    what is left to buy, is None without a pack.
     """
     return [{
         "material": r.material,
         "name": r.name,
         "need_kg": magnitude(r.mass, "kg"),
         "need_L": magnitude(r.volume, "L"),
+        "stock_kg": r.stock_m_kg or 0.0,
+        "buy_kg": r.buy_m_kg,
+        "buy_L": r.buy_V_L,
         "pack": pack_text(r.pack),
         "packs": r.packs,
         "ordered": pack_text(r.ordered),

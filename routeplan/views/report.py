@@ -265,6 +265,8 @@ def charge_derivations_view(plan: "Plan") -> dict[str, tuple[tuple[ChargeDerivat
 
 
 def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
+    from routeplan.views.transfer_text import transfer_text
+
     facts = []
     if sp.runs:
         pm = sp.product_mass.m_as("kg")
@@ -287,6 +289,9 @@ def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
                                            f"{sp.product} made"))
             for note in b.notes:
                 facts.append(("note", note))
+        transfer = transfer_text(plan, sp)
+        if transfer:
+            facts.append(("goes on", transfer))
     else:
         facts.append(("not run", sp.not_run))
     if sp.from_stock_mass is not None and sp.from_stock_mass.m_as("kg") > 0:

@@ -153,9 +153,12 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
     volume per batch at 0 degC and 101.325 kPa [L], the figure it is charged by, and
     ``mass_kg`` its mass, not weighed.  ``tolerance`` [-] is how far the mass weighed in
     may be from the mass to charge, either way (the line's own, else the route's
-    ``charge_tolerance``).
+    ``charge_tolerance``).  ``leaves_note`` says that a charge leaves right after it is
+    charged (None otherwise); ``transfer`` how a mixture carried in is transferred
+    (:func:`routeplan.views.transfer_text.carried_note`; None for other lines).
     """
     from routeplan.views.safety_text import gas_charges
+    from routeplan.views.transfer_text import LEAVES_NOTE, carried_note
 
     route = plan.route
     step = route.step(sp.id)
@@ -200,6 +203,8 @@ def batch_charge_rows(plan: "Plan", sp: "StepPlan") -> list[dict[str, Any]]:
             "made_in": c.carried_from or (None if made is None else made.id),
             "in_solution": c.carried_from is not None,
             "intermediate": c.intermediate,
+            "leaves_note": LEAVES_NOTE if c.leaves else None,
+            "transfer": None if c.carried_from is None else carried_note(plan, c.carried_from),
         })
         _prefill(plan, rows[-1])
     return rows
@@ -468,9 +473,10 @@ def stock_rows(plan: "Plan") -> list[dict[str, Any]]:
 
     ``need_kg``: mass for the requested target [kg]; ``on_hand_kg``: mass in stock [kg]
     (None when the stock list does not name it); ``to_buy_kg``: the plan's mass to buy
-    [kg] (0 when the stock covers the need); ``status``: ``not in stock``, ``in stock,
-    enough`` or ``in stock, short``, with ``; limits the target`` for the material that
-    limits the largest target.
+    [kg] (0 when the stock covers the need; None for a material marked ``bought:
+    false``); ``status``: ``not in stock``, ``in stock, enough``, ``in stock, short`` or
+    ``not bought``, with ``; limits the target`` for the material that limits the largest
+    target.
     """
     s = plan.stock
     if s is None:
@@ -480,7 +486,9 @@ def stock_rows(plan: "Plan") -> list[dict[str, Any]]:
     for r in plan.raw_materials:
         have = s.on_hand.get(r.material)
         to_buy = buy.get(r.material, 0.0)
-        if have is None:
+        if not r.bought:
+            to_buy, status = None, "not bought (the route marks it 'bought: false')"
+        elif have is None:
             status = "not in stock"
         else:
             status = "in stock, short" if to_buy > 0 else "in stock, enough"
@@ -504,7 +512,7 @@ def stock_summary_rows(plan: "Plan") -> list[dict[str, Any]]:
     if s is None:
         return []
     needed = [r.material for r in plan.raw_materials]
-    missing = [k for k in needed if k not in s.on_hand]
+    missing = [r.material for r in plan.raw_materials if r.material not in s.on_hand and r.bought]
     unused, idle = stock_not_needed(plan)
     rows = []
     if s.source:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from routeplan.views.purchase_rows import not_bought_note
 from routeplan.views.sheet_rows import stock_not_needed
 from routeplan.views.tables import display_quantity
 
@@ -31,7 +32,7 @@ def stock_lines(plan, units=None) -> list[str]:
     lines = [""]
     tgt = plan.target_material
     in_stock = set(s.on_hand)
-    missing = [r.material for r in plan.raw_materials if r.material not in in_stock]
+    missing = [r.material for r in plan.raw_materials if r.material not in in_stock and r.bought]
     overage = plan.route.target.overage
     if s.max_target is None:
         lines.append("Stock: no raw material this plan needs is in the stock list.")
@@ -67,6 +68,9 @@ def stock_lines(plan, units=None) -> list[str]:
             lines.append(f"  {key}: {mass(need.m_as('kg'))}")
     else:
         lines.append("Nothing to buy: the stock covers the requested target.")
+    note = not_bought_note(plan)
+    if note:
+        lines.append("  " + note)
     return lines
 
 

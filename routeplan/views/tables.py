@@ -96,6 +96,7 @@ def step_charge_rows(sp: "StepPlan") -> list[dict[str, Any]]:
         "batch_volume_L": None if c.V_L is None or n == 0 else c.V_L / n,
         "intermediate": c.intermediate,
         "carried_from": c.carried_from,
+        "leaves": c.leaves,
     } for c in sp.charges]
 
 
@@ -211,9 +212,12 @@ def charge_label(row: dict[str, Any], maker) -> str:
     """The material of a charge row as people read it: ``acetamidophenol (B1)``.
 
     ``maker`` maps an intermediate to the step making it; a charge carried in solution
-    reads ``salt (S2, in solution)``.
+    reads ``salt (S2, in solution)``, a charge that leaves right after it is charged
+    ``water (separated)``.
     """
     name = row["material"]
+    if row.get("leaves"):
+        return f"{name} (separated)"
     if row["carried_from"]:
         return f"{name} ({row['carried_from']}, in solution)"
     if row["intermediate"]:

@@ -107,6 +107,19 @@ def _run_soffice(files: list[Path], out: Path, profile: Path, to: str = "xlsx") 
     assert not missing, f"soffice did not convert {missing}: {done.stdout}\n{done.stderr}"
 
 
+def recalculated(tmp_path_factory, plan, name: str):
+    """``plan``'s workbook written and recalculated by LibreOffice, read back (values only)."""
+    if SOFFICE is None:
+        _missing("LibreOffice (soffice) is not installed: the recalculation check needs it "
+                 "(.ci/run installs libreoffice-calc-nogui)")
+    base = tmp_path_factory.mktemp(name)
+    src, out = base / "in", base / "out"
+    src.mkdir()
+    write_workbook(plan, src / f"{name}.xlsx", written=WRITTEN)
+    _run_soffice([src / f"{name}.xlsx"], out, base / "profile")
+    return openpyxl.load_workbook(out / f"{name}.xlsx", data_only=True)
+
+
 def _row_of(ws, material):
     _h, col, rows = charge_table(ws)
     for r in rows:

@@ -16,13 +16,21 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from routeplan.plan.core import compile_route, target_amount, walk
+from routeplan.plan.core import compile_route, contents, target_amount, walk
 from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route
 from routeplan.units import Q, registry
 
 DEMO = Path(__file__).resolve().parents[2] / "demo_routes"
-ROUTES = sorted(DEMO.glob("hx17-*.yaml"))
+ROUTES = sorted(DEMO.glob("hx17-*.yaml")) + sorted((DEMO.parent / "tests" / "data" / "routes").glob("*.yaml"))
+
+
+def _same(q, f, dim, unit):
+    """``q`` (pint) has dimension ``dim`` and equals the float ``f`` in ``unit``; both None or neither."""
+    assert (q is None) == (f is None), (q, f)
+    if q is not None:
+        assert q.check(dim), (q, dim)
+        assert q.m_as(unit) == pytest.approx(f, rel=1e-12)
 
 
 def _walk_both(route, amount_kg):
@@ -57,6 +65,37 @@ def test_every_expression_of_the_walk_is_dimensionally_consistent(path):
                 assert Vq.m_as("L") == pytest.approx(Vf, rel=1e-12)
 
 
+@pytest.mark.parametrize("path", ROUTES, ids=lambda p: p.stem)
+def test_what_each_vessel_holds_is_dimensionally_consistent(path):
+    # the volumes and masses of the vessels (fullest volume, the mixture a telescoped step
+    # passes on, the volume it brings into the next step, the reaction mass) from the same
+    # core on pint Quantities: each in its dimension and equal to the float plan
+    route = load_route(path)
+    floats, quants, _, _ = _walk_both(route, 25.0)
+    plain = contents(compile_route(route), floats)
+    proof = contents(compile_route(route, quantity=Q), quants)
+    plan = plan_route(route, Q(25.0, "kg"))
+    for sid, hq in proof.items():
+        hf = plain[sid]
+        _same(hq.fullest_V, hf.fullest_V, "[volume]", "L")
+        _same(hq.transfer_V, hf.transfer_V, "[volume]", "L")
+        _same(hq.transfer_m, hf.transfer_m, "[mass]", "kg")
+        _same(hq.reaction_m, hf.reaction_m, "[mass]", "kg")
+        _same(hq.gas_m, hf.gas_m, "[mass]", "kg")
+        for Vq, Vf in zip(hq.lines_V, hf.lines_V):
+            _same(Vq, Vf, "[volume]", "L")
+        for mq, mf in zip(hq.lines_m, hf.lines_m):
+            _same(mq, mf, "[mass]", "kg")
+        # and the plan is made of these numbers
+        sp = plan.step(sid)
+        assert sp.batch.step_V_L == pytest.approx(hq.fullest_V.m_as("L") if hq.fullest_V is not None else 0.0,
+                                                  rel=1e-12)
+        assert sp.batch.reaction_m_kg == pytest.approx(hq.reaction_m.m_as("kg"), rel=1e-12)
+        for c, Vq in zip(sp.charges, hq.lines_V):
+            if c.carried_from is not None:
+                assert c.V_L == pytest.approx(Vq.m_as("L"), rel=1e-12)
+
+
 def test_a_slip_in_an_expression_would_be_caught():
     # the proof has teeth: adding a mass to a volume, as a wrong expression would, raises
     with pytest.raises(Exception, match="[Cc]annot convert|dimension"):
@@ -78,6 +117,26 @@ def test_the_core_on_arrays_is_the_float_plan_element_by_element(path):
                 assert m[i] == pytest.approx(c.m_kg, rel=1e-12)
                 if n is not None:
                     assert n[i] == pytest.approx(c.n_mol, rel=1e-12)
+
+
+@pytest.mark.parametrize("path", ROUTES, ids=lambda p: p.stem)
+def test_what_each_vessel_holds_on_arrays_is_the_float_plan(path):
+    route = load_route(path)
+    core = compile_route(route)
+    targets = np.array([5.0, 25.0, 40.0])
+    held = contents(core, walk(core, target_amount(targets, core.overage, core.target_kg_per_mol_pure)))
+    for i, t in enumerate(targets):
+        plan = plan_route(route, Q(float(t), "kg"))
+        for sp in plan.steps:
+            h = held[sp.id]
+            assert h.fullest_V[i] == pytest.approx(sp.batch.step_V_L, rel=1e-12)
+            assert h.reaction_m[i] == pytest.approx(sp.batch.reaction_m_kg, rel=1e-12)
+            if not sp.isolated:
+                assert h.transfer_V[i] == pytest.approx(sp.batch.transfer_V_L, rel=1e-12)
+                assert h.transfer_m[i] == pytest.approx(sp.batch.transfer_m_kg, rel=1e-12)
+            for c, V in zip(sp.charges, h.lines_V):
+                if c.carried_from is not None:
+                    assert V[i] == pytest.approx(c.V_L, rel=1e-12)
 
 
 def test_a_route_longer_than_the_recursion_limit_plans():

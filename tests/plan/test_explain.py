@@ -22,6 +22,7 @@ from routeplan.units import Q
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = sorted((ROOT / "demo_routes").glob("hx17-*.yaml"))
 GOOD = ROOT / "tests" / "data" / "routes" / "good.yaml"
+WASH = ROOT / "tests" / "data" / "routes" / "telescoped-wash.yaml"
 sys.path.insert(0, str(ROOT / "bench"))
 
 
@@ -59,8 +60,8 @@ def check_plan(plan):
             what = f"{c.material} charged to {sp.id}"
             for unit, dim, plan_q in (("mol", "[substance]", c.mol), ("kg", "[mass]", c.mass),
                                       ("L", "[volume]", c.volume)):
-                if plan_q is None or (unit == "L" and c.carried_from is not None):
-                    continue  # a carried volume is the telescoped mixture, sized with the batches
+                if plan_q is None:
+                    continue  # a carried volume is checked too: the telescoped mixture this line brings in
                 q = got[(what, unit)]
                 assert q.check(dim), (what, q)
                 assert q.m_as(unit) == pytest.approx(plan_q.m_as(unit), rel=1e-12, abs=1e-300), (what, unit)
@@ -73,7 +74,7 @@ def _routes():
     from test_campaign import ROUTE as CAMPAIGN
     from test_plan_worked import CONVERGENT, SHARED, TWO_STEP
 
-    out = [(p.stem, load_route(p)) for p in DEMO] + [("good", load_route(GOOD))]
+    out = [(p.stem, load_route(p)) for p in DEMO] + [("good", load_route(GOOD)), ("wash", load_route(WASH))]
     for name, text in (("campaign", CAMPAIGN), ("two_step", TWO_STEP), ("convergent", CONVERGENT),
                        ("shared", SHARED), ("linear12", linear_route(12))):
         out.append((name, load_route_text(text, f"{name}.yaml")))
@@ -259,6 +260,46 @@ def test_the_rest_of_a_recorded_campaign_multiplies_out(record_yields):
     plan = plan_route(route, record=ROOT / "demo_routes" / "record.yaml", record_yields=record_yields,
                       explain=True)
     assert check_plan(plan) > 0
+
+
+def test_a_carried_volume_is_derived_and_checked():
+    # the volume a telescoped step's mixture brings into the next step is the core's too:
+    # it must be among the checked amounts (no skip), on the demo and on the wash route
+    for path, sid, material in ((ROOT / "demo_routes" / "hx17-linear.yaml", "S4", "Na-salt"), (WASH, "T2", "ester")):
+        plan = plan_route(load_route(path), explain=True)
+        sp = plan.step(sid)
+        i = next(k for k, c in enumerate(sp.charges) if c.material == material)
+        c = sp.charges[i]
+        assert c.carried_from is not None
+        lines = plan.derivation.charge(sid, i)
+        carried = lines[-1]  # the volume of the mixture carried in comes last
+        assert carried.what == f"{material} charged to {sid}" and carried.unit == "L"
+        assert carried.value == pytest.approx(c.V_L, rel=1e-12)
+        assert carried.factors[0].what == f"mixture of {c.carried_from} that goes on"
+        going = next(line for line in lines if line.what == f"mixture of {c.carried_from} that goes on")
+        # a sum of the volumes of the telescoped step's lines that stay
+        assert all(f.op in ("start", "+") and f.unit == "L" for f in going.factors)
+        assert going.value == pytest.approx(plan.step(c.carried_from).batch.transfer_V_L, rel=1e-12)
+
+
+def test_a_charge_that_leaves_is_not_in_the_sum_carried_on():
+    # the wash of T1 (water, leaves: true) is charged, but the mixture that goes on is the
+    # four lines that stay: BzCl, toluene, EtOH, Et3N
+    plan = plan_route(load_route(WASH), explain=True)
+    lines = plan.derivation.chain(("transfer", "T1", "V"))
+    going = lines[-1]
+    assert [f.what for f in going.factors] == [f"{m} charged to T1" for m in ("BzCl", "toluene", "EtOH", "Et3N")]
+    assert "water charged to T1" not in {f.what for line in lines for f in line.factors}
+
+
+def test_cli_explains_the_volume_carried_into_s4():
+    out = _cli("explain", "demo_routes/hx17-linear.yaml", "S4", "Na-salt").stdout.splitlines()
+    # S3's lines with a volume: EtOH, NaOH50 and water; the ester has no density
+    going = next(line for line in out if line.endswith("L mixture of S3 that goes on"))
+    assert "EtOH charged to S3" in going and "NaOH50 charged to S3" in going and "water charged to S3" in going
+    assert any(re.search(r"L mixture of S3 that goes on \(line \d+\) = [\d.]+ L Na-salt charged to S4$", line)
+               for line in out), out
+    assert out[-3].startswith("= ") and out[-3].endswith("L Na-salt charged to S4, as in the plan")
 
 
 def test_a_route_longer_than_the_recursion_limit_is_derived():

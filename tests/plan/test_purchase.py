@@ -96,3 +96,74 @@ def test_json_and_csv_carry_the_packs(tmp_path):
     assert rows[0] == ["key", "material", "needed [kg]", "needed [L]", "pack", "packs to order [-]", "ordered"]
     assert "water" not in [r[0] for r in rows[1:]]
     assert "not bought" in result.stdout or "not bought" in result.output
+
+
+# --- with a stock list: the packs cover what is left to buy -------------------------------
+
+STOCK = "demo_routes/stock.yaml"
+
+
+@pytest.fixture(scope="module")
+def stocked():
+    return plan_route(load_route(DEMO), stock=STOCK)
+
+
+def test_with_stock_the_packs_cover_only_what_is_left_to_buy(stocked):
+    raws = {r.material: r for r in stocked.raw_materials}
+    # demo_routes/stock.yaml: 25 kg of ethyl bromoacetate on hand for a need of 25.93 kg:
+    # 0.93 kg to buy, one 5 kg pack (it was 6 packs, 30 kg, for the whole need)
+    brome = raws["BrCH2CO2Et"]
+    assert brome.stock_m_kg == 25.0
+    assert brome.buy_m_kg == pytest.approx(brome.m_kg - 25.0, rel=1e-12)
+    assert brome.packs == 1 and brome.ordered.m_as("kg") == 5.0
+    # stock that covers the need orders no pack: 30 kg of aminophenol for 16 kg, 200 kg
+    # of toluene for 196.5 kg (a pack by volume: 0 L to buy)
+    for key in ("aminophenol", "toluene", "K2CO3", "Ac2O"):
+        assert raws[key].buy_m_kg == 0.0 and raws[key].packs == 0, key
+    assert raws["toluene"].buy_V_L == 0.0
+    # not in the stock list: the whole need, packs as without a stock
+    plain = {r.material: r for r in plan_route(load_route(DEMO)).raw_materials}
+    for key in ("NaOH50", "HCl6M"):
+        assert raws[key].stock_m_kg is None and raws[key].packs == plain[key].packs
+    # the stock's own "to buy" is the same shortfall
+    to_buy = {k: m.m_as("kg") for k, m in stocked.stock.to_buy}
+    assert to_buy["BrCH2CO2Et"] == pytest.approx(brome.buy_m_kg, rel=1e-12)
+    assert "toluene" not in to_buy
+
+
+stock_kg = st.floats(min_value=0.0, max_value=600.0, allow_nan=False, allow_infinity=False)
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.dictionaries(st.sampled_from(["aminophenol", "Ac2O", "K2CO3", "BrCH2CO2Et", "NaOH50", "HCl6M",
+                                        "toluene"]), stock_kg))
+def test_law_packs_cover_need_less_stock_with_the_least_packs(plan, on_hand):
+    from routeplan.plan.purchase import with_packs
+
+    for r in with_packs(plan.route, plan.raw_materials, on_hand):
+        if r.packs is None:
+            continue
+        have = on_hand.get(r.material, 0.0)
+        if r.pack_unit == "kg":
+            left = max(0.0, r.m_kg - have)
+        else:  # by volume: the mass left in litres, at the material's density
+            left = max(0.0, r.m_kg - have) * r.V_L / r.m_kg
+        assert r.packs * r.pack_size >= left * (1 - NEED_REL_TOL) - 1e-12  # they cover it
+        if r.packs > 0:
+            assert (r.packs - 1) * r.pack_size < left                     # one fewer would not
+
+
+def test_with_stock_the_purchase_list_says_what_comes_from_stock(stocked, tmp_path):
+    rows = {r["material"]: r for r in purchase_rows(stocked)}
+    assert rows["BrCH2CO2Et"]["stock_kg"] == 25.0 and rows["BrCH2CO2Et"]["packs"] == 1
+    assert rows["NaOH50"]["stock_kg"] == 0.0 and rows["NaOH50"]["buy_L"] == pytest.approx(
+        rows["NaOH50"]["need_L"], rel=1e-12)
+    result = run_cli("plan", DEMO, "--stock", STOCK, "--json", tmp_path / "p.json", "--csv", tmp_path / "csv")
+    assert result.exit_code == 0, result.output
+    assert "To order, whole campaign, less the stock on hand" in result.stdout
+    raws = {r["material"]: r for r in json.loads((tmp_path / "p.json").read_text(encoding="utf-8"))["raw_materials"]}
+    assert raws["BrCH2CO2Et"]["stock_kg"] == 25.0 and raws["BrCH2CO2Et"]["packs"] == 1
+    assert raws["toluene"]["to_buy"] == {"mass_kg": 0.0, "volume_L": 0.0} and raws["toluene"]["packs"] == 0
+    with open(tmp_path / "csv" / "purchases.csv", encoding="utf-8", newline="") as fh:
+        head = next(csv.reader(fh))
+    assert head[4:7] == ["from stock [kg]", "to buy [kg]", "to buy [L]"]

@@ -180,10 +180,22 @@ def test_stock_without_intermediates_changes_nothing(good_text):
     plain = routeplan.plan_to_dict(plan_route(route))
     with_raw = routeplan.plan_to_dict(plan_route(route, stock={"aminophenol": kg(5), "acetone": kg(100)}))
     assert with_raw.pop("stock")["intermediates"] == []
+    # only what is left to buy follows the raw stock (and the packs with it): the walk does not
+    bought = {r["material"]: (r.pop("stock_kg"), r.pop("to_buy"), r.pop("packs"), r.pop("ordered"))
+              for r in with_raw["raw_materials"]}
+    for r in plain["raw_materials"]:
+        for key in ("stock_kg", "to_buy", "packs", "ordered"):
+            r.pop(key)
+    need = {r["material"]: r["mass_kg"] for r in plain["raw_materials"]}
+    assert bought["aminophenol"][0] == 5.0 and bought["aminophenol"][1]["mass_kg"] == need["aminophenol"] - 5.0
+    assert bought["acetone"][0] == need["acetone"] < 100.0 and bought["acetone"][1]["mass_kg"] == 0.0
     assert with_raw == plain
     # an intermediate listed at 0 kg takes nothing: every number is as without stock
     with_zero = routeplan.plan_to_dict(plan_route(route, stock={"paracetamol": kg(0)}))
     with_zero.pop("stock")
+    for r in with_zero["raw_materials"]:  # the stock names no raw material: all of it to buy
+        assert r.pop("stock_kg") is None and r.pop("to_buy")["mass_kg"] == r["mass_kg"]
+        r.pop("packs"), r.pop("ordered")
     assert with_zero["steps"][0].pop("from_stock_mol") == 0.0
     assert with_zero["steps"][0].pop("from_stock_kg") == 0.0
     plain["steps"][0].pop("from_stock_mol"), plain["steps"][0].pop("from_stock_kg")
