@@ -26,9 +26,9 @@ True
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import Any, ClassVar
 
+from routeplan.frozen import frozen
 from routeplan.vocab import Severity
 
 __all__ = [
@@ -48,7 +48,7 @@ __all__ = [
 ]
 
 
-@dataclass(frozen=True)
+@frozen
 class Location:
     """Where something sits in an input file.
 
@@ -241,7 +241,7 @@ class EquationError(RouteplanError, ValueError):
         super().__init__(message, **kw)
 
 
-@dataclass(frozen=True)
+@frozen
 class Problem:
     """One finding about a route file: an error or a warning.
 

@@ -114,8 +114,9 @@ def unit(name: str) -> "pint.Unit":
 
 
 @functools.lru_cache(maxsize=1024)
-def _factor(units: "pint.Unit", name: str) -> float | None:
-    """The factor from ``units`` to the unit ``name`` [-], or None for an offset unit (degC)."""
+def _factor(units, name: str) -> float | None:
+    """The factor from ``units`` (pint's ``UnitsContainer`` of a quantity) to the unit
+    ``name`` [-], or None for an offset unit (degC)."""
     reg = registry()
     one = reg.Quantity(1.0, units)
     if not one._is_multiplicative:
@@ -138,7 +139,8 @@ def magnitude(quantity: "pint.Quantity | None", name: str) -> float | None:
     """
     if quantity is None:
         return None
-    factor = _factor(quantity.units, name)
+    # the quantity's UnitsContainer keys the cache: hashed once, no Unit object built per call
+    factor = _factor(quantity._units, name)
     if factor is None:
         return float(quantity.m_as(unit(name)))
     return float(quantity.magnitude) * factor

@@ -14,12 +14,12 @@ from __future__ import annotations
 import csv
 import functools
 import io
-from dataclasses import dataclass
 from importlib import resources
 from types import MappingProxyType
 from typing import Mapping
 
 from routeplan.errors import FormulaError
+from routeplan.frozen import frozen
 
 __all__ = [
     "ATOMIC_WEIGHTS_FILE",
@@ -52,7 +52,7 @@ _NO_STANDARD_WEIGHT: Mapping[str, str] = MappingProxyType({
 })
 
 
-@dataclass(frozen=True)
+@frozen
 class Element:
     """One row of the atomic weight table.
 

@@ -18,9 +18,10 @@ from __future__ import annotations
 
 import functools
 import re
-from dataclasses import dataclass, field
+from dataclasses import field
 
 from routeplan.errors import EquationError
+from routeplan.frozen import frozen
 
 __all__ = ["Term", "Equation", "parse_equation", "COEFFICIENT_RANGE"]
 
@@ -38,7 +39,7 @@ _WRONG_ARROWS = ("<=>", "<->", "\u21cc", "\u21c4", "\u27f6", "-->", "=>", "=")
 _KEY_CHARS_HINT = "a key has letters, digits, '-', '_' and '.', and starts with a letter or digit"
 
 
-@dataclass(frozen=True)
+@frozen
 class Term:
     """One side's term: a coefficient and a material key.
 
@@ -58,7 +59,7 @@ class Term:
         return self.key if c == 1 else f"{c:g} {self.key}"
 
 
-@dataclass(frozen=True)
+@frozen
 class Equation:
     """A parsed equation.
 

@@ -34,7 +34,7 @@ from __future__ import annotations
 
 import functools
 import re
-from dataclasses import dataclass, field
+from dataclasses import field
 from decimal import Decimal
 from fractions import Fraction
 from types import MappingProxyType
@@ -48,6 +48,7 @@ from routeplan.chemistry.elements import (
     table,
 )
 from routeplan.errors import FormulaError
+from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -99,7 +100,7 @@ _MAX_DIGITS = len(str(MAX_COUNT)) + 6
 _SPACED_CHARGE = re.compile(r"(?P<n>[0-9]+)\s*(?P<sign>[+-])\s*")  # " 2-" after a space
 
 
-@dataclass(frozen=True)
+@frozen
 class Formula:
     """A parsed formula: element counts and a charge.
 

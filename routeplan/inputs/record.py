@@ -32,11 +32,12 @@ mass, an assay of zero or above 100 %, a missing or unknown key or column.
 from __future__ import annotations
 
 import difflib
-from dataclasses import dataclass, field
+from dataclasses import field
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, Mapping
 
 from routeplan.errors import Location, RecordError
+from routeplan.frozen import frozen
 from routeplan.inputs.files import TABLE_SUFFIXES, YAML_SUFFIXES, read_bytes, table_rows, yaml_document
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -52,7 +53,7 @@ TABLE_COLUMNS = RECORD_KEYS + ("unit",)
 _WHAT = "record file"
 
 
-@dataclass(frozen=True)
+@frozen
 class Lot:
     """One isolated batch of one step, as recorded.
 
@@ -90,7 +91,7 @@ class Lot:
         return self.fields.get(key, self.location)
 
 
-@dataclass(frozen=True)
+@frozen
 class Record:
     """The lots of a campaign record, in the order written, and the file they came from."""
 

@@ -26,10 +26,10 @@ Batches
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Problem
+from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.walk import Walked
@@ -54,7 +54,7 @@ MANY_BATCHES = 12
 MAX_BATCHES = 1_000_000
 
 
-@dataclass(frozen=True)
+@frozen
 class Sized:
     """The vessel side of one step over the campaign.
 

@@ -11,11 +11,12 @@ and a price for every raw material); otherwise a note says why it is not.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 from pathlib import Path
 from typing import TYPE_CHECKING, Any, Sequence
 
 from routeplan.errors import CompareError, RouteplanError
+from routeplan.frozen import frozen
 from routeplan.vocab import BetterIs, YieldCase
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -51,7 +52,7 @@ MOLAR_MASS_TOLERANCE = 1e-3
 _TIE = 1e-9
 
 
-@dataclass(frozen=True)
+@frozen
 class CompareRow:
     """One measure, one value per route.
 
@@ -106,7 +107,7 @@ class CompareRow:
                 and all(v is not None for v in self.values))
 
 
-@dataclass(frozen=True, eq=False)
+@frozen(eq=False)
 class Comparison:
     """Routes to one target, planned for one target mass, side by side.
 

@@ -16,10 +16,10 @@ second plan of the same route starts from numbers.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Callable, Mapping
 
 from routeplan.errors import PlanError
+from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.route.model import Material, Route
@@ -54,7 +54,7 @@ def _plain(value: float, unit_name: str, what: Any = None) -> float:
     return value
 
 
-@dataclass(frozen=True)
+@frozen
 class Form:
     """Conversion factors of a material as supplied.
 
@@ -98,7 +98,7 @@ def material_form(mat: "Material", quantity: Callable = _plain) -> Form:
     return Form(kg_per_mol, L_per_kg)
 
 
-@dataclass(frozen=True)
+@frozen
 class CoreCharge:
     """One charge line as numbers.
 
@@ -120,7 +120,7 @@ class CoreCharge:
     workup: bool = False
 
 
-@dataclass(frozen=True)
+@frozen
 class CoreStep:
     """One step as numbers: ``nu_ratio = nu_product / nu_limiting`` [-], ``yield_`` [-].
 
@@ -140,7 +140,7 @@ class CoreStep:
     gases: tuple = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class CoreRoute:
     """The route as numbers: steps in execution order, the target's factors."""
 
@@ -327,7 +327,7 @@ def _taken(on_shelf: Number, n_p: Number) -> Number:
     return n_p if on_shelf >= n_p * (1 - SHELF_REL) else on_shelf
 
 
-@dataclass(frozen=True)
+@frozen
 class WalkStep:
     """One step after the walk: demand, limiting reagent and every charge as numbers.
 
@@ -415,7 +415,7 @@ def _share(n: Number, made: Number) -> Number:
     return n / made if made > made * 0 else 1.0  # a zero in made's own unit (pint, recording numbers)
 
 
-@dataclass(frozen=True)
+@frozen
 class Contents:
     """What the vessel of one step holds over the campaign.
 
@@ -493,9 +493,9 @@ def contents(core: CoreRoute, steps: Mapping[str, WalkStep]) -> dict[str, Conten
             lines_m.append(m)
             if V is not None:
                 held = _plus(held, V)  # [L]
-                fullest = _larger(fullest, held)
             if c.leaves:
-                if V is not None:
+                if V is not None:  # the vessel is fullest just before a charge leaves, or at the end
+                    fullest = _larger(fullest, held)
                     held = held - V  # separated right after it is charged [L]
                 continue
             if V is not None:
@@ -506,6 +506,8 @@ def contents(core: CoreRoute, steps: Mapping[str, WalkStep]) -> dict[str, Conten
         gas = None
         for ratio, M in s.gases:
             gas = _plus(gas, ratio * w.n_lim * M)  # [-] * [mol] * [kg/mol] = [kg]
+        if held is not None:  # volumes only add between leaving charges: no other peak
+            fullest = _larger(fullest, held)
         out[s.id] = Contents(tuple(lines_V), tuple(lines_m), fullest, stays_V,
                              stays_m if gas is None else stays_m - gas, m_rxn, gas)
     return out

@@ -24,9 +24,9 @@ of a batch campaign (common practice, no source).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
+from routeplan.frozen import frozen
 from routeplan.route.model import STREAMS
 from routeplan.units import unit
 
@@ -38,7 +38,7 @@ __all__ = ["CostPart", "CostOfGoods", "raw_material_part", "plant_part", "waste_
            "schedule_waste_cost"]
 
 
-@dataclass(frozen=True)
+@frozen
 class CostPart:
     """One part of the cost of goods.
 
@@ -55,7 +55,7 @@ class CostPart:
     unpriced: tuple[str, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class CostOfGoods:
     """The cost of goods of one plan.
 

@@ -16,9 +16,9 @@ Data only: sentences are :mod:`routeplan.views.derivation_text`'s.
 from __future__ import annotations
 
 import functools
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Mapping
 
+from routeplan.frozen import frozen
 from routeplan.units import magnitude
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -112,7 +112,7 @@ class Traced:
         return f"Traced({self.q!r}, {self.node[0]})"
 
 
-@dataclass(frozen=True)
+@frozen
 class Factor:
     """One factor of a line.
 
@@ -146,7 +146,7 @@ class Factor:
     line: int | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Line:
     """One line: factors multiplied (or added) out to ``value`` [``unit``], called ``what``."""
 
@@ -216,7 +216,7 @@ def _factory(route: "Route"):
     return quantity
 
 
-@dataclass(frozen=True)
+@frozen
 class Derivation:
     """Every named amount of a plan with the lines that derive it.
 

@@ -18,9 +18,12 @@ Words used throughout
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+import functools
+from dataclasses import field
 from types import MappingProxyType
 from typing import TYPE_CHECKING, Any, Mapping
+
+from routeplan.frozen import frozen
 
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -197,10 +200,16 @@ def is_water(material: "Material") -> bool:
     """
     if material.solution is not None or not material.formula:
         return False
+    return _is_water_formula(material.formula)
+
+
+@functools.lru_cache(maxsize=4096)
+def _is_water_formula(formula: str) -> bool:
+    """True when ``formula`` reads as H2O (worked out once per formula)."""
     try:
         from routeplan.chemistry.formula import element_counts
 
-        return element_counts(material.formula) == {"H": 2, "O": 1}
+        return element_counts(formula) == {"H": 2, "O": 1}
     except Exception:  # noqa: BLE001 - an unreadable formula is not water
         return False
 
@@ -375,7 +384,7 @@ def _frozen(d: Mapping) -> Mapping:
     return MappingProxyType(dict(d))
 
 
-@dataclass(frozen=True, eq=False)
+@frozen(eq=False)
 class Metrics:
     """The metrics of one plan; every ratio is per kg of target as delivered.
 

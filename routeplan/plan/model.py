@@ -10,10 +10,11 @@ are set once, when batches are sized, and only read after.
 from __future__ import annotations
 
 import functools
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Problem
+from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     import pandas as pd
@@ -71,7 +72,7 @@ class _Quantity:
         return _q(value, self.unit)
 
 
-@dataclass(frozen=True)
+@frozen
 class ChargePlan:
     """One charge of one step, for the whole campaign and per batch.
 
@@ -162,7 +163,7 @@ class ChargePlan:
     volume_per_batch = _Quantity("V_L_batch", "L", "``V_L_batch`` as a Quantity [L].")
 
 
-@dataclass(frozen=True)
+@frozen
 class BatchPlan:
     """How a step is split into batches in its vessel, and what one batch holds.
 
@@ -231,7 +232,7 @@ class BatchPlan:
     transfer_mass = _Quantity("transfer_m_kg", "kg", "Mixture that goes on, per batch [kg].", per_batch=True)
 
 
-@dataclass(frozen=True)
+@frozen
 class StepPlan:
     """The plan of one step.
 
@@ -320,7 +321,7 @@ class StepPlan:
         return self.not_run is not None and self.stock_n_mol is not None and self.stock_n_mol > 0
 
 
-@dataclass(frozen=True)
+@frozen
 class RawMaterialTotal:
     """A bought material, totalled over the whole route.
 
@@ -398,7 +399,7 @@ class RawMaterialTotal:
     buy_volume = _Quantity("buy_V_L", "L", "What is left to buy after the stock [L], or None.")
 
 
-@dataclass(frozen=True)
+@frozen
 class OverallYield:
     """Overall yield of the route.
 
@@ -423,7 +424,7 @@ class OverallYield:
     high: float | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class StockPlan:
     """What the stock on hand allows, and what to buy.
 
@@ -452,7 +453,7 @@ class StockPlan:
     source: str | None = None
 
 
-@dataclass(frozen=True, eq=False)
+@frozen(eq=False)
 class Plan:
     """The plan of a whole campaign, complete when built (:func:`routeplan.plan.planner.plan_route`).
 

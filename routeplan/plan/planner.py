@@ -12,10 +12,10 @@ one more call here, on the draft, before the Plan is built.
 from __future__ import annotations
 
 import functools
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Location, PlanError, Problem
+from routeplan.frozen import frozen
 from routeplan.plan.walk import YIELD_BASES, walk_route
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -27,7 +27,7 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = ["plan_route", "Draft"]
 
 
-@dataclass(frozen=True, eq=False)
+@frozen(eq=False)
 class Draft:
     """What the planner knows before the Plan is built: what the metrics, the stock and
     every later computation read (the same names as on :class:`Plan`)."""

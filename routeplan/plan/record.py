@@ -35,10 +35,10 @@ several steps is shared in the proportion the plan gives each.  The delivered ta
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Problem, RecordError
+from routeplan.frozen import frozen
 from routeplan.vocab import RecordYields
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -60,7 +60,7 @@ RECORD_YIELDS = tuple(RecordYields)
 _REL = 1e-9
 
 
-@dataclass(frozen=True)
+@frozen
 class LotResult:
     """One recorded lot with its actual yield.
 
@@ -101,7 +101,7 @@ class LotResult:
     location: object = None
 
 
-@dataclass(frozen=True)
+@frozen
 class InHand:
     """What is in hand of one isolated intermediate after the recorded lots.
 
@@ -132,7 +132,7 @@ class InHand:
     lot_names: tuple[str, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class Account:
     """The record worked out against the route, before any re-planning.
 
@@ -177,7 +177,7 @@ class Account:
         return dict(self.actual_yields) if self.record_yields == "actual" else None
 
 
-@dataclass(frozen=True)
+@frozen
 class RecordPlan:
     """The record, the rest of the campaign and where it lands (``Plan.record``).
 

@@ -31,10 +31,10 @@ from __future__ import annotations
 
 import functools
 import re
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
 
 from routeplan.errors import Problem
+from routeplan.frozen import frozen
 from routeplan.route.checks_safety import DEFAULT_PRESSURE_BAR, DEFAULT_TEMPERATURE_C
 from routeplan.units import unit
 from routeplan.vocab import Severity
@@ -92,7 +92,7 @@ _VENT_WORDS = re.compile(r"\b(toxic|flammable)\b", re.I)
 _NOT_VENT = re.compile(r"\bnon-?\s*(toxic|flammable)\b|\bnot\s+(toxic|flammable)\b", re.I)
 
 
-@dataclass(frozen=True)
+@frozen
 class GasEvolved:
     """A gas given off by one batch of a step.
 
@@ -121,7 +121,7 @@ class GasEvolved:
     vent: tuple[str, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class GasTakenUp:
     """A gas taken up by one batch of a step (a hydrogenation, an oxidation).
 
@@ -143,7 +143,7 @@ class GasTakenUp:
     vent: tuple[str, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class ThermalScreen:
     """The heat of one batch, by Stoessel's method.
 
@@ -178,7 +178,7 @@ class ThermalScreen:
     severity: str
 
 
-@dataclass(frozen=True)
+@frozen
 class StepSafety:
     """Heat and gas of one batch of one step.
 

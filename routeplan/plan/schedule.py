@@ -31,8 +31,9 @@ Everything here works on plain numbers: hours [h] as floats; no units, no text f
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Mapping, Sequence
+
+from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import StepPlan
@@ -54,7 +55,7 @@ __all__ = [
 _SAME_TIME_H = 1e-9
 
 
-@dataclass(frozen=True)
+@frozen
 class StepTiming:
     """What the schedule needs of one step, in plain numbers.
 
@@ -79,7 +80,7 @@ class StepTiming:
     feeds_from: tuple[str, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class BatchSlot:
     """One batch in its vessel: number (from 1), start and end [h] from the campaign start."""
 
@@ -88,7 +89,7 @@ class BatchSlot:
     end_h: float
 
 
-@dataclass(frozen=True)
+@frozen
 class StepSlot:
     """One step on the schedule.
 
@@ -137,7 +138,7 @@ class StepSlot:
         return bool(self.batches)
 
 
-@dataclass(frozen=True)
+@frozen
 class VesselUse:
     """How one vessel is used over the campaign.
 
@@ -170,7 +171,7 @@ class VesselUse:
         return sum((b - a for a, b in self.idle), 0.0)
 
 
-@dataclass(frozen=True)
+@frozen
 class Schedule:
     """The campaign on its vessels.
 

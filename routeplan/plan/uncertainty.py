@@ -38,10 +38,10 @@ is ``sum_s m_s r_s`` with ``m_s`` its planned mass in step ``s`` [kg].
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any, Sequence
 
 from routeplan.errors import Location, PlanError
+from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -92,7 +92,7 @@ QUANTILE_LEVELS = (0.05, 0.10, 0.25, 0.50, 0.75, 0.90, 0.95)
 HISTOGRAM_BINS = 24
 
 
-@dataclass(frozen=True)
+@frozen
 class ForwardStep:
     """One step of the forward structure (plain numbers, derived once from the Plan).
 
@@ -126,7 +126,7 @@ class ForwardStep:
         return self.high > self.low
 
 
-@dataclass(frozen=True)
+@frozen
 class Forward:
     """The campaign as the forward run sees it.
 
@@ -152,7 +152,7 @@ class Forward:
     raw_need: tuple[tuple[str, tuple[tuple[int, float], ...]], ...]
 
 
-@dataclass(frozen=True)
+@frozen
 class Uncertainty:
     """What the draws say about the campaign planned at the expected yields.
 

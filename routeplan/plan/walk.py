@@ -18,10 +18,10 @@ and the checks that every number is finite.  It is a leaf: it imports only the c
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import PlanError
+from routeplan.frozen import frozen
 from routeplan.plan.core import CoreRoute, WalkStep, compile_route, target_amount, walk
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -33,7 +33,7 @@ __all__ = ["YIELD_BASES", "Walked", "walk_route", "shelf_moles"]
 YIELD_BASES = ("expected", "low", "high")
 
 
-@dataclass(frozen=True)
+@frozen
 class Walked:
     """The walk of a route for one target, in floats.
 

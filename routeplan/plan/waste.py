@@ -33,12 +33,14 @@ Plain floats in fixed units: masses [kg], amounts [mol].
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+import functools
+from dataclasses import field
 from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Problem
+from routeplan.frozen import frozen
 from routeplan.route.model import STREAMS
-from routeplan.units import unit
+from routeplan.units import magnitude
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
@@ -85,7 +87,6 @@ def stream_of(material: "Material") -> str | None:
     >>> stream_of(Material(key="celite", name="filter aid")) is None
     True
     """
-    from routeplan.chemistry.formula import element_counts
     from routeplan.plan.metrics import is_water
 
     if material.stream is not None:
@@ -94,8 +95,16 @@ def stream_of(material: "Material") -> str | None:
         return "aqueous"
     if not material.formula:
         return None
+    return _formula_stream(material.formula)
+
+
+@functools.lru_cache(maxsize=4096)
+def _formula_stream(formula: str) -> str | None:
+    """``"halogenated"``, ``"organic"`` or None by the elements of ``formula`` (worked out once per formula)."""
+    from routeplan.chemistry.formula import element_counts
+
     try:
-        counts = element_counts(material.formula)
+        counts = element_counts(formula)
     except Exception:  # noqa: BLE001 - an unreadable formula was refused at load; be safe
         return None
     if any(counts.get(x) for x in HALOGENS):
@@ -105,7 +114,7 @@ def stream_of(material: "Material") -> str | None:
     return None
 
 
-@dataclass(frozen=True)
+@frozen
 class ByProduct:
     """A by-product of a step from its equation.
 
@@ -127,7 +136,7 @@ class ByProduct:
     gas: bool = False
 
 
-@dataclass(frozen=True)
+@frozen
 class StreamMasses:
     """Masses of waste by stream [kg].
 
@@ -159,7 +168,7 @@ class StreamMasses:
                             self.halogenated_kg + other.halogenated_kg, self.residue_kg + other.residue_kg)
 
 
-@dataclass(frozen=True)
+@frozen
 class StepWaste:
     """What leaves one step besides its product.
 
@@ -217,7 +226,7 @@ class StepWaste:
         return sum(b.mass_kg for b in self.by_products if b.mass_kg is not None)
 
 
-@dataclass(frozen=True)
+@frozen
 class Waste:
     """Waste of the whole campaign.
 
@@ -293,7 +302,7 @@ def by_products(route: "Route", step_id: str, product_mol: float) -> tuple[ByPro
             continue
         mat = route.materials[t.key]
         n = t.coefficient / nu_p * product_mol
-        mass = None if mat.molar_mass is None else n * _in(mat.molar_mass, unit("g/mol")) / 1000.0  # g -> kg
+        mass = None if mat.molar_mass is None else n * magnitude(mat.molar_mass, "g/mol") / 1000.0  # g -> kg
         out.append(ByProduct(t.key, n, mass, _is_gas(mat)))
     return tuple(out)
 
@@ -303,18 +312,25 @@ def gas_evolved_kg(items: tuple[ByProduct, ...]) -> float:
     return sum((b.mass_kg for b in items if b.gas and b.mass_kg is not None), 0.0)
 
 
-def _streams(route: "Route", charges, masses) -> tuple[StreamMasses, dict[str, list[str]]]:
-    """Stream masses of ``charges``, the mass of each given in ``masses`` [kg]."""
+def _charge_streams(route: "Route", charges) -> list[str | None]:
+    """The stream each charge goes to, None for one that goes to none (see the module text)."""
     mats = route.materials
+    out: list[str | None] = []
+    for c in charges:
+        mat = None if c.intermediate else mats[c.material]
+        if mat is None or (c.role not in STREAM_ROLES and mat.stream is None):
+            out.append(None)
+        else:
+            out.append(stream_of(mat))
+    return out
+
+
+def _streams(charges, masses, streams: list[str | None]) -> tuple[StreamMasses, dict[str, list[str]]]:
+    """Stream masses of ``charges``, the mass of each given in ``masses`` [kg] and its
+    stream in ``streams`` (:func:`_charge_streams`)."""
     kg = {s: 0.0 for s in STREAMS}
     names: dict[str, list[str]] = {s: [] for s in STREAMS}
-    for c, m in zip(charges, masses):
-        if c.intermediate:
-            continue
-        mat = mats[c.material]
-        if c.role not in STREAM_ROLES and mat.stream is None:
-            continue
-        s = stream_of(mat)
+    for c, m, s in zip(charges, masses, streams):
         if s is None:
             continue
         kg[s] += m
@@ -326,11 +342,6 @@ def _streams(route: "Route", charges, masses) -> tuple[StreamMasses, dict[str, l
 def _with_residue(streams: StreamMasses, waste: float) -> StreamMasses:
     rest = waste - (streams.aqueous_kg + streams.organic_kg + streams.halogenated_kg)
     return StreamMasses(streams.aqueous_kg, streams.organic_kg, streams.halogenated_kg, rest)
-
-
-def _in(q, u) -> float:
-    """Magnitude of ``q`` in unit ``u``, without a conversion where it is in ``u`` already."""
-    return float(q.magnitude) if q.units == u else float(q.m_as(u))
 
 
 def step_waste(route: "Route", sp: "StepPlan") -> StepWaste:
@@ -349,11 +360,12 @@ def step_waste(route: "Route", sp: "StepPlan") -> StepWaste:
     masses = [c.m_kg for c in sp.charges]
     inputs = sum(masses)
     product = sp.product_m_kg
-    streams, names = _streams(route, sp.charges, masses)
+    where = _charge_streams(route, sp.charges)
+    streams, names = _streams(sp.charges, masses, where)
     per_batch = None
     if sp.runs and sp.batch is not None and sp.batches > 0:
         b_masses = [c.m_kg_batch for c in sp.charges]
-        b_streams, _ = _streams(route, sp.charges, b_masses)
+        b_streams, _ = _streams(sp.charges, b_masses, where)
         per_batch = _with_residue(b_streams, sum(b_masses) - sp.batch.per_batch(sp.batch.product_m_kg))
     items = by_products(route, sp.id, sp.product_n_mol)
     raw = sum(m for c, m in zip(sp.charges, masses) if not c.intermediate)

@@ -7,8 +7,9 @@ located :class:`~routeplan.errors.Problem`.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
+
+from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.vocab import Severity
@@ -16,7 +17,7 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = ["Finding"]
 
 
-@dataclass(frozen=True)
+@frozen
 class Finding:
     """One plausibility problem, to be located by the caller.
 

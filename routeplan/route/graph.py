@@ -11,6 +11,7 @@ networkx is imported inside the functions, never at module top.
 
 from __future__ import annotations
 
+import heapq
 from typing import TYPE_CHECKING
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -110,11 +111,33 @@ def execution_order(route: "Route") -> list[str]:
 
     Ties are broken by the order of the steps in the file, so the order is stable.
     """
-    import networkx as nx
+    return _file_order_sort(step_graph(route.steps), route.steps)
 
-    g = step_graph(route.steps)
-    position = {s.id: i for i, s in enumerate(route.steps)}
-    return list(nx.lexicographical_topological_sort(g, key=lambda n: position[n]))
+
+def _file_order_sort(g: "nx.DiGraph", steps) -> list[str]:
+    """The nodes of the step graph ``g`` in topological order, ties to the earlier step in ``steps``.
+
+    Kahn's algorithm with the ready steps in a heap keyed by file position: the order
+    ``networkx.lexicographical_topological_sort(g, key=position)`` gives, at a fraction
+    of its cost (it spends about 4 us a step on wrapping and dispatch, which a plan of
+    10 000 steps pays more than once).  ``g`` must have no cycle (the loader refuses one).
+    """
+    position = {s.id: i for i, s in enumerate(steps)}
+    succ, pred = g.succ, g.pred
+    waiting = {n: len(p) for n, p in pred.items()}
+    ready = [(position[n], n) for n, k in waiting.items() if k == 0]
+    heapq.heapify(ready)
+    out = []
+    while ready:
+        _pos, n = heapq.heappop(ready)
+        out.append(n)
+        for m in succ[n]:
+            waiting[m] -= 1
+            if waiting[m] == 0:
+                heapq.heappush(ready, (position[m], m))
+    if len(out) < len(waiting):  # the loader refuses a cycle; kept as a guard
+        raise ValueError("the steps form a cycle")
+    return out
 
 
 def steps_leading_to(route: "Route", step_id: str) -> set[str]:
@@ -186,7 +209,7 @@ def longest_linear_sequence(route: "Route") -> list[str]:
             a, b = parent[a], parent[b]
         return first_a is not None and first_a < first_b
 
-    for sid in execution_order(route):
+    for sid in _file_order_sort(g, route.steps):
         if sid not in keep:
             continue
         best = None

@@ -9,11 +9,12 @@ been given their stoichiometric line), and quantities carry pint units.
 from __future__ import annotations
 
 import functools
-from dataclasses import dataclass, field
+from dataclasses import field
 from types import MappingProxyType
 from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import Location, Problem
+from routeplan.frozen import frozen
 from routeplan.vocab import Basis, Role
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -59,7 +60,7 @@ ROLES: tuple[Role, ...] = tuple(Role)
 STREAMS = ("aqueous", "organic", "halogenated")
 
 
-@dataclass(frozen=True)
+@frozen
 class Solution:
     """A reagent supplied as a solution of the material's compound.
 
@@ -80,7 +81,7 @@ class Solution:
     mass_fraction: float | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Material:
     """A substance the route touches.
 
@@ -145,7 +146,7 @@ class Material:
     stream: str | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Vessel:
     """A vessel the route may use.
 
@@ -168,7 +169,7 @@ class Vessel:
     rate: float | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Charge:
     """One line of a step's charges, in order of addition.
 
@@ -221,7 +222,7 @@ class Charge:
         return None
 
 
-@dataclass(frozen=True)
+@frozen
 class Control:
     """A point of a step where the operator records temperature and time.
 
@@ -240,7 +241,7 @@ class Control:
     limit: str | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Yield:
     """Molar yield of a step's product from its limiting reagent [-]."""
 
@@ -249,7 +250,7 @@ class Yield:
     high: float | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Conditions:
     """A step's reaction conditions, as written (``steps[].conditions``).
 
@@ -266,7 +267,7 @@ class Conditions:
     location: Location | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Dosing:
     """The charge of a step that is dosed over a time (semi-batch).
 
@@ -283,7 +284,7 @@ class Dosing:
     location: Location | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Thermal:
     """A step's thermal data (``steps[].thermal``), for a screening estimate.
 
@@ -313,7 +314,7 @@ class Thermal:
     location: Location | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Step:
     """One reaction of the route.
 
@@ -388,7 +389,7 @@ class Step:
         return None
 
 
-@dataclass(frozen=True)
+@frozen
 class Target:
     """What the campaign must deliver.
 
@@ -408,7 +409,7 @@ class Target:
     location: Location | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Source:
     """The file a route was read from: name and SHA-256 of its bytes."""
 
@@ -416,7 +417,7 @@ class Source:
     sha256: str
 
 
-@dataclass(frozen=True)
+@frozen
 class WastePrices:
     """Disposal cost per kg of each waste stream, in the route's currency [currency/kg].
 
@@ -432,7 +433,7 @@ class WastePrices:
         return getattr(self, stream)
 
 
-@dataclass(frozen=True, eq=False)
+@frozen(eq=False)
 class Route:
     """A whole, checked route.
 

@@ -9,9 +9,9 @@ writer, the workbook's Derivation sheet and the HTML report take :func:`derivati
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
+from routeplan.frozen import frozen
 from routeplan.views.numbers import sig
 from routeplan.views.tables import column_unit, fmt, step_charge_rows
 
@@ -39,7 +39,7 @@ def _with_unit(value: float, unit: str, digits: int = 6) -> str:
     return _num(value, digits) + (f" {unit}" if unit else "")
 
 
-@dataclass(frozen=True)
+@frozen
 class FactorView:
     """One factor as people read it.
 
@@ -73,7 +73,7 @@ class FactorView:
     elsewhere: int | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class LineView:
     """One line: factors and the result they give.
 
@@ -106,7 +106,7 @@ class LineView:
     origin: int
 
 
-@dataclass(frozen=True)
+@frozen
 class Explanation:
     """How the plan gets one number: a title, the lines, the plan's own numbers and notes.
 

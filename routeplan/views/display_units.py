@@ -27,7 +27,7 @@ units offered (:data:`UNITS`) are those of NIST SP 811 (2008) with decimal prefi
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from routeplan.frozen import frozen
 
 from routeplan.views.numbers import sig
 
@@ -35,7 +35,7 @@ __all__ = ["Unit", "DisplayUnits", "UNITS", "SETS", "AUTO", "LAB_BELOW_KG", "PLA
            "scale_set", "choose_units", "plan_units", "units_help"]
 
 
-@dataclass(frozen=True)
+@frozen
 class Unit:
     """A unit shown to people: its symbol and its size in the plan's base unit.
 
@@ -75,7 +75,7 @@ def _typed(unit: Unit) -> str:
     return "m3" if unit.symbol == "m³" else unit.symbol
 
 
-@dataclass(frozen=True)
+@frozen
 class DisplayUnits:
     """The units a plan is shown in: one for amounts, one for masses, one for volumes.
 

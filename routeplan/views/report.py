@@ -9,9 +9,9 @@ writer can put it in a ``data-value`` attribute and a test can read the report b
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
+from routeplan.frozen import frozen
 from routeplan.views.tables import (charge_label, column_unit, display_quantity, fmt, raw_material_rows,
                                     step_charge_rows)
 
@@ -23,7 +23,7 @@ __all__ = ["Cell", "Table", "Section", "ChargeDerivation", "StepSection", "Chart
 
 
 
-@dataclass(frozen=True)
+@frozen
 class Cell:
     """A table cell: text shown, the number behind it in the column's base unit, and the
     anchor of the line that derives it (``link``), where the report shows derivations."""
@@ -34,7 +34,7 @@ class Cell:
     link: str | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Table:
     """A table: column keys, headings (with units) and rows of cells; ``keys_by_row``
     names each row where rows are facts (``p10``, ``buy:water``)."""
@@ -46,7 +46,7 @@ class Table:
     keys_by_row: tuple[str, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class Section:
     """A section from an optional part of the Plan (uncertainty, safety, record, ...).
 
@@ -68,7 +68,7 @@ class Section:
     facts: Table | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class ChargeDerivation:
     """How the plan gets the numbers of one charge, as the report shows it.
 
@@ -94,7 +94,7 @@ class ChargeDerivation:
     links: tuple[tuple[str | None, ...], ...]
 
 
-@dataclass(frozen=True)
+@frozen
 class StepSection:
     """One step of the report.
 
@@ -134,7 +134,7 @@ class StepSection:
     derivations: tuple[ChargeDerivation, ...] = ()
 
 
-@dataclass(frozen=True)
+@frozen
 class ChartData:
     """Series for the charts, every value in the unit named.
 
@@ -180,7 +180,7 @@ class ChartData:
     timeline: dict | None = None
 
 
-@dataclass(frozen=True)
+@frozen
 class Report:
     """Everything the report of one plan shows."""
 

@@ -27,8 +27,9 @@ Only geometry and text are computed here; :mod:`routeplan.export.html_scheme` dr
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING
+
+from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -52,7 +53,7 @@ _LANE = 10.0
 _MARGIN = 12.0
 
 
-@dataclass(frozen=True)
+@frozen
 class SchemeNode:
     """One box of the scheme (or a bend of a long arrow, ``kind == "bend"``).
 
@@ -112,7 +113,7 @@ class SchemeNode:
                 self.x + self.width / 2, self.y + self.height / 2)
 
 
-@dataclass(frozen=True)
+@frozen
 class SchemeEdge:
     """An arrow: a polyline from the bottom of one box to the top of another [px]."""
 
@@ -122,7 +123,7 @@ class SchemeEdge:
     head: bool
 
 
-@dataclass(frozen=True)
+@frozen
 class Scheme:
     """A laid-out scheme: boxes, arrows and the size of the drawing [px]."""
 

@@ -6,8 +6,9 @@ has its columns declared once, with the heading and unit shown to people.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
+
+from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     import pandas as pd
@@ -29,7 +30,7 @@ __all__ = [
 ]
 
 
-@dataclass(frozen=True)
+@frozen
 class Column:
     """A table column: row key, heading and unit (empty for none)."""
 

@@ -8,12 +8,12 @@ holds no width, no colour and no markup.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from routeplan.frozen import frozen
 
 __all__ = ["Para", "Col", "Grid", "Pre", "Block", "blank", "para_of_line"]
 
 
-@dataclass(frozen=True)
+@frozen
 class Para:
     """A paragraph: one logical line, wrapped by the writer.
 
@@ -38,7 +38,7 @@ class Para:
     label: str = ""
 
 
-@dataclass(frozen=True)
+@frozen
 class Col:
     """A column of a :class:`Grid`.
 
@@ -57,7 +57,7 @@ class Col:
     wrap: bool = False
 
 
-@dataclass(frozen=True)
+@frozen
 class Grid:
     """A table: columns, then rows of text cells (a cell may hold lines split by ``\\n``).
 
@@ -80,7 +80,7 @@ class Grid:
     strong: frozenset = frozenset()
 
 
-@dataclass(frozen=True)
+@frozen
 class Pre:
     """Lines laid out as they are, never wrapped (a timeline whose columns are hours)."""
 

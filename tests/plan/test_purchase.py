@@ -167,3 +167,19 @@ def test_with_stock_the_purchase_list_says_what_comes_from_stock(stocked, tmp_pa
     with open(tmp_path / "csv" / "purchases.csv", encoding="utf-8", newline="") as fh:
         head = next(csv.reader(fh))
     assert head[4:7] == ["from stock [kg]", "to buy [kg]", "to buy [L]"]
+
+
+def test_with_stock_process_water_is_never_to_buy(stocked):
+    # water is 'bought: false' in the demo and not in demo_routes/stock.yaml: it is not
+    # to buy, nor "not in stock, to buy in full"; the stock lines say why
+    from routeplan.export.json import plan_to_dict
+    from routeplan.views.stock_text import stock_lines
+
+    assert "water" not in {k for k, _m in stocked.stock.to_buy}
+    lines = stock_lines(stocked)
+    assert not any(line.strip().startswith("water:") for line in lines)
+    full = next(line for line in lines if "to buy in full" in line)
+    assert "water" not in full and "EtOH" in full
+    assert any("not bought, so not listed: process water (water)" in line for line in lines)
+    data = plan_to_dict(stocked)["stock"]
+    assert "water" not in data["not_in_stock"] and "water" not in {r["material"] for r in data["to_buy"]}

@@ -91,6 +91,20 @@ def test_the_choice_is_the_rule_and_ignores_file_order(case):
     assert longest_linear_sequence(_route(shuffled, final)) == expected
 
 
+@settings(max_examples=200, deadline=None)
+@given(dags())
+def test_execution_order_is_networkx_lexicographic_order_by_file_position(case):
+    # reference: networkx.lexicographical_topological_sort, keyed by the position in the file
+    import networkx as nx
+
+    steps, perm = case
+    for order in (steps, [steps[i] for i in perm]):
+        g = graph.step_graph(order)
+        position = {s.id: i for i, s in enumerate(order)}
+        expected = list(nx.lexicographical_topological_sort(g, key=position.__getitem__))
+        assert execution_order(_route(order, steps[-1].product)) == expected
+
+
 def test_equal_yields_fall_back_to_step_ids():
     # two branches of two steps with equal overall yields (0.9 * 0.8 = 0.8 * 0.9): ids decide
     steps = [_step("B1", "b1", ["rb"], 0.8), _step("B2", "b2", ["b1"], 0.9),
