@@ -6,7 +6,7 @@ import pytest
 
 import routeplan
 
-from conftest import run_cli, write_route
+from conftest import run_cli, words, write_route
 from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route_text
 
@@ -110,7 +110,7 @@ def test_terminal_shows_batches(tmp_path):
     path = write_route(tmp_path, ROUTE)
     result = run_cli("plan", path)
     assert result.exit_code == 0, result.output
-    assert "2 batches of 40 L" in result.stdout
+    assert "2 batches of 40.00 L" in words(result.stdout)  # 4 significant figures, folded to the width
     assert "m/batch [kg]" in result.stdout
 
 
