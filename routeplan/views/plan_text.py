@@ -21,6 +21,7 @@ from routeplan.views.text_blocks import Block, Col, Grid, Para, Pre, blank, para
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
+    from routeplan.route.model import Route
 
 __all__ = ["plan_blocks", "caution_block", "header_text", "step_title", "batch_notes", "yield_blocks",
            "timeline_columns", "TIMELINE_COLUMNS"]
@@ -70,20 +71,29 @@ def _step_grid(sp: "StepPlan", plan: "Plan", u: DisplayUnits) -> Grid:
     return Grid(tuple(cols), tuple(out))
 
 
-def batch_notes(sp: "StepPlan", u: DisplayUnits) -> list[str]:
-    """What the step's volume leaves out or carries in, one note per charge concerned.
+def batch_notes(sp: "StepPlan", u: DisplayUnits, route: "Route") -> list[str]:
+    """What the step's volume carries in or leaves out, as notes for the reader.
 
     A charge carried in solution from a telescoped step brings that mixture's volume
-    (``ChargePlan.V_L`` [L]); a charge without a density adds no volume.
+    (``ChargePlan.V_L`` [L]), one note each; the charges without a density add no
+    volume, named in one note.  A gas (``phase: gas``) is never in the liquid volume and
+    is not named: its volume is in the step's safety lines.
     """
-    notes = []
+    notes, no_density = [], []
     for c in sp.charges:
         if c.carried_from is not None:
-            notes.append(f"{c.material} comes in solution from {c.carried_from}: {u.volume_text(c.V_L)} of its "
-                         "mixture carried in")
-        elif c.V_L is None:
-            notes.append(f"{c.material} has no density, so its volume is left out")
+            notes.append(f"{c.material} comes in solution from {c.carried_from}: "
+                         + ("its mixture, of no known volume, carried in" if c.V_L is None else
+                            f"{u.volume_text(c.V_L)} of its mixture carried in"))
+        elif c.V_L is None and route.materials[c.material].phase != "gas" and c.material not in no_density:
+            no_density.append(c.material)
+    if no_density:
+        notes.append(f"the volume leaves out {_join(no_density)} (no density in the route file)")
     return notes
+
+
+def _join(words: list[str]) -> str:
+    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
 
 
 def _step_footer(plan: "Plan", sp: "StepPlan", u: DisplayUnits) -> list[Para]:
@@ -95,7 +105,7 @@ def _step_footer(plan: "Plan", sp: "StepPlan", u: DisplayUnits) -> list[Para]:
     if b is not None and b.vessel is not None:
         out.append(Para(f"vessel {b.vessel}: {_plural(b.batches, 'batch', 'batches')} of "
                         f"{u.volume_text(b.batch_V_L)}, fill {pct(b.fill_fraction)} of nominal volume", indent=2))
-    out += [Para(f"note: {note}", indent=2) for note in batch_notes(sp, u)]
+    out += [Para(f"note: {note}", indent=2) for note in batch_notes(sp, u, plan.route)]
     transfer = transfer_text(plan, sp, u)
     if transfer:
         out.append(Para(transfer, indent=2))

@@ -265,6 +265,8 @@ def charge_derivations_view(plan: "Plan") -> dict[str, tuple[tuple[ChargeDerivat
 
 
 def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
+    from routeplan.views.display_units import SETS
+    from routeplan.views.plan_text import batch_notes
     from routeplan.views.transfer_text import transfer_text
 
     facts = []
@@ -287,7 +289,7 @@ def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
                                            f"{sp.limiting} charged, "
                                            f"{display_quantity(b.product_mass.m_as('kg'), 'mass')} of "
                                            f"{sp.product} made"))
-            for note in b.notes:
+            for note in batch_notes(sp, SETS["kilo"], plan.route):
                 facts.append(("note", note))
         transfer = transfer_text(plan, sp)
         if transfer:
