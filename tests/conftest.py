@@ -40,6 +40,12 @@ def missing_tool(reason: str) -> None:
     pytest.skip(reason)
 
 
+def words(text: str) -> str:
+    """``text`` with every run of spaces and line breaks made one space: what a terminal
+    printout says, whatever width it was folded to."""
+    return " ".join(text.split())
+
+
 def run_cli(*args: str):
     """Run ``routeplan ARGS...`` in-process; return click's result.
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import caution_line, echo_err, echo_warnings
+from routeplan.commands.common import echo_caution, echo_err, echo_warnings
 from routeplan.vocab import Severity
 
 
@@ -95,6 +95,14 @@ def summary(route, n_warnings: int | None = None) -> list[str]:
     return lines
 
 
+def _print_lines(lines: list[str]) -> None:
+    """Lines to standard output, each folded to the width with a hanging indent."""
+    from routeplan.export.terminal import print_blocks
+    from routeplan.views.text_blocks import para_of_line
+
+    print_blocks([para_of_line(x, hang=6 if x.lstrip()[:1].isdigit() else 4) for x in lines])
+
+
 @click.command("check")
 @click.argument("routes", nargs=-1, required=True, metavar="ROUTE...")
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
@@ -136,15 +144,14 @@ def check_cmd(ctx: click.Context, routes: tuple[str, ...], strict: bool) -> None
             failed += 1
             continue
         valid += 1
-        for line in summary(route, len(warnings)):
-            click.echo(line)
+        _print_lines(summary(route, len(warnings)))
         echo_warnings(warnings, strict=strict)
         if strict and warnings:
             n = len(warnings)
             echo_err(f"{path}: {n} warning{'s' if n != 1 else ''}, counted as errors under --strict")
             failed += 1
     if valid:
-        click.echo(caution_line())
+        echo_caution()
     if failed:
         ctx.exit(2)
 

@@ -9,19 +9,73 @@ from routeplan.vocab import Severity
 
 
 def echo_err(text: str) -> None:
-    """Write a line to standard error."""
+    """Write a line to standard error, after what is waiting for standard output.
+
+    Flushing standard output first keeps the two in order where they meet (``2>&1``, a
+    terminal): a warning never lands inside a line of the tables.
+    """
+    import sys
+
+    try:
+        sys.stdout.flush()
+    except (OSError, ValueError):  # a closed standard output: the funnel reports it
+        pass
     click.echo(text, err=True)
 
 
 def echo_warnings(problems, *, strict: bool = False) -> None:
-    """Print warnings to standard error, one per line."""
+    """Print warnings to standard error, each once, in the order found.
+
+    On a terminal a long warning is folded to its width with a hanging indent; otherwise
+    each stays on one line (``file:line:column: ...``), as editors and ``grep`` read them.
+    """
+    import sys
+
+    from routeplan.export.terminal import is_terminal, output_width, wrap_text
+
+    fold = is_terminal(sys.stderr)
+    width = output_width(sys.stderr) if fold else 0
+    seen: set[str] = set()
     for p in problems:
-        echo_err(f"{Severity.ERROR if strict else Severity.WARNING}: {p.render()}")
+        text = f"{Severity.ERROR if strict else Severity.WARNING}: {p.render()}"
+        if text in seen:
+            continue
+        seen.add(text)
+        echo_err("\n".join(wrap_text(text, width, hang=4)) if fold else text)
 
 
 def caution_line() -> str:
     """The safety caution, as one line."""
     return "CAUTION: " + CAUTION
+
+
+def echo_caution() -> None:
+    """Print the safety caution as the last lines of standard output, folded to its width."""
+    from routeplan.export.terminal import print_blocks
+    from routeplan.views.plan_text import caution_block
+
+    print_blocks([caution_block()])
+
+
+#: Help text of ``--units`` (kept here so that ``--help`` imports nothing heavy).
+UNITS_HELP = ("Units of the whole printout, one per kind: 'auto' (default: lab = mmol, g, mL below 1 kg of "
+              "target; kilo = mol, kg, L below 100 kg; plant = kmol, kg, L from 100 kg), 'lab', 'kilo', "
+              "'plant', or units separated by commas, e.g. 'g,mmol,mL' or 't,m3' (from mmol, mol, kmol; mg, g, "
+              "kg, t; mL, L, m3; a kind left out follows 'auto').")
+
+
+def units_option(text: str | None) -> str | None:
+    """Check a ``--units`` value before anything is planned; returns it unchanged.
+
+    Raises
+    ------
+    QuantityError
+        A value that names no set and no unit routeplan shows (located at ``--units``).
+    """
+    from routeplan.views.display_units import parse_units
+
+    parse_units(text)
+    return text
 
 
 def write_text_output(text: str, dest: str) -> None:

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
-                                       echo_warnings, finish_outputs, output_set)
+from routeplan.commands.common import (UNITS_HELP, caution_line, check_output_paths, confidence_option, echo_err,
+                                       echo_warnings, finish_outputs, output_set, units_option)
 from routeplan.vocab import YieldCase
 
 
@@ -27,9 +27,10 @@ from routeplan.vocab import YieldCase
                    'and the target to plan for PERCENT confidence, e.g. "90 %".')
 @click.option("--draws", "draws", type=int, metavar="N", help="Number of yield draws with --confidence (default 100000).")
 @click.option("--seed", "seed", type=int, metavar="S", help="Seed of the yield draws with --confidence (default 1).")
+@click.option("--units", "units", metavar="UNITS", help=UNITS_HELP)
 def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | None,
                 xlsx_out: str | None, html_out: str | None, yields: str, confidence: str | None,
-                draws: int | None, seed: int | None) -> None:
+                draws: int | None, seed: int | None, units: str | None = None) -> None:
     """Compare two or more ROUTES to the same target, side by side.
 
     Every route is planned for the same mass of target: --target if given, else the
@@ -51,6 +52,7 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
     from routeplan.units import parse_quantity
 
     check_output_paths(json_out=json_out, xlsx_out=xlsx_out, html_out=html_out)
+    units_option(units)
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
@@ -81,8 +83,9 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
         echo_err(caution_line())
     else:
         from routeplan.export.compare_out import print_comparison
+        from routeplan.views.display_units import choose_units
 
-        print_comparison(cmp)
+        print_comparison(cmp, units=choose_units(cmp.amount, units))
 
 
 def register(cli: click.Group) -> None:

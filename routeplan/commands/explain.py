@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import caution_line, echo_warnings
+from routeplan.commands.common import UNITS_HELP, caution_line, echo_warnings, units_option
 from routeplan.vocab import YieldCase
 
 
@@ -21,8 +21,9 @@ from routeplan.vocab import YieldCase
               help="Campaign record (YAML, CSV or xlsx), as for plan: explain the rest of the campaign.")
 @click.option("--record-yields", "record_yields", type=click.Choice(["expected", "actual"]), default="expected",
               show_default=True, help="With --record: as for plan.")
+@click.option("--units", "units", metavar="UNITS", help=UNITS_HELP + " The result is shown as plan shows it.")
 def explain_cmd(route: str, what: tuple[str, ...], target: str | None, stock_file: str | None,
-                yields: str, record_file: str | None, record_yields: str) -> None:
+                yields: str, record_file: str | None, record_yields: str, units: str | None = None) -> None:
     """Show how the plan of ROUTE gets one number, one chain of factors per line.
 
     STEP MATERIAL: the charge of MATERIAL in STEP; target: the moles of target to make;
@@ -34,6 +35,7 @@ def explain_cmd(route: str, what: tuple[str, ...], target: str | None, stock_fil
     from routeplan.route.load import load_route
     from routeplan.units import parse_quantity
     from routeplan.views.derivation_text import charge_text, raw_text, target_text
+    from routeplan.views.display_units import plan_units
 
     if record_yields != "expected" and record_file is None:
         raise click.UsageError("--record-yields applies to a campaign record; give --record FILE too")
@@ -41,16 +43,18 @@ def explain_cmd(route: str, what: tuple[str, ...], target: str | None, stock_fil
             or what[0] == "raw" and len(what) != 2:
         raise PlanError(f"cannot read '{' '.join(what)}'", location=Location(key="explain"),
                         hint="give STEP MATERIAL, 'target' or 'raw MATERIAL'")
+    units_option(units)
     amount = None if target is None else parse_quantity(target, "mass", where=Location(key="--target"))
     r = load_route(route)
     plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), record=record_file,
                       record_yields=record_yields, explain=True)
+    shown = plan_units(plan, units)
     if what[0] == "target":
         lines = target_text(plan)
     elif what[0] == "raw":
-        lines = raw_text(plan, what[1])
+        lines = raw_text(plan, what[1], shown)
     else:
-        lines = charge_text(plan, what[0], what[1])
+        lines = charge_text(plan, what[0], what[1], shown)
     for line in lines:
         click.echo(line)
     echo_warnings(plan.warnings)

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import (caution_line, check_output_paths, confidence_option, echo_err,
-                                       echo_warnings, finish_outputs, output_set)
+from routeplan.commands.common import (UNITS_HELP, caution_line, check_output_paths, confidence_option, echo_caution,
+                                       echo_err, echo_warnings, finish_outputs, output_set, units_option)
 from routeplan.vocab import YieldCase
 
 
@@ -44,18 +44,21 @@ from routeplan.vocab import YieldCase
               help="With --json: add to each charge the derivation of its numbers (factors with value, unit, "
                    "what and source); with --xlsx: add a Derivation sheet with live formulas.  The --html "
                    "report always has them: a number of a charge table opens its derivation.")
+@click.option("--units", "units", metavar="UNITS", help=UNITS_HELP)
 @click.option("--strict", is_flag=True, help="Treat every warning as an error (exit code 2).")
 @click.option("--quiet", "-q", is_flag=True, help="Do not print the tables (warnings and errors still go to standard error).")
 def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str | None,
              csv_dir: str | None, html_out: str | None, stock_file: str | None, yields: str,
              confidence: str | None, draws: int | None,
              seed: int | None, record_file: str | None, record_yields: str, strict: bool,
-             quiet: bool, explain: bool = False) -> None:
+             quiet: bool, explain: bool = False, units: str | None = None) -> None:
     """Plan every charge of every step of ROUTE for the target mass.
 
-    Prints one table per step in execution order (mol, kg, L), the raw materials to
-    charge over the whole campaign, and the overall yield.  With --confidence, also how
-    sure the delivery is when the step yields vary within their ranges.
+    Prints one table per step in execution order, the raw materials to charge over the
+    whole campaign, what to order and the overall yield, every amount, mass and volume
+    in one unit of its kind for the whole plan (chosen by the target's mass, or by
+    --units).  With --confidence, also how sure the delivery is when the step yields
+    vary within their ranges.
     """
     from routeplan.errors import Location
     from routeplan.plan.planner import plan_route
@@ -63,6 +66,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     from routeplan.units import parse_quantity
 
     check_output_paths(json_out=json_out, xlsx_out=xlsx_out, csv_dir=csv_dir, html_out=html_out)
+    units_option(units)
     if record_yields != "expected" and record_file is None:
         raise click.UsageError("--record-yields applies to a campaign record; give --record FILE too")
     amount = None
@@ -108,10 +112,11 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
         echo_err(caution_line())
     else:
         from routeplan.export.terminal import print_plan
+        from routeplan.views.display_units import plan_units
 
-        print_plan(plan, caution=False)
+        print_plan(plan, units=plan_units(plan, units), caution=False)
         echo_warnings(plan.warnings)  # after the tables, where the reader is
-        click.echo(caution_line())
+        echo_caution()
 
 
 def register(cli: click.Group) -> None:

@@ -1,8 +1,8 @@
 """A route comparison written out: terminal table, JSON and workbook.
 
-Reads a :class:`~routeplan.plan.compare.Comparison` and never recomputes it.  rich and
-xlsxwriter are imported inside the functions that need them.  Every output carries the
-safety caution.
+Reads a :class:`~routeplan.plan.compare.Comparison` and never recomputes it; the
+terminal's text comes from :mod:`routeplan.views.compare_text`.  xlsxwriter is imported
+inside the function that needs it.  Every output carries the safety caution.
 """
 
 from __future__ import annotations
@@ -10,13 +10,12 @@ from __future__ import annotations
 import json
 from typing import TYPE_CHECKING, Any
 
-from routeplan.views.compare_text import tradeoff
+from routeplan.views.compare_text import BEST_MARK, tradeoff
 from routeplan.views.tables import display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
-    from rich.console import Console
-
     from routeplan.plan.compare import Comparison, CompareRow
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = [
     "COMPARE_FORMAT",
@@ -30,9 +29,6 @@ __all__ = [
 
 #: The ``format`` value of the comparison JSON.
 COMPARE_FORMAT = "routeplan-compare/1"
-
-#: Mark put after the best value of a row on the terminal.
-BEST_MARK = "*"
 
 _SHOWN_UNIT = {"fraction": "%"}
 
@@ -127,47 +123,21 @@ def comparison_to_json(cmp: "Comparison", *, indent: int = 2) -> str:
 # -------------------------------------------------------------------- terminal
 
 
-def print_comparison(cmp: "Comparison", *, console: "Console | None" = None) -> None:
-    """Print the comparison table, the trade-off sentence, notes and the caution."""
-    from rich import box
-    from rich.console import Console
-    from rich.markup import escape
-    from rich.table import Table
+def print_comparison(cmp: "Comparison", *, file=None, width: int | None = None,
+                     units: "DisplayUnits | None" = None, style: bool | None = None) -> None:
+    """Print the comparison table, the trade-off sentence, notes and the caution.
 
-    from routeplan import CAUTION
+    ``units`` defaults to the set that suits the comparison's target
+    (:func:`routeplan.views.display_units.choose_units`); ``file``, ``width`` and
+    ``style`` as for :func:`routeplan.export.terminal.print_blocks`.
+    """
+    from routeplan.export.terminal import print_blocks
+    from routeplan.views.compare_text import comparison_blocks
+    from routeplan.views.display_units import choose_units
+    from routeplan.views.plan_text import caution_block
 
-    from routeplan.export.terminal import make_console
-
-    con = console or make_console()
-    title = (f"Routes to {escape(cmp.target_material)}, each planned for "
-             f"{display_quantity(cmp.amount, 'mass')} (before overage)")
-    t = Table(title=title, box=box.SIMPLE_HEAD, title_justify="left")
-    t.add_column("measure", min_width=22)
-    t.add_column("unit")
-    for label in cmp.labels:
-        t.add_column(escape(label), justify="right")
-    for row in cmp.rows:
-        cells = [escape(row.heading), escape(_shown_unit(row))]
-        for i, v in enumerate(row.values):
-            text = escape(format_value(v, row.kind))
-            if i in row.best:
-                text = f"[bold green]{text} {BEST_MARK}[/bold green]"
-            if row.labels and row.labels[i]:
-                text += f"\n[dim]{escape(row.labels[i])}[/dim]"
-            cells.append(text)
-        t.add_row(*cells)
-    con.print(t)
-    higher = [r.short for r in cmp.rows if r.better == "higher"]
-    con.print(f"{BEST_MARK} best in its row: lower is better, except {' and '.join(higher) or 'none'}.")
-    for row in cmp.rows:
-        if row.note:
-            con.print(f"  {escape(row.short)}: {escape(row.note)}")
-    for note in cmp.notes:
-        con.print(f"note: {escape(note)}")
-    con.print()
-    con.print(f"[bold]Trade-off[/bold]: {escape(tradeoff(cmp))}")
-    con.print()
-    con.print(f"[bold]CAUTION[/bold]: {escape(CAUTION)}")
+    u = units or choose_units(cmp.amount)
+    print_blocks([*comparison_blocks(cmp, u), caution_block()], file=file, width=width, style=style)
 
 
 # -------------------------------------------------------------------- workbook

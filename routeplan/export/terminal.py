@@ -1,296 +1,272 @@
-"""The plan on the terminal: one table per step, raw-material totals, yield, caution.
+"""The terminal writer: lays text blocks out to a width, as plain text.
 
-Reads only the Plan (through :mod:`routeplan.views.tables`); rich is imported here,
-and this module is imported only when printing.
+Reads only what the views give (:mod:`routeplan.views.plan_text`,
+:mod:`routeplan.views.compare_text`): paragraphs are wrapped with a hanging indent,
+tables get columns as wide as their cells (headings folded, then names and lists folded,
+when the width is short), a timeline is written as it is.  Nothing is computed here.
+
+* Width: the terminal's, or ``COLUMNS`` when set; when standard output is not a terminal
+  (a file, a pipe) and ``COLUMNS`` is not set, a stable :data:`DEFAULT_WIDTH`, so that the
+  same plan always gives the same text.
+* Style: on a terminal, headings and the strongest cells are bold and legends faint, by
+  the SGR control sequences of ECMA-48 (5th edition, 1991, section 8.3.117); never when
+  the output is not a terminal, when ``NO_COLOR`` is set (no-color.org) or when
+  ``TERM=dumb``.  No box characters anywhere: rules are ``-``.
 """
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING
+import functools
+import os
+import re
+import sys
+import textwrap
+from typing import TYPE_CHECKING, TextIO
 
-from rich import box
-from rich.console import Console
-from rich.markup import escape
-from rich.table import Table
-
-from routeplan.views.metrics_text import metrics_lines
-from routeplan.views.safety_text import step_safety_lines
-from routeplan.views.tables import charge_label, column_unit, fmt, raw_material_rows, step_charge_rows
+from routeplan.views.text_blocks import Grid, Para, Pre
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
+    from routeplan.views.display_units import DisplayUnits
+    from routeplan.views.text_blocks import Block
 
-__all__ = ["print_plan", "fmt", "make_console", "PlainTable", "Printer"]
+__all__ = ["DEFAULT_WIDTH", "MIN_WIDTH", "is_terminal", "output_width", "styled", "render", "wrap_text", "print_plan",
+           "print_blocks"]
+
+#: Columns of output that is not a terminal, when ``COLUMNS`` is not set [-].
+DEFAULT_WIDTH = 100
+
+#: Narrowest layout [-]: a smaller width (a tiny ``COLUMNS``) is raised to it.
+MIN_WIDTH = 40
+
+_GAP = "  "  # between two columns of a table
+
+#: Spaces a line is never broken at: between a number and its unit, as the SI Brochure
+#: (BIPM, 9th edition 2019, section 5.4.3) writes them (``20.20 kg``, ``63.4 %``,
+#: ``56 °C``, ``9.93 L/min``); between the groups of a large number (``13 190``); and
+#: between a name and its value in a list (``S1 5.56 · S2 11.4``); before a closing mark
+#: (``21.4 *``).
+_NO_BREAK = re.compile(r"(?<=\d) (?=[A-Za-zµ°%³][A-Za-zµ°%³/]{0,7}(?![\w/]))"
+                       r"|(?<=\d) (?=\d{3}(?!\d))"
+                       r"|(?<=[^\s·]) (?=[-+]?\d[\d.]*(?: %)?(?: ·|[,;]|$))"
+                       r"| (?=\*$)")
+_HELD = "\u00a0"  # a no-break space while a text is folded
+_SGR = {"heading": ("\x1b[1m", "\x1b[22m"), "strong": ("\x1b[1m", "\x1b[22m"), "dim": ("\x1b[2m", "\x1b[22m")}
 
 
-class _Console(Console):
-    """A rich console that leaves quietly, with a shell's code 141, when its reader goes away."""
-
-    def on_broken_pipe(self) -> None:
-        import os
-
-        devnull = os.open(os.devnull, os.O_WRONLY)
-        os.dup2(devnull, 1)  # nothing more reaches the closed pipe
-        raise SystemExit(141)  # 128 + SIGPIPE
+def _columns_env() -> int | None:
+    text = os.environ.get("COLUMNS", "").strip()
+    return int(text) if text.isdigit() and int(text) > 0 else None
 
 
-def make_console() -> Console:
-    """A console for standard output; 120 columns when piped to a file (no need to squeeze)."""
-    con = _Console()
-    return con if con.is_terminal else _Console(width=120)
+def is_terminal(stream: TextIO) -> bool:
+    """True when ``stream`` is a terminal (not a file, a pipe or a closed stream)."""
+    try:
+        return stream.isatty()
+    except (AttributeError, ValueError):  # a closed or unusual stream
+        return False
 
 
-class PlainTable:
-    """A table laid out as plain text: the subset of rich's Table that the plan uses.
+def output_width(stream: TextIO | None = None) -> int:
+    """Columns to lay out to for ``stream`` (standard output by default) [-].
 
-    Piped output (a file, another program) gets these: aligned columns, a rule of ``-``
-    under the headings, no colour and no box characters, and a hundred times faster to
-    lay out than a rich table.
+    ``COLUMNS`` when set, else the terminal's width, else :data:`DEFAULT_WIDTH`; never
+    below :data:`MIN_WIDTH`.
     """
-
-    def __init__(self, title: str | None = None, **_ignored) -> None:
-        self.title = title
-        self.columns: list[tuple[str, str]] = []
-        self.rows: list[list[str]] = []
-
-    def add_column(self, header: str, justify: str = "left") -> None:
-        self.columns.append((header, justify))
-
-    def add_row(self, *cells: str) -> None:
-        self.rows.append(list(cells))
-
-    def lines(self) -> list[str]:
-        from rich.text import Text
-
-        heads = [Text.from_markup(h).plain for h, _j in self.columns]
-        body = [[Text.from_markup(c).plain for c in r] for r in self.rows]
-        widths = [max([len(h)] + [len(r[i]) for r in body]) for i, h in enumerate(heads)]
-
-        def line(cells):
-            out = []
-            for (_, justify), w, c in zip(self.columns, widths, cells):
-                out.append(c.rjust(w) if justify == "right" else c.ljust(w))
-            return "  " + "  ".join(out).rstrip()
-
-        text = [] if not self.title else [Text.from_markup(self.title).plain]
-        return text + [line(heads), "  " + "  ".join("-" * w for w in widths)] + [line(r) for r in body]
-
-
-class Printer:
-    """Prints markup lines and tables to a console: through rich on a terminal, as plain text otherwise."""
-
-    def __init__(self, console: Console) -> None:
-        self.console = console
-        self.plain = not console.is_terminal
-
-    def table(self, **kwargs):
-        """A new table: rich's on a terminal, :class:`PlainTable` otherwise."""
-        return PlainTable(**kwargs) if self.plain else Table(**kwargs)
-
-    def __call__(self, item="") -> None:
-        if not self.plain:
-            self.console.print(item)
-            return
-        from rich.text import Text
-
-        lines = item.lines() if isinstance(item, PlainTable) else [Text.from_markup(str(item)).plain]
+    stream = sys.stdout if stream is None else stream
+    width = _columns_env()
+    if width is None and is_terminal(stream):
         try:
-            self.console.file.write("\n".join(lines) + "\n")
-        except BrokenPipeError:
-            self.console.on_broken_pipe()
+            width = os.get_terminal_size(stream.fileno()).columns
+        except (OSError, ValueError, AttributeError):
+            width = None
+    return max(MIN_WIDTH, width or DEFAULT_WIDTH)
 
 
-def _step_table(sp, route, new_table=Table) -> Table:
-    rows = step_charge_rows(sp)
-    made_in = route.maker
-    mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
-    vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
-    nu, nf = column_unit([r["mol"] for r in rows], "amount")
-    per_batch = sp.batches > 1
-    t = new_table(box=box.SIMPLE_HEAD, pad_edge=False)
-    t.add_column("#", justify="right")
-    t.add_column("material")
-    t.add_column("role")
-    t.add_column("equiv", justify="right")
-    t.add_column(escape(f"n [{nu}]"), justify="right")
-    t.add_column(escape(f"m [{mu}]"), justify="right")
-    t.add_column(escape(f"V [{vu}]"), justify="right")
-    if per_batch:
-        t.add_column(escape(f"m/batch [{mu}]"), justify="right")
-        t.add_column(escape(f"V/batch [{vu}]"), justify="right")
-    for r in rows:
-        name = charge_label(r, made_in)
-        cells = [
-            str(r["order"]), name, r["role"], fmt(r["equiv"], 3),
-            fmt(None if r["mol"] is None else r["mol"] / nf),
-            fmt(r["mass_kg"] / mf),
-            fmt(None if r["volume_L"] is None else r["volume_L"] / vf),
-        ]
-        if per_batch:
-            cells += [fmt(r["batch_mass_kg"] / mf),
-                      fmt(None if r["batch_volume_L"] is None else r["batch_volume_L"] / vf)]
-        t.add_row(*[escape(x) for x in cells])
-    return t
+def styled(stream: TextIO | None = None) -> bool:
+    """True when ``stream`` is a terminal that takes bold and faint text."""
+    stream = sys.stdout if stream is None else stream
+    return (is_terminal(stream) and "NO_COLOR" not in os.environ
+            and os.environ.get("TERM", "") != "dumb")
 
 
-def _step_footer(plan, sp) -> str:
-    from routeplan.views.transfer_text import transfer_text
-
-    pm = sp.product_mass.m_as("kg")
-    pu, pf = column_unit([pm], "mass")
-    text = f"  makes {fmt(sp.product_mol.m_as('mol'))} mol {sp.product} ({fmt(pm / pf)} {pu}"
-    text += " as isolated)" if sp.isolated else " in solution)"
-    b = sp.batch
-    if b is not None and b.vessel is not None:
-        text += (f"\n  vessel {b.vessel}: {b.batches} batch{'es' if b.batches != 1 else ''} of "
-                 f"{fmt(b.batch_volume.m_as('L'))} L, fill {b.fill_fraction:.0%} of nominal volume")
-    if b is not None:
-        for note in b.notes:
-            text += f"\n  note: {note}"
-    transfer = transfer_text(plan, sp)
-    if transfer:
-        text += f"\n  {transfer}"
-    return text
+def _sgr(text: str, style: str | None, on: bool) -> str:
+    if not on or not style or not text.strip():
+        return text
+    start, end = _SGR[style]
+    body = text.lstrip(" ")
+    return text[: len(text) - len(body)] + start + body + end
 
 
-def _stock_line(sp) -> str:
-    """What the stock of the step's product does to the step ("" when not in the stock list)."""
-    from routeplan.views.tables import display_quantity
-
-    taken = None if sp.from_stock_mass is None else sp.from_stock_mass.m_as("kg")
-    if not sp.runs:
-        text = f"  not run: {sp.not_run}"
-        if taken:
-            text += f" ({display_quantity(taken, 'mass')} of {sp.product} taken from stock)"
-        return text + "; nothing to charge"
-    if taken:
-        return f"  {display_quantity(taken, 'mass')} of {sp.product} taken from stock; this step makes the rest"
-    return ""
+@functools.lru_cache(maxsize=64)
+def _wrapper(width: int, first: int, rest: int) -> textwrap.TextWrapper:
+    # breaks only at ordinary spaces, so that a held space (_HELD) never ends a line
+    return textwrap.TextWrapper(width=width, initial_indent=" " * first, subsequent_indent=" " * rest,
+                                break_long_words=False, break_on_hyphens=False)
 
 
-def _raw_table(plan, new_table=Table) -> Table:
-    rows = raw_material_rows(plan)
-    mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
-    vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
-    cur = plan.route.currency
-    t = new_table(title="[bold]Raw materials to charge, whole campaign[/bold]", box=box.SIMPLE_HEAD,
-                  title_justify="left", pad_edge=False)
-    t.add_column("material")
-    t.add_column(escape(f"mass [{mu}]"), justify="right")
-    t.add_column(escape(f"volume [{vu}]"), justify="right")
-    t.add_column(escape(f"cost [{cur}]") if cur else "cost", justify="right")
-    t.add_column("used in")
-    for r in rows:
-        t.add_row(escape(r["material"]), fmt(r["mass_kg"] / mf),
-                  fmt(None if r["volume_L"] is None else r["volume_L"] / vf),
-                  f"{r['cost']:,.2f}" if r["cost"] is not None else "–", escape(r["steps"]))
-    return t
+def wrap_text(text: str, width: int, *, indent: int = 0, hang: int = 4) -> list[str]:
+    """``text`` folded to ``width`` columns: the first line indented by ``indent``, the
+    others by ``indent + hang`` (a hanging indent).  A word longer than a line stays whole.
 
-
-def _print_purchases(con, plan) -> None:
-    """The purchase list (bought materials, need in kg and L, packs to order) and the
-    note on materials not bought."""
-    from routeplan.views.purchase_rows import not_bought_note, purchase_rows
-
-    rows = purchase_rows(plan)
-    stock = plan.stock is not None
-    title = "To order, whole campaign" + (", less the stock on hand" if stock else "")
-    t = con.table(title=f"[bold]{title}[/bold]", box=box.SIMPLE_HEAD, title_justify="left",
-                  pad_edge=False)
-    extra = (("from stock [kg]", "right"), ("to buy [kg]", "right"), ("to buy [L]", "right")) if stock else ()
-    for head, just in (("material", "left"), ("need [kg]", "right"), ("need [L]", "right"), *extra,
-                       ("pack", "right"), ("packs", "right"), ("ordered", "right")):
-        t.add_column(escape(head), justify=just)
-    for r in rows:
-        bought = (fmt(r["stock_kg"]), fmt(r["buy_kg"]), fmt(r["buy_L"])) if stock else ()
-        t.add_row(escape(r["material"]), fmt(r["need_kg"]), fmt(r["need_L"]), *bought, escape(r["pack"] or "–"),
-                  "–" if r["packs"] is None else str(r["packs"]), escape(r["ordered"] or "–"))
-    con(t)
-    note = not_bought_note(plan)
-    if note:
-        con(escape("  " + note))
-
-
-def _print_time_waste_cost(con: "Printer", plan: "Plan") -> None:
-    """The schedule's timeline, the waste streams and the cost of goods (headings in bold)."""
-    from routeplan.views.schedule_text import schedule_lines
-    from routeplan.views.waste_cost_text import cost_lines, waste_lines
-
-    for block in (schedule_lines(plan), waste_lines(plan), cost_lines(plan)):
-        if not block:
-            continue
-        con()
-        con(f"[bold]{escape(block[0])}[/bold]")
-        for line in block[1:]:
-            if con.plain:
-                con(escape(line))
-            else:  # on a terminal too, a timeline lane must not be folded
-                con.console.print(escape(line), soft_wrap=True)
-
-
-def print_plan(plan: "Plan", *, console: Console | None = None, caution: bool = True) -> None:
-    """Print the plan to the terminal (standard output by default).
-
-    With ``caution=False`` the caller prints the safety caution itself (the command line
-    prints the warnings first, then the caution).
+    >>> wrap_text("one two three four", 12, hang=2)
+    ['one two', '  three four']
+    >>> wrap_text("a mass of 20.20 kg", 16)
+    ['a mass of', '    20.20 kg']
     """
-    from routeplan import CAUTION
+    if len(text) + indent <= width:
+        return [" " * indent + text]
+    lines = _wrapper(width, indent, indent + hang).wrap(_NO_BREAK.sub(_HELD, text)) or [""]
+    return [x.replace(_HELD, " ") for x in lines]
 
-    con = Printer(console or make_console())
-    tm = plan.target_mass.m_as("kg")
-    overage = plan.route.target.overage
-    made_of = (f"{fmt(tm / (1 + overage))} kg + {overage * 100:.3g} % overage, " if overage else "")
-    con(f"[bold]{escape(plan.route.name)}[/bold]: {fmt(tm)} kg of {escape(plan.target_material)} "
-              f"({made_of}{fmt(plan.target_mol.m_as('mol'))} mol), "
-              f"{len(plan.steps)} step{'s' if len(plan.steps) != 1 else ''}"
-              + (f", planned at the steps' [bold]{plan.yield_basis}[/bold] yields" if plan.yield_basis != "expected"
-                 else ""))
-    con("[dim]n: amount of the compound, m: mass and V: volume as charged; "
-              "(S1) after a material: made in step S1; in solution: V is the reaction mixture carried in; "
-              "(separated): run off right after it is charged, not carried on[/dim]")
-    con()
-    for sp in plan.steps:
-        title = f"{sp.id} · {sp.name}" if sp.name and sp.name != sp.id else sp.id
-        con(f"[bold]{escape(title)}[/bold]   {escape(sp.equation)}   yield {sp.yield_:.0%}"
-                  + ("   [italic]telescoped: the product goes on in solution[/italic]" if not sp.isolated else ""))
-        if sp.runs:
-            con(_step_table(sp, plan.route, con.table))
-            con(escape(_step_footer(plan, sp)))
-            for line in step_safety_lines(sp):
-                con(escape("  " + line))
-        stock_line = _stock_line(sp)
-        if stock_line:
-            con(escape(stock_line))
-        con()
-    con(_raw_table(plan, con.table))
-    _print_purchases(con, plan)
-    oy = plan.overall_yield
-    con(escape(f"Overall yield along the longest linear sequence "
-              f"({' -> '.join(oy.longest_linear_sequence)}): {oy.yield_:.1%}"
-                     + (f" (from {oy.low:.1%} to {oy.high:.1%} with the steps' low and high yields)"
-                        if oy.low is not None and (oy.low, oy.high) != (oy.yield_, oy.yield_) else "")))
-    for key, y in oy.by_raw_material.items():
-        con(escape(f"  from {key}: {y:.1%}"))
-    if plan.metrics is not None:
-        for line in metrics_lines(plan.metrics, plan.target_material):
-            con(line)
-    _print_time_waste_cost(con, plan)
-    if plan.stock is not None:
-        from routeplan.views.stock_text import stock_lines
 
-        for line in stock_lines(plan):
-            con(escape(line))
-    if plan.record is not None:
-        from routeplan.views.record_text import record_lines
+def _para_lines(p: Para, width: int, on: bool) -> list[str]:
+    if not p.text and not p.label:
+        return [""]
+    text = f"{p.label} {p.text}" if p.label else p.text
+    lines = wrap_text(text, width, indent=p.indent, hang=p.hang)
+    if p.label and on:
+        lines[0] = lines[0].replace(p.label, _sgr(p.label, "strong", on), 1)
+    return [_sgr(x, p.style, on) for x in lines] if p.style else lines
 
-        for line in record_lines(plan):
-            con(escape(line))
-    if plan.uncertainty is not None:
-        from routeplan.views.uncertainty_text import uncertainty_lines
 
-        con()
-        for line in uncertainty_lines(plan):
-            con(escape(line))
-    con()
+def _words_width(text: str) -> int:
+    """The longest piece of ``text`` that no fold splits [-]."""
+    return max((len(w) for w in _NO_BREAK.sub(_HELD, text).split()), default=0)
+
+
+def _fit(grid: Grid, room: int) -> tuple[list[int], list[list[str]]]:
+    """Column widths within ``room`` columns, and each heading's lines.
+
+    Columns first take their widest cell and heading; when that is too wide, headings fold
+    at their spaces; when still too wide, the foldable columns (``wrap``) give up columns,
+    the widest first, down to their longest word.  What cannot fit overflows.
+    """
+    cols = grid.columns
+    cell_lines = [[line for row in grid.rows for line in row[i].split("\n")] for i in range(len(cols))]
+    cells = [max((len(x) for x in lines), default=0) for lines in cell_lines]
+    widths = [max(len(c.heading), w) for c, w in zip(cols, cells)]
+    if sum(widths) > room:
+        widths = [max(_words_width(c.heading), w) for c, w in zip(cols, cells)]
+    least = [max(_words_width(c.heading), max((_words_width(x) for x in lines), default=0)) if c.wrap else widths[i]
+             for i, (c, lines) in enumerate(zip(cols, cell_lines))]
+    excess = sum(widths) - room
+    while excess > 0:
+        free = [i for i in range(len(cols)) if widths[i] > least[i]]
+        if not free:
+            break
+        i = max(free, key=lambda k: widths[k])
+        widths[i] -= 1
+        excess -= 1
+    natural = [max(len(c.heading), w) for c, w in zip(cols, cells)]
+    # room to spare: unfold whole headings, the cheapest first; then widen the foldable
+    # columns, the one folded the most first (a part of a heading's width is no gain)
+    for i in sorted(range(len(cols)), key=lambda k: (natural[k] - widths[k], k)):
+        if 0 < natural[i] - widths[i] <= -excess:
+            excess += natural[i] - widths[i]
+            widths[i] = natural[i]
+    while excess < 0:
+        short = [i for i in range(len(cols)) if cols[i].wrap and widths[i] < natural[i]]
+        if not short:
+            break
+        i = max(short, key=lambda k: (natural[k] - widths[k], -k))
+        widths[i] += 1
+        excess += 1
+    heads = [wrap_text(c.heading, w, hang=0) for c, w in zip(cols, widths)]
+    return widths, heads
+
+
+def _grid_lines(grid: Grid, width: int, on: bool) -> list[str]:
+    cols = grid.columns
+    pad = " " * grid.indent
+    out = [] if not grid.title else _para_lines(Para(grid.title, style="heading"), width, on)
+    widths, heads = _fit(grid, width - grid.indent - len(_GAP) * (len(cols) - 1))
+    depth = max(len(h) for h in heads)
+
+    def join(cells: list[str], strong: set[int] = frozenset()) -> str:
+        parts = []
+        for i, (c, w, text) in enumerate(zip(cols, widths, cells)):
+            cell = text.rjust(w) if c.align == "right" else text.ljust(w)
+            parts.append(_sgr(cell, "strong", on and i in strong))
+        return (pad + _GAP.join(parts)).rstrip()
+
+    for k in range(depth):
+        out.append(join([h[k - depth + len(h)] if k >= depth - len(h) else "" for h in heads]))
+    out.append(pad + _GAP.join("-" * w for w in widths))
+    for r, row in enumerate(grid.rows):
+        folded = []
+        for c, w, text in zip(cols, widths, row):
+            lines = []
+            for line in text.split("\n"):
+                lines += wrap_text(line, w, hang=0) if c.wrap else [line]
+            folded.append(lines)
+        strong = {i for i in range(len(cols)) if (r, i) in grid.strong}
+        for k in range(max(len(x) for x in folded)):
+            out.append(join([x[k] if k < len(x) else "" for x in folded], strong if k == 0 else set()))
+    return out
+
+
+def render(blocks: "list[Block]", width: int, *, style: bool = False) -> str:
+    """The blocks laid out to ``width`` columns, as one text ending in a newline.
+
+    Parameters
+    ----------
+    blocks : list of Para, Grid and Pre
+    width : int
+        Columns [-].
+    style : bool
+        Bold headings and faint legends (terminal control sequences).
+    """
+    lines: list[str] = []
+    for b in blocks:
+        if isinstance(b, Para):
+            lines += _para_lines(b, width, style)
+        elif isinstance(b, Grid):
+            lines += _grid_lines(b, width, style)
+        elif isinstance(b, Pre):
+            lines += b.text.split("\n")
+        else:  # pragma: no cover - a view gave something else
+            raise TypeError(f"not a text block: {b!r}")
+    return "\n".join(lines) + "\n"
+
+
+def print_blocks(blocks: "list[Block]", *, file: TextIO | None = None, width: int | None = None,
+                 style: bool | None = None) -> None:
+    """Lay ``blocks`` out for ``file`` (standard output by default) and write them at once.
+
+    ``width`` and ``style`` default to :func:`output_width` and :func:`styled` of the file.
+    A reader that went away (``BrokenPipeError``) is left to the command line's funnel.
+    """
+    stream = sys.stdout if file is None else file
+    stream.write(render(blocks, output_width(stream) if width is None else width,
+                        style=styled(stream) if style is None else style))
+    stream.flush()
+
+
+def print_plan(plan: "Plan", *, file: TextIO | None = None, width: int | None = None,
+               units: "DisplayUnits | None" = None, caution: bool = True, style: bool | None = None) -> None:
+    """Print the plan (standard output by default), in one set of units, to a width.
+
+    Parameters
+    ----------
+    plan : Plan
+    file : text stream, optional
+        Where to write; standard output by default.
+    width : int, optional
+        Columns [-]; default :func:`output_width` of the stream.
+    units : DisplayUnits, optional
+        Default: chosen by the target's mass (:func:`routeplan.views.display_units.plan_units`).
+    caution : bool
+        False when the caller prints the safety caution itself (the command line prints
+        the warnings first, then the caution).
+    style : bool, optional
+        Bold and faint text; default only on a terminal (:func:`styled`).
+    """
+    from routeplan.views.plan_text import caution_block, plan_blocks
+
+    stream = sys.stdout if file is None else file
+    w = output_width(stream) if width is None else max(MIN_WIDTH, width)
+    blocks = plan_blocks(plan, units, width=w)
     if caution:
-        con(f"[bold]CAUTION[/bold]: {CAUTION}")
+        blocks.append(caution_block())
+    print_blocks(blocks, file=stream, width=w, style=style)

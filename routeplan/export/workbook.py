@@ -217,7 +217,7 @@ def write_workbook(plan: "Plan", path: str | os.PathLike, *, written: datetime |
             from routeplan.export.workbook_records import protect
 
             derivation = wb.add_worksheet(DERIVATION_SHEET)
-            write_derivation(derivation, st, plan, "CAUTION: " + CAUTION)
+            write_derivation(derivation, st, plan, "CAUTION: " + CAUTION, context)
             protect(derivation)  # like every sheet: no password, nothing to type in
         summary.activate()
         try:

@@ -49,8 +49,12 @@ def result_formula(ops: list[str], cells: list[str]) -> str:
     return "=" + "".join(out)
 
 
-def write_derivation(ws, st, plan: "Plan", caution: str) -> int:
-    """Fill ``ws`` with the derivation blocks of ``plan``; returns the number of factor rows."""
+def write_derivation(ws, st, plan: "Plan", caution: str, context: dict[str, str] | None = None) -> int:
+    """Fill ``ws`` with the derivation blocks of ``plan``; returns the number of factor rows.
+
+    ``context`` gives the printed page's ``header`` and ``footer`` (the caution), as on
+    every sheet; the sheet prints landscape, one page wide, its headings on every page.
+    """
     from xlsxwriter.utility import xl_rowcol_to_cell
 
     from routeplan.export.workbook_styles import put, set_widths
@@ -58,12 +62,17 @@ def write_derivation(ws, st, plan: "Plan", caution: str) -> int:
 
     blocks = sheet_blocks(plan)
     put(ws, 0, 0, f"Derivation of every charge: {plan.route.name}", st.title)
-    put(ws, 1, 0, "Each line multiplies (x, /) its factors from the first, or adds (+, -) terms; its result is "
-                  "a formula over the value cells. A value that is an earlier result points at that result's "
-                  "cell: in the same block, or in the block of the step that derives it.", st.note)
-    put(ws, 2, 0, "A factor 'unit conversion' turns the product of the units into the result's unit "
-                  "(kg / (g/mol) = 1000 mol).", st.note)
-    put(ws, 3, 0, caution, st.caution)
+    last = len(DERIVATION_COLUMNS) - 1
+    notes = ((1, caution, st.caution, 30),
+             (2, "Each line multiplies (x, /) its factors from the first, or adds (+, -) terms; its result is a "
+                 "formula over the value cells. A value that is an earlier result points at that result's cell: "
+                 "in the same block, or in the block of the step that derives it.", st.note, 28),
+             (3, "A factor 'unit conversion' turns the product of the units into the result's unit "
+                 "(kg / (g/mol) = 1000 mol).", st.note, 15))
+    for row, text, fmt, height in notes:  # across the table's width, as on every sheet
+        ws.merge_range(row, 0, row, last, "", fmt)
+        ws.write_string(row, 0, text, fmt)
+        ws.set_row(row, height)
     for col, (head, _key) in enumerate(DERIVATION_COLUMNS):
         put(ws, DERIVATION_TOP, col, head, st.heading)
     # where each line's result goes: the last row of the line
@@ -105,4 +114,10 @@ def write_derivation(ws, st, plan: "Plan", caution: str) -> int:
                 widths[key].append(value)
     set_widths(ws, [(head, widths[key]) for head, key in DERIVATION_COLUMNS])
     ws.freeze_panes(DERIVATION_TOP + 1, 0)
+    ws.set_landscape()
+    ws.fit_to_pages(1, 0)
+    ws.repeat_rows(DERIVATION_TOP)
+    if context:
+        ws.set_header(context.get("header", ""))
+        ws.set_footer(context.get("footer", ""))
     return r - DERIVATION_TOP - 1

@@ -62,8 +62,6 @@ class Sized:
     ----------
     V_L : float
         Largest volume in the vessel over the campaign [L] (its fullest).
-    notes : tuple of str
-        What was left out of the volume and why, what came in solution.
     carried_in : Mapping[int, tuple[str, float or None]]
         Charge index (0-based) -> (id of the telescoped step, volume of its mixture
         carried in [L], None when that mixture has no known volume).
@@ -85,7 +83,6 @@ class Sized:
     """
 
     V_L: float
-    notes: tuple[str, ...]
     carried_in: Mapping[int, tuple[str, float | None]]
     batches: int
     fill: float | None
@@ -111,23 +108,16 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
     for sid, w in walked.steps.items():
         step = route.step(sid)
         h = held[sid]
-        notes: list[str] = []
-        carried_in: dict[int, tuple[str, float | None]] = {}
-        for i, (c, V) in enumerate(zip(w.step.charges, h.lines_V)):
-            if c.carried_from is not None:
-                carried_in[i] = (c.carried_from, V)
-                notes.append(f"{c.material} comes in solution from {c.carried_from}: "
-                             + ("its mixture, of no known volume, carried in" if V is None else
-                                f"{V:.4g} L of its mixture carried in"))
-            elif V is None:
-                notes.append(f"{c.material} has no density, so its volume is left out")
+        carried_in: dict[int, tuple[str, float | None]] = {
+            i: (c.carried_from, V) for i, (c, V) in enumerate(zip(w.step.charges, h.lines_V))
+            if c.carried_from is not None}
         V_total = 0.0 if h.fullest_V is None else h.fullest_V
         telescoped = not step.isolated
         parts = dict(reaction_m_kg=h.reaction_m,
                      transfer_V_L=h.transfer_V if telescoped else None,
                      transfer_m_kg=h.transfer_m if telescoped else None)
         if sid in walked.not_run:
-            out[sid] = Sized(V_total, (), carried_in, 0, None, **parts)
+            out[sid] = Sized(V_total, carried_in, 0, None, **parts)
             continue
         vessel = route.equipment.get(step.vessel) if step.vessel else None
         if vessel is None:
@@ -156,7 +146,7 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
                     f"{per_batch / shown:.3g} times the largest batch run so far ({shown:.4g} kg)",
                     location=step.location, step=sid,
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
-        out[sid] = Sized(V_total, tuple(notes), carried_in, batches, fill, **parts)
+        out[sid] = Sized(V_total, carried_in, batches, fill, **parts)
     return out, warnings
 
 

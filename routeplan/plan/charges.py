@@ -56,7 +56,7 @@ def step_plans(route: "Route", walked: "Walked", sized: Mapping[str, "Sized"],
                 leaves=c.leaves))
         m_prod = w.n_product * w.step.product_form.kg_per_mol  # as isolated, at its assay [kg]
         batch = BatchPlan(batches=batches, step_V_L=z.V_L, fill_fraction=z.fill, vessel=step.vessel,
-                          notes=z.notes, limiting_n_mol=w.n_lim, limiting_m_kg=w.m_lim,
+                          limiting_n_mol=w.n_lim, limiting_m_kg=w.m_lim,
                           product_n_mol=w.n_product, product_m_kg=m_prod, reaction_m_kg=z.reaction_m_kg,
                           transfer_V_L=z.transfer_V_L, transfer_m_kg=z.transfer_m_kg)
         stock_n = w.n_taken

@@ -178,8 +178,6 @@ class BatchPlan:
         Volume per batch over the vessel's nominal volume [-]; None without a vessel.
     vessel : str or None
         Vessel key.
-    notes : tuple of str
-        What was left out of the volume (solids without density) and why.
     limiting_n_mol, limiting_m_kg : float
         Limiting reagent over the campaign [mol], as charged [kg].
     product_n_mol, product_m_kg : float
@@ -203,7 +201,6 @@ class BatchPlan:
     step_V_L: float
     fill_fraction: float | None = None
     vessel: str | None = None
-    notes: tuple[str, ...] = ()
     limiting_n_mol: float = 0.0
     limiting_m_kg: float = 0.0
     product_n_mol: float = 0.0

@@ -1,15 +1,23 @@
-"""Sentences about a comparison of routes: the trade-off in one sentence."""
+"""A comparison of routes for people: the trade-off in one sentence, and the terminal's
+table (:func:`comparison_blocks`) in the comparison's one set of units."""
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Sequence
+from typing import TYPE_CHECKING, Any, Sequence
 
 from routeplan.plan.compare import LOWER, CompareRow, _join
+from routeplan.views.numbers import money, pct, share
+from routeplan.views.text_blocks import Col, Grid, Para, blank
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.compare import Comparison
+    from routeplan.views.display_units import DisplayUnits
+    from routeplan.views.text_blocks import Block
 
-__all__ = ["tradeoff_sentence", "tradeoff"]
+__all__ = ["tradeoff_sentence", "tradeoff", "BEST_MARK", "value_text", "comparison_blocks"]
+
+#: Mark put after the best value of a row.
+BEST_MARK = "*"
 
 
 def tradeoff(cmp: "Comparison") -> str:
@@ -56,3 +64,68 @@ def tradeoff_sentence(labels: Sequence[str], rows: Sequence[CompareRow]) -> str:
         return "No measure could be ranked."
     text = "; ".join(parts)
     return text[0].upper() + text[1:] + "."
+
+
+def value_text(value: Any, kind: str, units: "DisplayUnits") -> str:
+    """A value of a comparison row as the terminal shows it, without its unit.
+
+    Counts whole; fractions as percentages and ratios [kg/kg, h] to 3 significant
+    figures; money and masses (in ``units``) to 4 (:mod:`routeplan.views.numbers`).
+
+    >>> from routeplan.views.display_units import SETS
+    >>> [value_text(v, k, SETS["kilo"]) for v, k in ((5, "count"), (0.634, "fraction"), (23.75, "ratio"),
+    ...                                               (342.47, "money"), (427.5, "mass"), (None, "ratio"))]
+    ['5', '63.4 %', '23.8', '342.5', '427.5', '–']
+    """
+    if value is None:
+        return "–"
+    if kind == "count":
+        return f"{int(value)}"
+    if kind == "fraction":
+        return pct(value)
+    if kind == "money":
+        return money(value)
+    if kind == "mass":
+        return units.number(value, "mass")
+    return share(value)
+
+
+def _unit(row: CompareRow, units: "DisplayUnits") -> str:
+    if row.kind == "fraction":
+        return "%"
+    if row.kind == "mass":
+        return units.mass.symbol
+    return row.unit
+
+
+def comparison_blocks(cmp: "Comparison", units: "DisplayUnits") -> "list[Block]":
+    """The comparison as the terminal shows it: a table with a column per route (the best
+    value of each row marked with :data:`BEST_MARK`), what the mark means, the notes, the
+    trade-off sentence.  Without the safety caution, which the caller adds last.
+
+    Parameters
+    ----------
+    cmp : Comparison
+    units : DisplayUnits
+        One set for every route (masses in its unit of mass).
+    """
+    cols = (Col("measure", wrap=True), Col("unit")) + tuple(Col(label, "right", wrap=True) for label in cmp.labels)
+    rows, strong = [], set()
+    for r, row in enumerate(cmp.rows):
+        cells = [row.heading, _unit(row, units)]
+        for i, v in enumerate(row.values):
+            text = value_text(v, row.kind, units) + (f" {BEST_MARK}" if i in row.best else "")
+            if i in row.best:
+                strong.add((r, 2 + i))
+            if row.labels and row.labels[i]:
+                text += "\n" + row.labels[i]
+            cells.append(text)
+        rows.append(tuple(cells))
+    title = f"Routes to {cmp.target_material}, each planned for {units.mass_text(cmp.amount)} (before overage)"
+    higher = [r.short for r in cmp.rows if r.better == "higher"]
+    out: list[Block] = [Grid(cols, tuple(rows), title=title, strong=frozenset(strong)),
+                        Para(f"{BEST_MARK} best in its row: lower is better, except {' and '.join(higher) or 'none'}.")]
+    out += [Para(f"{row.short}: {row.note}", indent=2) for row in cmp.rows if row.note]
+    out += [Para(f"note: {note}") for note in cmp.notes]
+    out += [blank(), Para(tradeoff(cmp), label="Trade-off:"), blank()]
+    return out

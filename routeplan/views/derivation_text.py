@@ -12,11 +12,13 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 from routeplan.frozen import frozen
+from routeplan.views.numbers import sig
 from routeplan.views.tables import column_unit, fmt, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.derivation import Line
     from routeplan.plan.model import Plan
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = ["FactorView", "LineView", "Explanation", "line_views", "line_text", "lines_text", "charge_lines",
            "charge_explanation", "charge_text", "target_text", "raw_text", "derivation_rows",
@@ -138,13 +140,13 @@ class Explanation:
 
 
 def line_views(lines, origins=None, scales: dict[int, tuple[str, float]] | None = None,
-               amounts: dict[int, str] | None = None) -> tuple[LineView, ...]:
+               amounts: dict[int, str] | None = None, number=fmt) -> tuple[LineView, ...]:
     """Lines of a derivation for people.
 
     ``scales`` maps a line index to the ``(unit, factor)`` its result is shown in (the
     plan table's column unit; default the line's own unit); ``amounts`` maps a line index
     to the charge's number it is (``"n"``, ``"m"``, ``"V"``); ``origins`` gives each
-    line's index in the plan's derivation.
+    line's index in the plan's derivation; ``number`` writes a result.
     """
     scales = scales or {}
     amounts = amounts or {}
@@ -154,7 +156,7 @@ def line_views(lines, origins=None, scales: dict[int, tuple[str, float]] | None 
                                 f"line {f.ref + 1}" if f.ref is not None else f.source, f.ref, f.line)
                      for f in line.factors)
         unit, factor = scales.get(i, (line.unit, 1.0))
-        out.append(LineView(facs, line.value, line.unit, fmt(line.value / factor), unit, line.what,
+        out.append(LineView(facs, line.value, line.unit, number(line.value / factor), unit, line.what,
                             amounts.get(i), i if origins is None else origins[i]))
     return tuple(out)
 
@@ -178,13 +180,19 @@ def line_text(line) -> str:
     return " ".join(parts) + f" = {line.result} {line.unit} {line.what}"
 
 
-def lines_text(lines, scales: dict[int, tuple[str, float]] | None = None) -> list[str]:
+def lines_text(lines, scales: dict[int, tuple[str, float]] | None = None, number=fmt) -> list[str]:
     """Numbered lines of a derivation."""
-    return [f"{i + 1}. {line_text(x)}" for i, x in enumerate(line_views(lines, scales=scales))]
+    return [f"{i + 1}. {line_text(x)}" for i, x in enumerate(line_views(lines, scales=scales, number=number))]
 
 
-def _step_scales(plan: "Plan", step: str) -> dict[str, tuple[str, float]]:
-    """The unit the plan's table of ``step`` shows each kind in: unit -> (shown unit, factor)."""
+def _step_scales(plan: "Plan", step: str, units: "DisplayUnits | None" = None) -> dict[str, tuple[str, float]]:
+    """The unit each kind is shown in: base unit -> (shown unit, factor).
+
+    With ``units`` (the terminal's one set for the whole plan), its units; without, the
+    units the report's table of ``step`` picks for its own columns.
+    """
+    if units is not None:
+        return {base: (units.unit(kind).symbol, units.unit(kind).factor) for base, kind in _KIND.items()}
     rows = step_charge_rows(plan.step(step))
     out = {}
     for unit, col in (("mol", "mol"), ("kg", "mass_kg"), ("L", "volume_L")):
@@ -200,29 +208,33 @@ def charge_lines(plan: "Plan", step: str, material: str):
     return index, plan.derivation.charge(step, index)
 
 
-def charge_explanation(plan: "Plan", step: str, index: int, *, within_step: bool = False) -> Explanation:
+def charge_explanation(plan: "Plan", step: str, index: int, *, within_step: bool = False,
+                       units: "DisplayUnits | None" = None) -> Explanation:
     """How the plan gets charge ``index`` (0-based) of ``step``: moles, mass and volume.
 
     The charge's own results are shown in the units of the plan's table of that step, so
-    that they read digit for digit as there.  With ``within_step``, the lines stop at the
-    amounts another step derives (:meth:`routeplan.plan.derivation.Derivation.cut`).
+    that they read digit for digit as there: with ``units`` the terminal's units and
+    numbers (:mod:`routeplan.views.numbers`), as ``plan`` prints them; without, the
+    report table's.  With ``within_step``, the lines stop at the amounts another step
+    derives (:meth:`routeplan.plan.derivation.Derivation.cut`).
     """
+    number = fmt if units is None else sig
     d = plan.derivation
     keys = d.charge_keys(step, index)
     origins, lines = d.cut(*keys, step=step if within_step else None)
     c = plan.step(step).charges[index]
-    scales = _step_scales(plan, step)
+    scales = _step_scales(plan, step, units)
     own = {d.named[k]: k[3] for k in keys}  # a carried line's "V" is the mixture carried in
     where = {o: i for i, o in enumerate(origins)}
     shown = {i: scales[line.unit] for i, line in enumerate(lines)
              if origins[i] in {d.named[k] for k in keys} and line.unit in scales}
-    views = line_views(lines, origins, shown, {where[o]: x for o, x in own.items()})
+    views = line_views(lines, origins, shown, {where[o]: x for o, x in own.items()}, number)
     amounts = []
     for kind, unit, q in (("n", "mol", c.mol), ("m", "kg", c.mass), ("V", "L", c.volume)):
         if q is not None:
             name, factor = scales[unit]
             value = q.m_as(unit)
-            amounts.append((kind, value, fmt(value / factor), name))
+            amounts.append((kind, value, number(value / factor), name))
     subject = f"{c.material} charged to {step}"
     notes = ()
     if c.carried_from is not None:
@@ -232,11 +244,12 @@ def charge_explanation(plan: "Plan", step: str, index: int, *, within_step: bool
                        subject, notes)
 
 
-def charge_text(plan: "Plan", step: str, material: str) -> list[str]:
-    """The derivation of a charge, one line per chain; its last lines are the plan's numbers."""
+def charge_text(plan: "Plan", step: str, material: str, units: "DisplayUnits | None" = None) -> list[str]:
+    """The derivation of a charge, one line per chain; its last lines are the plan's numbers
+    (in ``units``, the terminal's, where given)."""
     from routeplan.plan.derivation import find_charge
 
-    return charge_explanation(plan, step, find_charge(plan.route, step, material)).text()
+    return charge_explanation(plan, step, find_charge(plan.route, step, material), units=units).text()
 
 
 def target_text(plan: "Plan") -> list[str]:
@@ -244,17 +257,21 @@ def target_text(plan: "Plan") -> list[str]:
     return [f"{plan.target_material}: moles to make"] + lines_text(plan.derivation.chain(("target",)))
 
 
-def raw_text(plan: "Plan", material: str) -> list[str]:
-    """The derivation of a raw material's mass over the campaign, every charge that adds to it."""
+def raw_text(plan: "Plan", material: str, units: "DisplayUnits | None" = None) -> list[str]:
+    """The derivation of a raw material's mass over the campaign, every charge that adds to
+    it; its total in ``units`` (the terminal's, where given) as the plan prints it."""
     from routeplan.plan.derivation import find_raw
 
     find_raw(plan.route, material, [r.material for r in plan.raw_materials])
     lines = plan.derivation.chain(("raw", material, "m"))
-    scale = column_unit([r.m_kg for r in plan.raw_materials], "mass")
+    if units is None:
+        scale, number = column_unit([r.m_kg for r in plan.raw_materials], "mass"), fmt
+    else:
+        scale, number = (units.mass.symbol, units.mass.factor), sig
     total = next(r for r in plan.raw_materials if r.material == material)
     return ([f"{material} over the campaign: how the plan gets its mass"]
-            + lines_text(lines, {len(lines) - 1: scale})
-            + [f"= {fmt(total.m_kg / scale[1])} {scale[0]} {material} over the campaign, as in the plan"])
+            + lines_text(lines, {len(lines) - 1: scale}, number)
+            + [f"= {number(total.m_kg / scale[1])} {scale[0]} {material} over the campaign, as in the plan"])
 
 
 def derivation_rows(lines) -> list[dict[str, Any]]:

@@ -7,10 +7,12 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
+from routeplan.views.numbers import pct
 from routeplan.views.tables import Column, display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = ["LOT_COLUMNS", "IN_HAND_COLUMNS", "lot_rows", "in_hand_rows", "record_lines", "yields_used_text",
            "lot_prefill"]
@@ -62,49 +64,60 @@ def yields_used_text(plan: "Plan") -> str:
     """Which yields the remaining batches of steps with lots are planned at."""
     rec = plan.record
     if rec.record_yields == "actual":
-        parts = ", ".join(f"{sid} {y:.1%}" for sid, y in rec.actual_yields.items())
+        parts = ", ".join(f"{sid} {pct(y)}" for sid, y in rec.actual_yields.items())
         return f"remaining batches of steps with lots planned at their actual yields ({parts}, mean of the lots)"
     return f"remaining batches planned at the route's {plan.yield_basis} yields"
 
 
-def _kg(value: float) -> str:
-    return display_quantity(value, "mass")
+def _kg(value: float, units: "DisplayUnits | None" = None) -> str:
+    return display_quantity(value, "mass", units=units)
 
 
-def record_lines(plan: "Plan") -> list[str]:
-    """Sentences about the record: lots, in hand, projection, gap and what closes it."""
+def record_lines(plan: "Plan", units: "DisplayUnits | None" = None) -> list[str]:
+    """Sentences about the record: lots, in hand, projection, gap and what closes it.
+
+    ``units``: the plan's units (masses and amounts in them); else each in the unit
+    that suits it.
+    """
     rec = plan.record
+
+    def kg(value: float) -> str:
+        return _kg(value, units)
+
+    def mol(value: float) -> str:
+        return units.amount_text(value) if units is not None else f"{value:.4g} mol"
+
     lines = ["", f"Campaign record{f' ({rec.source})' if rec.source else ''}: {len(rec.lots)} "
              f"lot{'s' if len(rec.lots) != 1 else ''}; this plan is the rest of the campaign, "
              "what is in hand used first; " + yields_used_text(plan) + "."]
     for r in rec.lots:
         flag = "   FAR BELOW LOW" if r.flagged else ""
         name = f" (lot {r.lot})" if r.lot else ""
-        lines.append(f"  {r.step} batch {r.batch}{name}: {_kg(r.charged_kg)} charged -> {_kg(r.mass_kg)} at "
-                     f"{r.assay:.1%}; yield {r.yield_:.1%} (expected {r.expected_yield:.1%}"
-                     + (f", low {r.low:.1%}" if r.low is not None else "") + f"){flag}")
+        lines.append(f"  {r.step} batch {r.batch}{name}: {kg(r.charged_kg)} charged -> {kg(r.mass_kg)} at "
+                     f"{pct(r.assay)}; yield {pct(r.yield_)} (expected {pct(r.expected_yield)}"
+                     + (f", low {pct(r.low)}" if r.low is not None else "") + f"){flag}")
     for h in rec.in_hand:
-        lines.append(f"  in hand: {_kg(h.mass_kg)} of {h.material} ({h.mol:.4g} mol; made "
-                     f"{h.made_mol:.4g} mol in {h.step}, later lots took {h.consumed_mol:.4g} mol)")
+        lines.append(f"  in hand: {kg(h.mass_kg)} of {h.material} ({mol(h.mol)}; made "
+                     f"{mol(h.made_mol)} in {h.step}, later lots took {mol(h.consumed_mol)})")
     if rec.delivered_kg > 0:
-        lines.append(f"  delivered already: {_kg(rec.delivered_kg)} of {plan.target_material}")
+        lines.append(f"  delivered already: {kg(rec.delivered_kg)} of {plan.target_material}")
     tgt = plan.target_material
     if rec.projected_target_kg is None:
         lines.append(f"  Projected: no lot lies upstream of {tgt}, so what is in hand does not bound it.")
         return lines
-    lines.append(f"  Projected target: {_kg(rec.projected_target_kg)} of {tgt} (before overage, the number "
+    lines.append(f"  Projected target: {kg(rec.projected_target_kg)} of {tgt} (before overage, the number "
                  f"--target takes) if what is in hand goes on at the {rec.yield_basis} yields and steps "
-                 f"{', '.join(rec.done)} do not run again; required {_kg(rec.required_target_kg)}.")
+                 f"{', '.join(rec.done)} do not run again; required {kg(rec.required_target_kg)}.")
     if rec.not_counted:
         lines.append(f"  not counted in the projection: {', '.join(rec.not_counted)} in hand (every step "
                      "taking it has lots); the re-plan takes it first.")
     if rec.gap_kg > 0 and rec.closes:
         what = ", ".join(f"{b} more batch{'es' if b != 1 else ''} of {sid}" for sid, b in rec.closes)
-        lines.append(f"  Short by {_kg(rec.gap_kg)}: closed by {what} (sized in the plan above).")
+        lines.append(f"  Short by {kg(rec.gap_kg)}: closed by {what} (sized in the plan above).")
     elif rec.gap_kg > 0:
-        lines.append(f"  Short by {_kg(rec.gap_kg)}: the steps still to run close it.")
+        lines.append(f"  Short by {kg(rec.gap_kg)}: the steps still to run close it.")
     else:
-        lines.append(f"  Covered: what is in hand delivers {_kg(-rec.gap_kg)} more than required.")
+        lines.append(f"  Covered: what is in hand delivers {kg(-rec.gap_kg)} more than required.")
     still = ", ".join(f"{sid} ({b} batch{'es' if b != 1 else ''})" for sid, b in rec.remaining)
     lines.append(f"  Still to run: {still or 'nothing'}.")
     return lines

@@ -265,6 +265,8 @@ def charge_derivations_view(plan: "Plan") -> dict[str, tuple[tuple[ChargeDerivat
 
 
 def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
+    from routeplan.views.display_units import SETS
+    from routeplan.views.plan_text import batch_notes
     from routeplan.views.transfer_text import transfer_text
 
     facts = []
@@ -287,7 +289,7 @@ def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
                                            f"{sp.limiting} charged, "
                                            f"{display_quantity(b.product_mass.m_as('kg'), 'mass')} of "
                                            f"{sp.product} made"))
-            for note in b.notes:
+            for note in batch_notes(sp, SETS["kilo"], plan.route):
                 facts.append(("note", note))
         transfer = transfer_text(plan, sp)
         if transfer:
@@ -490,6 +492,33 @@ def _metrics_lines(plan: "Plan") -> tuple[str, ...]:
     return tuple(x.strip() for x in lines if x.strip())[1:]
 
 
+def _safety_facts(plan: "Plan") -> list[tuple[str, str, str, float | None]]:
+    """Summary cards a safety review reads first: the highest criticality class and the
+    steps not screened (never silently safe), and how many warnings the plan has."""
+    running = [sp for sp in plan.steps if sp.safety is not None and sp.safety.runs]
+    classed = [(sp.safety.thermal.criticality_class, sp.id) for sp in running
+               if sp.safety.thermal is not None and sp.safety.thermal.criticality_class is not None]
+    unscreened = [sp.id for sp in running if not sp.safety.screened]
+    parts = []
+    top = None
+    if classed:
+        top = max(c for c, _ in classed)
+        at = [sid for c, sid in classed if c == top]
+        parts.append(f"highest criticality class {top} ({', '.join(at)})")
+    elif running and len(unscreened) < len(running):
+        parts.append("no criticality class (MTT and TD24 not both given)")
+    if unscreened:
+        parts.append(f"not screened: {', '.join(unscreened)}" if len(unscreened) < len(running)
+                     else "no step screened (no thermal data)")
+    out = []
+    if running:
+        out.append(("heat screening", "; ".join(parts) + " (screening estimates)", "max_criticality_class",
+                    None if top is None else float(top)))
+    n = len(plan.warnings)
+    out.append(("warnings", f"{n}, listed below" if n else "none", "warnings", float(n)))
+    return out
+
+
 def plan_report(plan: "Plan") -> Report:
     """Everything the HTML report of ``plan`` shows.
 
@@ -531,6 +560,7 @@ def plan_report(plan: "Plan") -> Report:
                     float(sum(sp.batches for sp in plan.steps))))
     if plan.yield_basis != "expected":
         summary.append(("planned at", f"the steps' {plan.yield_basis} yields", "yield_basis", None))
+    summary.extend(_safety_facts(plan))
     steps = []
     derived = charge_derivations_view(plan)
     for sp in plan.steps:

@@ -11,10 +11,12 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
+from routeplan.views.numbers import pct, sig
 from routeplan.views.tables import Column, display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = [
     "SCREENING_NOTE",
@@ -39,23 +41,36 @@ NOT_SCREENED = "not screened (no thermal data in the route file)"
 
 
 def _t(celsius: float | None) -> str:
+    """A temperature from the route file, as written there (exact) [°C]."""
     return "–" if celsius is None else f"{celsius:.4g} °C"
 
 
-def _volume(V_L: float) -> str:
-    return display_quantity(V_L, "volume")
+def _tc(celsius: float) -> str:
+    """A computed temperature, 4 significant figures [°C]."""
+    return f"{sig(celsius)} °C"
 
 
-def heat_text(sp: "StepPlan") -> str:
-    """The heat of one batch in one sentence, or :data:`NOT_SCREENED`."""
+def _volume(V_L: float, units: "DisplayUnits | None" = None) -> str:
+    return display_quantity(V_L, "volume", units=units)
+
+
+def _amount(mol: float, units: "DisplayUnits | None" = None) -> str:
+    return units.amount_text(mol) if units is not None else f"{sig(mol)} mol"
+
+
+def heat_text(sp: "StepPlan", units: "DisplayUnits | None" = None) -> str:
+    """The heat of one batch in one sentence, or :data:`NOT_SCREENED`.
+
+    ``units``: the plan's units for the reaction mass (else the unit that suits it).
+    """
     s = sp.safety
     t = None if s is None else s.thermal
     if t is None:
         return NOT_SCREENED
-    how = (f"Tp {_t(t.process_temperature_C)} + {t.accumulation:.0%} accumulation × ΔTad"
+    how = (f"Tp {_t(t.process_temperature_C)} + {pct(t.accumulation)} accumulation × ΔTad"
            if t.accumulation is not None else f"Tp {_t(t.process_temperature_C)} + ΔTad, batch step")
-    text = (f"reaction mass {display_quantity(t.reaction_mass_kg_per_batch, 'mass')} per batch, "
-            f"ΔTad {t.delta_T_ad_K:.3g} K (severity {t.severity}), MTSR {_t(t.mtsr_C)} ({how})")
+    text = (f"reaction mass {display_quantity(t.reaction_mass_kg_per_batch, 'mass', units=units)} per batch, "
+            f"ΔTad {sig(t.delta_T_ad_K)} K (severity {t.severity}), MTSR {_tc(t.mtsr_C)} ({how})")
     if t.criticality_class is not None:
         text += f"; MTT {_t(t.mtt_C)}, TD24 {_t(t.td24_C)}: criticality class {t.criticality_class}"
     else:
@@ -67,22 +82,25 @@ def heat_text(sp: "StepPlan") -> str:
     return text
 
 
-def gas_evolved_text(sp: "StepPlan", g) -> str:
-    """One gas evolved per batch: amount, volume at the conditions, mean rate."""
-    text = (f"{g.material} {g.mol_per_batch:.4g} mol, {_volume(g.volume_L_per_batch)} per batch at "
+def gas_evolved_text(sp: "StepPlan", g, units: "DisplayUnits | None" = None) -> str:
+    """One gas evolved per batch: amount, volume at the conditions, mean rate.
+
+    The mean rate stays in L/min, the unit a flow meter reads.
+    """
+    text = (f"{g.material} {_amount(g.mol_per_batch, units)}, {_volume(g.volume_L_per_batch, units)} per batch at "
             f"{_t(g.temperature_C)} and {g.pressure_bar:.4g} bar")
     if g.rate_L_per_min is not None:
-        text += (f", mean rate {g.rate_L_per_min:.3g} L/min over {sp.safety.dosing_time_min:.3g} min "
+        text += (f", mean rate {sig(g.rate_L_per_min)} L/min over {sp.safety.dosing_time_min:.4g} min "
                  f"of dosing {sp.safety.dosed}")
     else:
         text += ", all at once (no dosing)"
     return text
 
 
-def gas_taken_up_text(g) -> str:
+def gas_taken_up_text(g, units: "DisplayUnits | None" = None) -> str:
     """One gas taken up per batch, as the normal volume by which it is followed."""
-    return (f"{g.material} {g.mol_per_batch:.4g} mol per batch, {_volume(g.normal_volume_L_per_batch)} "
-            "at normal conditions (0 °C, 101.325 kPa)")
+    return (f"{g.material} {_amount(g.mol_per_batch, units)} per batch, "
+            f"{_volume(g.normal_volume_L_per_batch, units)} at normal conditions (0 °C, 1 atm)")
 
 
 def vent_text(g) -> str:
@@ -93,21 +111,22 @@ def vent_text(g) -> str:
     return text + (", and keep ignition sources away" if "flammable" in g.vent else "")
 
 
-def step_safety_lines(sp: "StepPlan") -> list[str]:
+def step_safety_lines(sp: "StepPlan", units: "DisplayUnits | None" = None) -> list[str]:
     """The safety section of a step for the terminal: only the lines that apply.
 
-    Empty for a step that does not run.
+    Empty for a step that does not run.  ``units``: the plan's units (amounts, masses
+    and volumes per batch in them).
     """
     s = sp.safety
     if s is None or not s.runs:
         return []
-    lines = [f"safety per batch, {SCREENING_NOTE}:", "  heat: " + heat_text(sp)]
+    lines = [f"safety per batch, {SCREENING_NOTE}:", "  heat: " + heat_text(sp, units)]
     for g in s.gas_evolved:
-        lines.append("  gas evolved: " + gas_evolved_text(sp, g))
+        lines.append("  gas evolved: " + gas_evolved_text(sp, g, units))
     for g in s.gas_taken_up:
-        lines.append("  gas taken up: " + gas_taken_up_text(g))
+        lines.append("  gas taken up: " + gas_taken_up_text(g, units))
     if s.gas_evolved and s.free_volume_L is not None:
-        lines.append(f"  vessel {sp.vessel} free volume {_volume(max(s.free_volume_L, 0.0))} per batch "
+        lines.append(f"  vessel {sp.vessel} free volume {_volume(max(s.free_volume_L, 0.0), units)} per batch "
                      "(nominal volume less the batch)")
     for g in (*s.gas_evolved, *s.gas_taken_up):
         note = vent_text(g)
@@ -129,10 +148,10 @@ def sheet_safety_pairs(sp: "StepPlan") -> list[tuple[str, str]]:
     else:
         pairs.append(("criticality class", "–, needs MTT and TD24" if t.criticality_class is None
                       else f"{t.criticality_class} (MTT {_t(t.mtt_C)}, TD24 {_t(t.td24_C)})"))
-        pairs.append(("ΔTad per batch", f"{t.delta_T_ad_K:.3g} K, severity {t.severity} (reaction mass "
+        pairs.append(("ΔTad per batch", f"{sig(t.delta_T_ad_K)} K, severity {t.severity} (reaction mass "
                                         f"{display_quantity(t.reaction_mass_kg_per_batch, 'mass')})"))
-        pairs.append(("MTSR", _t(t.mtsr_C) + (f" (Tp {_t(t.process_temperature_C)}, accumulation "
-                                              f"{t.accumulation:.0%})" if t.accumulation is not None
+        pairs.append(("MTSR", _tc(t.mtsr_C) + (f" (Tp {_t(t.process_temperature_C)}, accumulation "
+                                               f"{pct(t.accumulation)})" if t.accumulation is not None
                                               else f" (Tp {_t(t.process_temperature_C)}, batch step)")))
     for g in s.gas_evolved:
         pairs.append((f"gas evolved: {g.material}", gas_evolved_text(sp, g)))

@@ -25,6 +25,7 @@ __all__ = [
     "schedule_missing_text",
     "pace_text",
     "schedule_lines",
+    "schedule_parts",
 ]
 
 #: One row per batch on the schedule (workbook Schedule sheet, ``schedule.csv``).
@@ -161,18 +162,38 @@ def schedule_lines(plan: "Plan", *, width: int = 64) -> list[str]:
     Returns
     -------
     list of str
-        Lines without markup.
+        Lines without markup (:func:`schedule_parts` joined).
+    """
+    head, lanes, rest = schedule_parts(plan, width=width)
+    return [head, *lanes, *rest]
+
+
+def schedule_parts(plan: "Plan", *, width: int = 64) -> tuple[str, list[str], list[str]]:
+    """The schedule in three parts: its heading, the drawn lanes with the hour axis (to be
+    laid out as they are, never folded), and the sentences under them.
+
+    Parameters
+    ----------
+    plan : Plan
+    width : int
+        Columns for the whole campaign in the lanes [-].
+
+    Returns
+    -------
+    (str, list of str, list of str)
+        Heading; lanes and axis (empty without a schedule); lines indented by two spaces.
     """
     s = plan.schedule
     if s is None:
-        return ["Schedule", "  " + schedule_missing_text(plan)]
+        return "Schedule", [], ["  " + schedule_missing_text(plan)]
     if s.campaign_h <= 0:
-        return ["Schedule", "  no step runs in this campaign: nothing to schedule"]
+        return "Schedule", [], ["  no step runs in this campaign: nothing to schedule"]
     per_col = s.campaign_h / width
     names = [lane_name(v.vessel, v.steps) for v in s.vessels]
     pad = max(len(n) for n in names)
-    lines = ["Schedule (one lane per vessel; |S1 marks the start of a batch of S1, "
-             f". the vessel idle; 1 column = {per_col:.3g} h)"]
+    head = ("Schedule (one lane per vessel; |S1 marks the start of a batch of S1, "
+            f". the vessel idle; 1 column = {per_col:.3g} h)")
+    lanes = []
 
     def col(t: float) -> int:
         return min(width, int(round(t / per_col)))
@@ -193,7 +214,7 @@ def schedule_lines(plan: "Plan", *, width: int = 64) -> list[str]:
                 for i, ch in enumerate(seg):
                     if a + i < width:
                         cells[a + i] = ch
-        lines.append(f"  {name.ljust(pad)} {''.join(cells).rstrip()}")
+        lanes.append(f"  {name.ljust(pad)} {''.join(cells).rstrip()}")
     tick = _ticks(s.campaign_h)
     axis = [" "] * (width + 8)
     t = 0.0
@@ -203,21 +224,21 @@ def schedule_lines(plan: "Plan", *, width: int = 64) -> list[str]:
         if c + len(label) <= len(axis) and all(ch == " " for ch in axis[max(0, c - 1):c + len(label)]):
             axis[c:c + len(label)] = list(label)
         t += tick
-    lines.append(f"  {' ' * pad} {''.join(axis).rstrip()}")
-    lines.append("  " + pace_text(plan))
+    lanes.append(f"  {' ' * pad} {''.join(axis).rstrip()}")
+    rest = ["  " + pace_text(plan)]
     for st in s.steps:
         n = len(st.batches)
         where = lane_name(st.vessel, [st.id])
         if not n:
-            lines.append(f"  {st.id}: does not run, takes no time")
+            rest.append(f"  {st.id}: does not run, takes no time")
             continue
         wait = st.start_h - st.ready_h
         why = (f", waits {_h(wait)} h for {where} after {st.after}" if st.held_by == "vessel" and wait > 0
                else f", after {st.after}" if st.held_by == "feed" else "")
-        lines.append(f"  {st.id}: {where}, {_h(st.start_h)}–{_h(st.end_h)} h, "
-                     f"{n} batch{'es' if n != 1 else ''} × {_h(st.cycle_time_h)} h{why}")
+        rest.append(f"  {st.id}: {where}, {_h(st.start_h)}–{_h(st.end_h)} h, "
+                    f"{n} batch{'es' if n != 1 else ''} × {_h(st.cycle_time_h)} h{why}")
     busy = "; ".join(f"{r['vessel']} busy {_h(r['busy_h'])} h" + (f", idle {_h(r['idle_h'])} h between batches"
                                                                    if r["idle_h"] else "")
                      for r in vessel_rows(plan))
-    lines.append(f"  vessels: {busy}")
-    return lines
+    rest.append(f"  vessels: {busy}")
+    return head, lanes, rest

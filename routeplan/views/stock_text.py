@@ -6,12 +6,29 @@ from routeplan.views.purchase_rows import not_bought_note
 from routeplan.views.sheet_rows import stock_not_needed
 from routeplan.views.tables import display_quantity
 
-__all__ = ["stock_lines"]
+__all__ = ["stock_lines", "target_option"]
 
 
-def stock_lines(plan) -> list[str]:
-    """Human sentences about the plan's stock comparison."""
+def target_option(kg: float, units=None) -> str:
+    """A mass [kg] as ``--target`` takes it: the number without digit groups, its unit.
+
+    >>> from routeplan.views.display_units import SETS
+    >>> target_option(13194.6, SETS["kilo"]), target_option(0.45)
+    ('13190 kg', '450 g')
+    """
+    if units is None:
+        return display_quantity(kg, "mass")
+    return f"{units.number(kg, 'mass').replace(' ', '')} {units.mass.symbol}"
+
+
+def stock_lines(plan, units=None) -> list[str]:
+    """Human sentences about the plan's stock comparison; masses in ``units`` (the plan's
+    :class:`~routeplan.views.display_units.DisplayUnits`) where given."""
     s = plan.stock
+
+    def mass(kg: float) -> str:
+        return display_quantity(kg, "mass", units=units)
+
     lines = [""]
     tgt = plan.target_material
     in_stock = set(s.on_hand)
@@ -20,18 +37,19 @@ def stock_lines(plan) -> list[str]:
     if s.max_target is None:
         lines.append("Stock: no raw material this plan needs is in the stock list.")
     else:
-        most = display_quantity(s.max_target.m_as("kg"), "mass")
+        most = mass(s.max_target.m_as("kg"))
         lines.append(f"Stock: the materials on hand allow a target of at most {most} of {tgt}"
                      + (", using the intermediates in stock first" if _shelf(plan) else "")
-                     + (f" (plus the {overage * 100:.3g} % overage, so --target \"{most}\")" if overage else "")
+                     + (f" (plus the {overage * 100:g} % overage, so --target "
+                        f"\"{target_option(s.max_target.m_as('kg'), units)}\")" if overage else "")
                      + f", limited by {s.limited_by}"
                      + (", counting only the materials in stock" if missing else "") + ".")
     if missing:
         lines.append("  not in stock, to buy in full: " + ", ".join(missing))
     for sp in plan.steps:
         if sp.from_stock_mass is not None and sp.product in in_stock:
-            have = display_quantity(s.on_hand[sp.product].m_as("kg"), "mass")
-            taken = display_quantity(sp.from_stock_mass.m_as("kg"), "mass")
+            have = mass(s.on_hand[sp.product].m_as("kg"))
+            taken = mass(sp.stock_m_kg)
             then = f"step {sp.id} makes the rest" if sp.runs else f"step {sp.id} does not run"
             lines.append(f"  {sp.product} (intermediate, made in {sp.id}): {taken} of the {have} on hand "
                          f"taken from stock; {then}")
@@ -43,11 +61,11 @@ def stock_lines(plan) -> list[str]:
                      + ", ".join(idle))
     if s.to_buy:
         asked = plan.target_mass.m_as("kg") / (1 + overage)
-        lines.append(f"To buy for {display_quantity(asked, 'mass')} of {tgt}"
-                     + (f" ({display_quantity(plan.target_mass.m_as('kg'), 'mass')} with the overage)"
+        lines.append(f"To buy for {mass(asked)} of {tgt}"
+                     + (f" ({mass(plan.target_kg)} with the overage)"
                         if overage else "") + ":")
-        for key, mass in s.to_buy:
-            lines.append(f"  {key}: {display_quantity(mass.m_as('kg'), 'mass')}")
+        for key, need in s.to_buy:
+            lines.append(f"  {key}: {mass(need.m_as('kg'))}")
     else:
         lines.append("Nothing to buy: the stock covers the requested target.")
     note = not_bought_note(plan)

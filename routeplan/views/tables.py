@@ -9,12 +9,12 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 from routeplan.frozen import frozen
-from routeplan.units import magnitude
 
 if TYPE_CHECKING:  # pragma: no cover
     import pandas as pd
 
     from routeplan.plan.model import Plan, StepPlan
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = [
     "Column",
@@ -77,32 +77,28 @@ def step_charge_rows(sp: "StepPlan") -> list[dict[str, Any]]:
     """One row per charge of one step, in order of addition.
 
     Per-batch mass [kg] and volume [L] are None for a step of no batches (one that does
-    not run because the stock of its product covers it).
+    not run because the stock of its product covers it).  Read from the plan's floats
+    (``n_mol``, ``m_kg``, ``V_L``), never converted.
     """
     n = sp.batches
-    rows = []
-    for c in sp.charges:
-        mass = magnitude(c.mass, "kg")
-        vol = magnitude(c.volume, "L")
-        rows.append({
-            "step": sp.id,
-            "order": c.order,
-            "material": c.material,
-            "name": c.name,
-            "role": c.role,
-            "basis": c.basis,
-            "equiv": c.equiv,
-            "mol": magnitude(c.mol, "mol"),
-            "mass_kg": mass,
-            "volume_L": vol,
-            "batches": n,
-            "batch_mass_kg": None if n == 0 else mass / n,  # no batch: the step does not run
-            "batch_volume_L": None if vol is None or n == 0 else vol / n,
-            "intermediate": c.intermediate,
-            "carried_from": c.carried_from,
-            "leaves": c.leaves,
-        })
-    return rows
+    return [{
+        "step": sp.id,
+        "order": c.order,
+        "material": c.material,
+        "name": c.name,
+        "role": c.role,
+        "basis": c.basis,
+        "equiv": c.equiv,
+        "mol": c.n_mol,
+        "mass_kg": c.m_kg,
+        "volume_L": c.V_L,
+        "batches": n,
+        "batch_mass_kg": None if n == 0 else c.m_kg / n,  # no batch: the step does not run
+        "batch_volume_L": None if c.V_L is None or n == 0 else c.V_L / n,
+        "intermediate": c.intermediate,
+        "carried_from": c.carried_from,
+        "leaves": c.leaves,
+    } for c in sp.charges]
 
 
 def charge_rows(plan: "Plan") -> list[dict[str, Any]]:
@@ -116,9 +112,9 @@ def raw_material_rows(plan: "Plan") -> list[dict[str, Any]]:
         {
             "material": r.material,
             "name": r.name,
-            "mass_kg": magnitude(r.mass, "kg"),
-            "volume_L": magnitude(r.volume, "L"),
-            "mol": magnitude(r.mol, "mol"),
+            "mass_kg": r.m_kg,
+            "volume_L": r.V_L,
+            "mol": r.n_mol,
             "cost": r.cost,
             "steps": ", ".join(r.steps),
         }
@@ -143,8 +139,12 @@ _DISPLAY = {
 }
 
 
-def display_quantity(value: float | None, kind: str, *, digits: int = 4) -> str:
+def display_quantity(value: float | None, kind: str, *, digits: int = 4, units: "DisplayUnits | None" = None) -> str:
     """A readable string for ``value`` given in kg, L or mol: ``'26.3 kg'``, ``'450 g'``.
+
+    With ``units`` (the plan's units, :mod:`routeplan.views.display_units`) the value is
+    written in the unit of its kind there, by the rule of :mod:`routeplan.views.numbers`;
+    without, in the unit that suits the value alone.
 
     Parameters
     ----------
@@ -153,7 +153,9 @@ def display_quantity(value: float | None, kind: str, *, digits: int = 4) -> str:
     kind : str
         ``"mass"``, ``"volume"`` or ``"amount"``.
     digits : int
-        Significant figures.
+        Significant figures (without ``units``).
+    units : DisplayUnits, optional
+        One unit per kind for the whole plan.
 
     Examples
     --------
@@ -164,6 +166,8 @@ def display_quantity(value: float | None, kind: str, *, digits: int = 4) -> str:
     """
     if value is None:
         return ""
+    if units is not None:
+        return units.text(value, kind)
     name, factor = column_unit([value], kind)
     return f"{value / factor:.{digits}g} {name}"
 

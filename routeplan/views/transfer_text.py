@@ -12,6 +12,7 @@ from routeplan.views.tables import display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = ["LEAVES_NOTE", "separated_materials", "transfer_text", "carried_note"]
 
@@ -24,10 +25,11 @@ def separated_materials(sp: "StepPlan") -> list[str]:
     return list(dict.fromkeys(c.material for c in sp.charges if c.leaves))
 
 
-def transfer_text(plan: "Plan", sp: "StepPlan") -> str | None:
+def transfer_text(plan: "Plan", sp: "StepPlan", units: "DisplayUnits | None" = None) -> str | None:
     """What a telescoped step passes on per batch, e.g. ``"goes on in solution to T2:
     46.12 L of mixture (40.39 kg) per batch; separated and discarded before the transfer:
-    water"``; None for an isolated step or one that does not run.
+    water"``; None for an isolated step or one that does not run.  ``units``: the plan's
+    one set (the terminal's); else each quantity in the unit that suits it.
 
     Examples
     --------
@@ -46,8 +48,9 @@ def transfer_text(plan: "Plan", sp: "StepPlan") -> str | None:
     users = plan.route.consumers.get(sp.product, ())
     to = f" to {', '.join(users)}" if users else ""
     V, m = b.transfer_volume, b.transfer_mass
-    what = ("mixture of no known volume" if V is None else f"{display_quantity(V.m_as('L'), 'volume')} of mixture")
-    text = f"goes on in solution{to}: {what} ({display_quantity(m.m_as('kg'), 'mass')}) per batch"
+    what = ("mixture of no known volume" if V is None
+            else f"{display_quantity(V.m_as('L'), 'volume', units=units)} of mixture")
+    text = f"goes on in solution{to}: {what} ({display_quantity(m.m_as('kg'), 'mass', units=units)}) per batch"
     left = separated_materials(sp)
     if left:
         text += f"; separated and discarded before the transfer: {', '.join(left)}"

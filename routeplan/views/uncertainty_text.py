@@ -9,11 +9,13 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
+from routeplan.views import numbers
 from routeplan.views.tables import display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
     from routeplan.plan.uncertainty import Uncertainty
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = [
     "NO_UNCERTAINTY",
@@ -33,7 +35,7 @@ BARS = " ▁▂▃▄▅▆▇█"
 
 
 def _pct(x: float) -> str:
-    return f"{100 * x:.1f} %"
+    return numbers.pct(x)
 
 
 def _level(x: float) -> str:
@@ -89,12 +91,22 @@ def contribution_rows(u: "Uncertainty") -> list[dict[str, Any]]:
     return [{"step": sid, "share": share, "method": CONTRIBUTION_METHOD} for sid, share in u.contributions]
 
 
-def uncertainty_lines(plan: "Plan") -> list[str]:
-    """The uncertainty as plain lines for the terminal (empty without ``plan.uncertainty``)."""
+def uncertainty_lines(plan: "Plan", units: "DisplayUnits | None" = None) -> list[str]:
+    """The uncertainty as plain lines for the terminal (empty without ``plan.uncertainty``).
+
+    ``units``: the plan's units (every mass in its unit of mass); else each mass in the
+    unit that suits it.  Percentages to 3 significant figures.
+    """
+    from routeplan.views.stock_text import target_option
+
     u = plan.uncertainty
     if u is None:
         return []
-    req = display_quantity(u.required_kg, "mass")
+
+    def kg(value: float) -> str:
+        return display_quantity(value, "mass", units=units)
+
+    req = kg(u.required_kg)
     head = (f"Yield uncertainty ({u.distribution}, {_count(u.draws)} draws, seed {u.seed}), "
             "delivered as isolated by the plan at expected yields:")
     if not u.carries_uncertainty:
@@ -102,21 +114,20 @@ def uncertainty_lines(plan: "Plan") -> list[str]:
                 f"  {NO_UNCERTAINTY}: every draw delivers the planned {req}; "
                 "this is not a certainty, only the absence of ranges in the route file",
                 f"  to deliver {req} at {_level(u.confidence)} confidence: the target as planned, "
-                f"--target {display_quantity(u.target_kg, 'mass')} (before overage)"]
+                f"--target \"{target_option(u.target_kg, units)}\" (before overage)"]
     lines = [
         head,
-        f"  P10 {display_quantity(u.p10_kg, 'mass')} · P50 {display_quantity(u.p50_kg, 'mass')} · "
-        f"P90 {display_quantity(u.p90_kg, 'mass')} · mean {display_quantity(u.mean_kg, 'mass')} "
+        f"  P10 {kg(u.p10_kg)} · P50 {kg(u.p50_kg)} · P90 {kg(u.p90_kg)} · mean {kg(u.mean_kg)} "
         f"(required {req}, overage included)",
-        f"  {display_quantity(u.histogram_edges_kg[0], 'mass')} {sparkline(u.histogram_counts)} "
-        f"{display_quantity(u.histogram_edges_kg[-1], 'mass')}   (draws per bin)",
-        "  " + " · ".join(f"P{100 * lv:.0f} {display_quantity(v, 'mass')}" for lv, v in u.quantiles_kg),
+        f"  {kg(u.histogram_edges_kg[0])} {sparkline(u.histogram_counts)} "
+        f"{kg(u.histogram_edges_kg[-1])}   (draws per bin)",
+        "  " + " · ".join(f"P{100 * lv:.0f} {kg(v)}" for lv, v in u.quantiles_kg),
         f"  probability of delivering {req}: {_pct(u.probability_of_target)}",
         f"  to be {_level(u.confidence)} sure of {req}: plan --target "
-        f"{display_quantity(u.target_kg, 'mass')} (before overage) and buy, at that confidence:",
+        f"\"{target_option(u.target_kg, units)}\" (before overage) and buy, at that confidence:",
     ]
-    for material, kg in u.raw_materials:
-        lines.append(f"    {material}: {display_quantity(kg, 'mass')}")
+    for material, need in u.raw_materials:
+        lines.append(f"    {material}: {kg(need)}")
     if u.contributions:
         lines.append("  share of the spread by step (squared correlation of its yield with the delivered mass): "
                      + ", ".join(f"{sid} {_pct(share)}" for sid, share in u.contributions))

@@ -10,10 +10,12 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
+from routeplan.views.numbers import money
 from routeplan.views.tables import Column, display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = ["WASTE_COLUMNS", "PART_NAMES", "waste_rows", "waste_cost_facts", "unpriced_text", "waste_lines",
            "cost_lines"]
@@ -121,15 +123,19 @@ def waste_cost_facts(plan: "Plan") -> list[dict[str, Any]]:
     return out
 
 
-def waste_lines(plan: "Plan") -> list[str]:
-    """The waste of the campaign as plain text lines (no markup)."""
+def waste_lines(plan: "Plan", units: "DisplayUnits | None" = None) -> list[str]:
+    """The waste of the campaign as plain text lines (no markup).
+
+    ``units``: the plan's units (every mass in its unit of mass); else each mass in the
+    unit that suits it.
+    """
     w = plan.waste
     if w is None:
         return []
     t = w.total
 
     def kg(x: float) -> str:
-        return display_quantity(x, "mass")
+        return display_quantity(x, "mass", units=units)
 
     lines = ["Waste (whole campaign; everything charged less the product taken on)",
              f"  aqueous {kg(t.aqueous_kg)} · organic {kg(t.organic_kg)} · halogenated {kg(t.halogenated_kg)}"
@@ -152,7 +158,8 @@ def waste_lines(plan: "Plan") -> list[str]:
 
 
 def cost_lines(plan: "Plan") -> list[str]:
-    """The cost of goods as plain text lines (no markup)."""
+    """The cost of goods as plain text lines (no markup); amounts of money to 4 significant
+    figures (:func:`routeplan.views.numbers.money`)."""
     c = plan.cost_of_goods
     if c is None:
         return []
@@ -161,16 +168,16 @@ def cost_lines(plan: "Plan") -> list[str]:
     cur = c.currency
     head = f"Cost of goods ({cur}, whole campaign; per kg of {plan.target_material} as delivered)"
 
-    def money(x):
-        return "no price" if x is None else f"{x:,.2f}"
+    def amount(x):
+        return "no price" if x is None else money(x)
 
-    parts = " · ".join(f"{PART_NAMES[name]} {money(p.amount)}" for name, p in c.parts.items())
+    parts = " · ".join(f"{PART_NAMES[name]} {amount(p.amount)}" for name, p in c.parts.items())
     total = c.per_kg
     lines = [head, f"  {parts}"]
     if total is None:
         lines.append("  per kg: not computed (nothing is priced)")
     else:
-        lines.append(f"  total {money(c.total)} {cur}: {total:,.2f} {cur} per kg"
+        lines.append(f"  total {amount(c.total)} {cur}: {money(total)} {cur} per kg"
                      + ("" if c.complete else ", priced parts only"))
     for name in c.parts:
         gap = unpriced_text(plan, name)

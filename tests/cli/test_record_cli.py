@@ -8,7 +8,7 @@ import json
 
 import pytest
 
-from conftest import run_cli, write_route
+from conftest import run_cli, words, write_route
 from record_helpers import CAMP, RECORD_YAML
 
 LOT = "{step: S1, batch: 1, charged: 20.0 kg, isolated: 27.0 kg, assay: 96 %}"
@@ -32,7 +32,7 @@ def test_record_in_every_output(camp, tmp_path):
                   "--xlsx", tmp_path / "plan.xlsx")
     assert res.exit_code == 0, res.output
     assert "Campaign record" in res.stdout and "Projected target" in res.stdout
-    assert "planned at the route's expected yields" in res.stdout
+    assert "planned at the route's expected yields" in words(res.stdout)  # folded to the width
     d = json.loads(out.read_text())
     assert d["record"]["record_yields"] == "expected" and len(d["record"]["lots"]) == 3
     assert (tmp_path / "csv" / "record-lots.csv").exists()
@@ -52,7 +52,7 @@ def test_record_yields_actual_is_said(camp, tmp_path):
     res = run_cli("plan", camp, "--record", record(tmp_path, RECORD_YAML), "--record-yields", "actual")
     assert res.exit_code == 0, res.output
     # (S1: (172.8 + 153.33) / 370 = 88.1 %, S2: 148.5 / 190 = 78.2 %; see test_record_worked.py)
-    assert "planned at their actual yields (S1 88.1%, S2 78.2%" in " ".join(res.stdout.split())
+    assert "planned at their actual yields (S1 88.1 %, S2 78.2 %" in words(res.stdout)
 
 
 def test_record_yields_without_record_is_refused(camp):

@@ -295,3 +295,35 @@ def test_schedule_section_shows_the_plans_vessels_and_timeline():
     assert 'id="chart-timeline"' in section
     for v in plan.schedule.vessels:
         assert f">{v.vessel}<" in section
+
+
+@pytest.mark.parametrize("path", [LINEAR, CONVERGENT], ids=["linear", "convergent"])
+def test_summary_leads_with_the_safety_findings(path):
+    """The summary names the highest criticality class and the steps not screened, counts the
+    warnings, and the warnings come right after it, before the scheme (a reviewer reads them first)."""
+    plan = routeplan.plan_route(routeplan.load_route(path))
+    html = plan_html(plan)
+    d = routeplan.plan_to_dict(plan)
+    facts = {a["data-key"]: (a["data-value"], t) for a, t in parse(html).cells if "data-key" in a
+             and "fact" in a.get("class", "")}
+    classes = [s["safety"]["thermal"]["criticality_class"] for s in d["steps"]
+               if s.get("safety") and s["safety"]["thermal"] and s["safety"]["thermal"]["criticality_class"]]
+    value, text = facts["max_criticality_class"]
+    if classes:
+        assert float(value) == max(classes)
+        assert f"highest criticality class {max(classes)}" in text
+    else:
+        assert value == ""
+    unscreened = [s["id"] for s in d["steps"] if s.get("safety") and s["safety"]["thermal"] is None]
+    for sid in unscreened:
+        assert sid in text.split("not screened:", 1)[1]
+    assert float(facts["warnings"][0]) == len(d["warnings"])
+    if d["warnings"]:
+        assert html.index('id="summary"') < html.index('id="warnings"') < html.index('id="scheme"')
+
+
+def test_no_step_screened_is_said_in_the_summary(tmp_path):
+    text = (ROOT / "tests" / "data" / "routes" / "good.yaml").read_text(encoding="utf-8")
+    plan = routeplan.plan_route(routeplan.load_route(write_route(tmp_path, text)))
+    facts = {a["data-key"]: t for a, t in parse(plan_html(plan)).cells if "fact" in a.get("class", "")}
+    assert "no step screened (no thermal data)" in facts["max_criticality_class"]

@@ -10,7 +10,7 @@ import json
 import openpyxl
 import pytest
 
-from conftest import route_text, run_cli, write_route
+from conftest import route_text, run_cli, words, write_route
 from routeplan import CAUTION
 from routeplan.export.csv import write_csv
 from routeplan.export.workbook import write_workbook
@@ -33,13 +33,13 @@ def files(tmp_path):
 
 def test_terminal_partial_and_covered(files):
     route, part, full = files
-    text = run_cli("plan", route, "--stock", part).stdout
-    assert "4.5 kg of I taken from stock; this step makes the rest" in text
+    text = words(run_cli("plan", route, "--stock", part).stdout)  # folded to the width
+    assert "4.500 kg of I taken from stock; this step makes the rest" in text  # 4 significant figures
     assert "using the intermediates in stock first" in text and "limited by A" in text
     result = run_cli("plan", route, "--stock", full)
     assert result.exit_code == 0, result.output
-    out = result.stdout
-    assert "not run: the stock of I covers it (15 kg of I taken from stock)" in out
+    out = words(result.stdout)
+    assert "not run: the stock of I covers it (15.00 kg of I taken from stock)" in out
     assert "in stock, not needed for this target (charged only in steps that do not run): A" in out
     assert "intermediates from stock, counted as inputs in the PMI and E-factors" in out
     assert "CAUTION" in out

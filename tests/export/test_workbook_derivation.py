@@ -22,6 +22,7 @@ import openpyxl
 import pytest
 
 import routeplan
+from routeplan import CAUTION
 from conftest import DATA, ROOT, missing_tool
 from routeplan.export.workbook import write_workbook
 from routeplan.export.workbook_derivation import DERIVATION_COLUMNS, DERIVATION_SHEET, DERIVATION_TOP
@@ -175,6 +176,13 @@ def test_sheet_is_protected_and_text_stays_text(tmp_path):
     wb = openpyxl.load_workbook(write_workbook(plan, tmp_path / "d.xlsx"))
     ws = wb[DERIVATION_SHEET]
     assert ws.protection.sheet
+    # printed like every sheet: landscape, one page wide, headings on every page, the caution in the footer
+    # (an absent fitToWidth means 1: ECMA-376 Part 1, the pageSetup element)
+    assert ws.page_setup.orientation == "landscape" and ws.sheet_properties.pageSetUpPr.fitToPage
+    assert (ws.page_setup.fitToWidth or 1, ws.page_setup.fitToHeight) == (1, 0)
+    assert ws.print_title_rows == f"${DERIVATION_TOP + 1}:${DERIVATION_TOP + 1}"
+    assert CAUTION in " ".join(ws.oddFooter.left.text.split())
+    assert ws.cell(2, 1).value == "CAUTION: " + CAUTION  # near the top, as on every sheet
     title = ws.cell(1, 1)
     assert title.data_type == "s" and title.value.endswith('=HYPERLINK("http://x","y")')
     for r in range(DERIVATION_TOP + 2, ws.max_row + 1):
