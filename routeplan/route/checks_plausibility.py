@@ -67,7 +67,9 @@ MASS_BALANCE_TOLERANCE = 5e-3
 #: - another material by ``mass_ratio`` (a filter aid, carbon, a salt) above 10 kg/kg;
 #: - ``equiv`` above 10 on any line but a solvent (a reagent that is also the solvent is
 #:   charged in large excess);
-#: - ``volumes`` above 50 L/kg: a step that dilute does not fit a plant vessel;
+#: - ``volumes`` of a reaction solvent above 30 L/kg: reactions are usually run at 3 to
+#:   20 volumes, so 40 is most often 4 typed with a zero too many; any other line (a wash,
+#:   a work-up) above 50 L/kg: a step that dilute does not fit a plant vessel;
 #: - ``mol_percent`` above 100 is more than one equivalent: an error, not a warning.
 CHARGE_RANGES = {
     ("mass_ratio", "catalyst"): (0.5, "a catalyst by mass is usually 0.01 to 0.2 kg per kg of limiting reagent "
@@ -76,6 +78,8 @@ CHARGE_RANGES = {
     ("mass_ratio", None): (10.0, "a charge by mass ratio is usually up to 10 kg per kg of limiting reagent"),
     ("equiv", "solvent"): (None, ""),
     ("equiv", None): (10.0, "a material is usually charged at up to 10 equiv"),
+    ("volumes", "solvent"): (30.0, "a reaction solvent is usually 3 to 20 volumes (L per kg of limiting "
+                                   "reagent); check for a zero too many"),
     ("volumes", None): (50.0, "a step usually runs at up to 50 volumes (L per kg of limiting reagent)"),
     ("mol_percent", None): (100.0, "a catalyst is usually 0.01 to 20 mol %; 100 mol % is one equivalent"),
 }
