@@ -20,6 +20,7 @@ import functools
 import re
 from dataclasses import field
 
+from routeplan.chemistry.formula import CACHE_SIZE
 from routeplan.errors import EquationError
 from routeplan.frozen import frozen
 
@@ -193,7 +194,7 @@ def _parse_side(text: str, side_text: str, side: str) -> list[Term]:
     return terms
 
 
-@functools.lru_cache(maxsize=1024)
+@functools.lru_cache(maxsize=CACHE_SIZE)
 def _parse_cached(text: str) -> Equation:
     left, right = _split_arrow(text)
     reactants = _parse_side(text, left, "reactant")

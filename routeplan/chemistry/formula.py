@@ -462,7 +462,13 @@ def _make(counts: Mapping[str, Fraction], charge: int, text: str) -> Formula:
     return Formula(MappingProxyType({s: _number(counts[s]) for s in ordered}), charge, text)
 
 
-@functools.lru_cache(maxsize=4096)
+#: Distinct texts (formulas, equations) whose parse is kept [-]: more than a route of
+#: 10 000 steps holds, so that a long route is not parsed twice over (an LRU cache
+#: smaller than the route misses on every text when it is read a second time).
+CACHE_SIZE = 1 << 16
+
+
+@functools.lru_cache(maxsize=CACHE_SIZE)
 def _parse_cached(text: str) -> Formula:
     return _Parser(text).parse()
 
@@ -547,7 +553,7 @@ def _mass_of(f: Formula) -> float:
     return float(sum(terms, Decimal(0)))
 
 
-@functools.lru_cache(maxsize=4096)
+@functools.lru_cache(maxsize=CACHE_SIZE)
 def _mass_cached(text: str) -> float:
     return _mass_of(_parse_cached(text))
 

@@ -8,7 +8,7 @@ format's step 3); this module only places its numbers, those of the batch sizing
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Mapping
+from typing import TYPE_CHECKING, Callable, Mapping
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.campaign import Sized
@@ -19,8 +19,9 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = ["step_plans"]
 
 
-def step_plans(route: "Route", walked: "Walked", sized: Mapping[str, "Sized"]) -> "tuple[StepPlan, ...]":
-    """Every step's plan, in execution order, complete with its batches.
+def step_plans(route: "Route", walked: "Walked", sized: Mapping[str, "Sized"],
+               safety: "Callable | None" = None) -> "tuple[StepPlan, ...]":
+    """Every step's plan, in execution order, complete with its batches (and its safety).
 
     Parameters
     ----------
@@ -30,6 +31,10 @@ def step_plans(route: "Route", walked: "Walked", sized: Mapping[str, "Sized"]) -
         The backward walk (:func:`routeplan.plan.walk.walk_route`).
     sized : Mapping[str, Sized]
         Volumes and batches (:func:`routeplan.plan.campaign.size_steps`).
+    safety : callable, optional
+        ``safety(step_id, runs, batch, charges)`` gives the step's heat and gas of one
+        batch (:func:`routeplan.plan.safety.batch_safety`), so that each StepPlan is
+        built once, with it; without it ``safety`` is None.
     """
     from routeplan.plan.model import BatchPlan, ChargePlan, StepPlan
 
@@ -55,12 +60,15 @@ def step_plans(route: "Route", walked: "Walked", sized: Mapping[str, "Sized"]) -
                           product_n_mol=w.n_product, product_m_kg=m_prod, reaction_m_kg=z.reaction_m_kg,
                           transfer_V_L=z.transfer_V_L, transfer_m_kg=z.transfer_m_kg)
         stock_n = w.n_taken
+        not_run = walked.not_run.get(sid)
+        lines = tuple(lines)
         out.append(StepPlan(
             id=sid, name=step.name, equation=step.equation_text, limiting=step.limiting,
             limiting_n_mol=w.n_lim, limiting_m_kg=w.m_lim, product=step.product,
             product_n_mol=w.n_product, product_m_kg=m_prod, yield_=w.step.yield_,
-            isolated=step.isolated, charges=tuple(lines), batch=batch, vessel=step.vessel,
+            isolated=step.isolated, charges=lines, batch=batch, vessel=step.vessel,
             notes=step.notes, stock_n_mol=stock_n,
             stock_m_kg=None if stock_n is None else stock_n * w.step.product_form.kg_per_mol,
-            not_run=walked.not_run.get(sid)))
+            not_run=not_run,
+            safety=None if safety is None else safety(sid, not_run is None, batch, lines)))
     return tuple(out)

@@ -213,25 +213,31 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
         return forms[key]
 
     steps = []
+    maker = route.maker  # intermediate -> the step that makes it
+    case = str(yields)
     for sid in step_order(route):
         step = route.step(sid)
-        chosen = getattr(step.yield_, str(yields))
+        chosen = getattr(step.yield_, case)
         y = step.yield_.expected if chosen is None else chosen
         if not y > 0:
             raise PlanError(f"step {step.id} has a yield of {y:g}; it must be above 0", step=step.id)
         charges = []
         for c in step.charges:
-            if c.basis == "volumes":
+            basis = c.basis
+            if basis == "volumes":
                 factor = quantity(c.value, "L/kg", ("volumes", step, c))
-            elif c.basis == "mass_ratio":
+            elif basis == "mass_ratio":
                 factor = quantity(c.value, "kg/kg", ("mass_ratio", step, c))
             else:
                 factor = quantity(c.equiv, "", ("equiv", step, c))
-            intermediate = route.is_intermediate(c.material)
-            src = route.maker.get(c.material) if intermediate else None
-            charges.append(CoreCharge(c.material, str(c.basis), factor, form(c.material), intermediate,
-                                      carried_from=src if src is not None and not route.step(src).isolated else None,
-                                      leaves=c.leaves, workup=c.role == "workup"))
+            src = maker.get(c.material)  # None for a bought material
+            key = c.material
+            f = forms.get(key)
+            if f is None:
+                f = form(key)
+            charges.append(CoreCharge(key, str(basis), factor, f, src is not None,
+                                      src if src is not None and not route.step(src).isolated else None,
+                                      c.leaves, c.role == "workup"))
         eq = step.equation
         nu_lim = eq.coefficient(step.limiting)
         gases = []

@@ -23,6 +23,7 @@ from dataclasses import field
 from types import MappingProxyType
 from typing import TYPE_CHECKING, Any, Mapping
 
+from routeplan.chemistry.formula import CACHE_SIZE
 from routeplan.frozen import frozen
 
 
@@ -203,7 +204,7 @@ def is_water(material: "Material") -> bool:
     return _is_water_formula(material.formula)
 
 
-@functools.lru_cache(maxsize=4096)
+@functools.lru_cache(maxsize=CACHE_SIZE)
 def _is_water_formula(formula: str) -> bool:
     """True when ``formula`` reads as H2O (worked out once per formula)."""
     try:

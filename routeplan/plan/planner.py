@@ -133,7 +133,8 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     from routeplan.plan.campaign import size_steps
     from routeplan.plan.charges import step_plans
     from routeplan.plan.metrics import compute_metrics
-    from routeplan.plan.safety import assess_safety
+    from routeplan.plan.safety import batch_safety, nominal_volumes_L
+    from routeplan.plan.safety import safety_warnings as safety_warnings_of
     from routeplan.plan.model import Plan
     from routeplan.plan.purchase import with_packs
     from routeplan.plan.totals import overall_yield, raw_material_totals
@@ -172,8 +173,10 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     guards.check_amounts(route, walked)
     no_range = guards.steps_without_range(route, yields)
     sized, batch_warnings = size_steps(route, walked)
-    steps = step_plans(route, walked, sized)
-    steps, safety_warnings = assess_safety(route, steps)
+    nominal_L = nominal_volumes_L(route)
+    steps = step_plans(route, walked, sized,
+                       safety=lambda sid, runs, batch, lines: batch_safety(route, sid, runs, batch, lines, nominal_L))
+    safety_warnings = safety_warnings_of(route, steps)
     draft = Draft(route=route, target_material=route.target.material,
                   target_kg=amount_kg * (1 + route.target.overage), target_n_mol=walked.n_target_mol,
                   steps=steps, raw_materials=with_packs(route, raw_material_totals(route, steps), raw_on_hand),

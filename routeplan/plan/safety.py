@@ -40,7 +40,9 @@ from routeplan.units import unit
 from routeplan.vocab import Severity
 
 if TYPE_CHECKING:  # pragma: no cover
-    from routeplan.plan.model import StepPlan
+    from typing import Sequence
+
+    from routeplan.plan.model import BatchPlan, ChargePlan, StepPlan
     from routeplan.route.model import Route, Step
 
 __all__ = [
@@ -63,7 +65,9 @@ __all__ = [
     "criticality_class",
     "severity",
     "step_safety",
-    "assess_safety",
+    "nominal_volumes_L",
+    "batch_safety",
+    "safety_warnings",
 ]
 
 #: Molar gas constant [J/(mol K)]: exact in the 2019 SI (N_A * k, both fixed; CODATA 2018).
@@ -341,6 +345,11 @@ def _conditions(step: "Step") -> tuple[float, float]:
     return float(T_K), float(p_Pa)
 
 
+def nominal_volumes_L(route: "Route") -> dict[str, float]:
+    """Vessel key -> nominal volume [L], converted once for all steps."""
+    return {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
+
+
 def step_safety(route: "Route", sp: "StepPlan", nominal_L: "dict[str, float] | None" = None) -> StepSafety:
     """Heat and gas of one batch of step ``sp`` (its batches sized).
 
@@ -350,17 +359,24 @@ def step_safety(route: "Route", sp: "StepPlan", nominal_L: "dict[str, float] | N
     sp : StepPlan
         With ``batch`` set.
     nominal_L : dict, optional
-        Vessel key -> nominal volume [L], converted once for all steps.
+        Vessel key -> nominal volume [L] (:func:`nominal_volumes_L`), converted once for all steps.
 
     Returns
     -------
     StepSafety
     """
-    step = route.step(sp.id)
+    return batch_safety(route, sp.id, sp.runs, sp.batch, sp.charges, nominal_L)
+
+
+def batch_safety(route: "Route", step_id: str, runs: bool, b: "BatchPlan | None",
+                 charges: "Sequence[ChargePlan]", nominal_L: "dict[str, float] | None" = None) -> StepSafety:
+    """Heat and gas of one batch of step ``step_id`` from its parts, before its StepPlan is
+    built (the planner builds each StepPlan once, with its safety): whether it ``runs``,
+    its batch ``b`` and its ``charges``; see :func:`step_safety`."""
+    step = route.step(step_id)
     dosing = step.dosing
     dosing_min = None if dosing is None else float(dosing.time.m_as(unit("min")))
-    b = sp.batch
-    if not sp.runs or b is None or b.batches == 0:
+    if not runs or b is None or b.batches == 0:
         return StepSafety(dosed=None if dosing is None else dosing.material, dosing_time_min=dosing_min, runs=False)
     n_lim_mol = b.per_batch(b.limiting_n_mol)
     nu_lim = step.equation.coefficient(step.limiting)
@@ -376,7 +392,7 @@ def step_safety(route: "Route", sp: "StepPlan", nominal_L: "dict[str, float] | N
                                   vent=_vent(route.materials[key].hazards)))
     taken = []
     for key, _nu in _gases(route, step, "reactants"):
-        n_mol = sum(c.n_mol_batch for c in sp.charges if c.material == key and c.n_mol_batch is not None)
+        n_mol = sum(c.n_mol_batch for c in charges if c.material == key and c.n_mol_batch is not None)
         taken.append(GasTakenUp(material=key, mol_per_batch=n_mol, normal_volume_L_per_batch=normal_volume_L(n_mol),
                                 vent=_vent(route.materials[key].hazards)))
 
@@ -442,23 +458,12 @@ def _warnings(route: "Route", sp: "StepPlan", s: StepSafety) -> list[Problem]:
     return out
 
 
-def assess_safety(route: "Route", steps: "tuple[StepPlan, ...]"):
-    """Give every step its heat and gas of one batch; return the new steps and the warnings.
-
-    Returns
-    -------
-    tuple
-        (tuple of StepPlan with ``safety`` set, list of Problem): criticality class 3 or
-        above, severity high, gas evolved 10 or more times the vessel's free volume per
-        batch, and gas evolved in a step with no dosing.
-    """
-    from dataclasses import replace
-
-    out, warnings = [], []
-    nominal_L = {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
+def safety_warnings(route: "Route", steps: "tuple[StepPlan, ...]") -> list[Problem]:
+    """The heat and gas warnings of every step that runs, in step order: criticality class
+    3 or above, severity high, gas evolved 10 or more times the vessel's free volume per
+    batch, and gas evolved in a step with no dosing."""
+    warnings: list[Problem] = []
     for sp in steps:
-        s = step_safety(route, sp, nominal_L)
-        if s.runs:
-            warnings.extend(_warnings(route, sp, s))
-        out.append(replace(sp, safety=s))
-    return tuple(out), warnings
+        if sp.safety is not None and sp.safety.runs:
+            warnings.extend(_warnings(route, sp, sp.safety))
+    return warnings

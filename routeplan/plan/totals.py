@@ -27,14 +27,13 @@ def raw_material_totals(route: "Route", steps: "tuple[StepPlan, ...]") -> "tuple
         for c in sp.charges:
             if c.intermediate:
                 continue
-            a = acc.setdefault(c.material, [0.0, None, None, []])
+            a = acc.setdefault(c.material, [0.0, None, None, {}])  # steps as an ordered set
             a[0] += c.m_kg
             if c.V_L is not None:
                 a[1] = c.V_L if a[1] is None else a[1] + c.V_L
             if c.n_mol is not None:
                 a[2] = c.n_mol if a[2] is None else a[2] + c.n_mol
-            if sp.id not in a[3]:
-                a[3].append(sp.id)
+            a[3][sp.id] = None
     out = []
     for key, (m, V, n, used) in acc.items():
         mat = route.materials[key]

@@ -37,6 +37,7 @@ import functools
 from dataclasses import field
 from typing import TYPE_CHECKING, Mapping
 
+from routeplan.chemistry.formula import CACHE_SIZE
 from routeplan.errors import Problem
 from routeplan.frozen import frozen
 from routeplan.route.model import STREAMS
@@ -98,7 +99,7 @@ def stream_of(material: "Material") -> str | None:
     return _formula_stream(material.formula)
 
 
-@functools.lru_cache(maxsize=4096)
+@functools.lru_cache(maxsize=CACHE_SIZE)
 def _formula_stream(formula: str) -> str | None:
     """``"halogenated"``, ``"organic"`` or None by the elements of ``formula`` (worked out once per formula)."""
     from routeplan.chemistry.formula import element_counts

@@ -30,6 +30,7 @@ from routeplan.route import checks_safety
 from routeplan.route.checks_plausibility import MOLAR_MASS_TOLERANCE
 from routeplan.route.schema import CHARGE_BASES, MaterialModel, StepModel, TargetModel, VesselModel
 from routeplan.route.yamlpos import Positions
+from routeplan.units import unit
 from routeplan.vocab import Basis, Role, Severity
 
 __all__ = ["Parts", "Facts", "check_parts", "suggest", "MOLAR_MASS_TOLERANCE"]
@@ -160,7 +161,7 @@ class _Checker:
             computed, source = None, None
             if m.formula is not None:
                 try:
-                    computed, source = molar_mass(m.formula).to("g/mol"), "formula"
+                    computed, source = molar_mass(m.formula).to(unit("g/mol")), "formula"
                     self.facts.formulas[key] = m.formula
                 except FormulaError as exc:
                     self.add(Severity.ERROR, here + ("formula",), exc.message, exc.hint)
@@ -174,11 +175,11 @@ class _Checker:
             too_light = m.molar_mass is not None and self.found(
                 plausible.molar_mass_findings(here + ("molar_mass",), m.molar_mass))
             if computed is not None and m.molar_mass is not None and not too_light:
-                self.compare(here + ("molar_mass",), m.molar_mass.to("g/mol"), "given", computed, source)
+                self.compare(here + ("molar_mass",), m.molar_mass.to(unit("g/mol")), "given", computed, source)
             if computed is not None:
                 self.facts.molar_masses[key] = computed
             elif m.molar_mass is not None:
-                self.facts.molar_masses[key] = m.molar_mass.to("g/mol")
+                self.facts.molar_masses[key] = m.molar_mass.to(unit("g/mol"))
             if m.density is not None:
                 self.found(plausible.density_findings(here + ("density",), m.density))
             if m.solution is not None:
@@ -231,7 +232,7 @@ class _Checker:
             return None
         formula, shift = smiles_formula(mol)
         try:
-            mass = molar_mass(formula).to("g/mol") + Q(shift, "g/mol")
+            mass = molar_mass(formula).to(unit("g/mol")) + Q(shift, "g/mol")
         except FormulaError as exc:  # pragma: no cover - RDKit writes formulas we read
             self.add(Severity.ERROR, ("materials", key, "smiles"), exc.message, exc.hint)
             return None
@@ -250,7 +251,7 @@ class _Checker:
             self.add(Severity.ERROR, here + ("assay",), "assay does not apply to a solution",
                      "give the strength as solution.molarity or solution.mass_fraction and remove assay")
         if m.density is not None:
-            a, b = m.density.to("g/mL").magnitude, s.density.to("g/mL").magnitude
+            a, b = m.density.to(unit("g/mL")).magnitude, s.density.to(unit("g/mL")).magnitude
             if abs(a - b) > _DENSITY_TOLERANCE * b:
                 self.add(Severity.ERROR, here + ("density",),
                          f"density {a:g} g/mL differs from solution.density {b:g} g/mL",
@@ -436,7 +437,7 @@ class _Checker:
                 return None
             mass = volume * density
         n = _moles_in(mat, self.facts.molar_masses[c.material], mass, volume)
-        return None if n is None else float(n.to("mol").magnitude)
+        return None if n is None else float(n.to(unit("mol")).magnitude)
 
     # -- the route as a whole
     def molar_masses(self) -> None:
@@ -651,11 +652,11 @@ def _mass_per_mol(m: MaterialModel | None, molar_mass):
         return None
     one = Q(1.0, "mol")
     if m.solution is None:
-        return (one * molar_mass / (m.assay if m.assay is not None else 1.0)).to("kg")
+        return (one * molar_mass / (m.assay if m.assay is not None else 1.0)).to(unit("kg"))
     if m.solution.mass_fraction:
-        return (one * molar_mass / m.solution.mass_fraction).to("kg")
+        return (one * molar_mass / m.solution.mass_fraction).to(unit("kg"))
     if m.solution.molarity is not None:
-        return (one / m.solution.molarity * m.solution.density).to("kg")
+        return (one / m.solution.molarity * m.solution.density).to(unit("kg"))
     return None
 
 

@@ -26,6 +26,7 @@ import re
 from typing import Any, Mapping
 
 from routeplan.route.findings import Finding
+from routeplan.units import unit
 from routeplan.vocab import Severity
 
 __all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "MOLAR_MASS_TOLERANCE", "CHARGE_RANGES",
@@ -66,7 +67,9 @@ MASS_BALANCE_TOLERANCE = 5e-3
 #: - another material by ``mass_ratio`` (a filter aid, carbon, a salt) above 10 kg/kg;
 #: - ``equiv`` above 10 on any line but a solvent (a reagent that is also the solvent is
 #:   charged in large excess);
-#: - ``volumes`` above 50 L/kg: a step that dilute does not fit a plant vessel;
+#: - ``volumes`` of a reaction solvent above 30 L/kg: reactions are usually run at 3 to
+#:   20 volumes, so 40 is most often 4 typed with a zero too many; any other line (a wash,
+#:   a work-up) above 50 L/kg: a step that dilute does not fit a plant vessel;
 #: - ``mol_percent`` above 100 is more than one equivalent: an error, not a warning.
 CHARGE_RANGES = {
     ("mass_ratio", "catalyst"): (0.5, "a catalyst by mass is usually 0.01 to 0.2 kg per kg of limiting reagent "
@@ -75,6 +78,8 @@ CHARGE_RANGES = {
     ("mass_ratio", None): (10.0, "a charge by mass ratio is usually up to 10 kg per kg of limiting reagent"),
     ("equiv", "solvent"): (None, ""),
     ("equiv", None): (10.0, "a material is usually charged at up to 10 equiv"),
+    ("volumes", "solvent"): (30.0, "a reaction solvent is usually 3 to 20 volumes (L per kg of limiting "
+                                   "reagent); check for a zero too many"),
     ("volumes", None): (50.0, "a step usually runs at up to 50 volumes (L per kg of limiting reagent)"),
     ("mol_percent", None): (100.0, "a catalyst is usually 0.01 to 20 mol %; 100 mol % is one equivalent"),
 }
@@ -128,7 +133,7 @@ def density_findings(path: tuple, density) -> list[Finding]:
     []
     """
     low, high = DENSITY_RANGE
-    rho = float(density.m_as("g/mL"))
+    rho = float(density.m_as(unit("g/mL")))
     if low <= rho <= high:
         return []
     shown = _written(density)
@@ -175,7 +180,7 @@ def molar_mass_findings(path: tuple, molar_mass) -> list[Finding]:
     from routeplan.chemistry.elements import atomic_weight
 
     h = atomic_weight("H")
-    m = float(molar_mass.m_as("g/mol"))
+    m = float(molar_mass.m_as(unit("g/mol")))
     if m >= h * (1 - MOLAR_MASS_TOLERANCE):
         return []
     shown = _written(molar_mass)
@@ -214,7 +219,7 @@ def solution_findings(key: str, solution, molar_mass) -> list[Finding]:
     density = solution.density
     if density is None or density_findings((), density):
         return []
-    rho = float(density.m_as("g/mL"))              # = kg of solution per litre
+    rho = float(density.m_as(unit("g/mL")))              # = kg of solution per litre
     out = []
     if solution.mass_fraction is not None and solution.mass_fraction >= 1 - _EQUAL:
         out.append(Finding(Severity.ERROR, here + ("mass_fraction",),
@@ -222,8 +227,8 @@ def solution_findings(key: str, solution, molar_mass) -> list[Finding]:
                            f"describe the neat material with 'density: {_g(rho)} g/mL' and no solution, "
                            f"or give the real mass fraction"))
     if solution.molarity is not None and molar_mass is not None:
-        c = float(solution.molarity.m_as("mol/L"))
-        m = float(molar_mass.m_as("g/mol"))
+        c = float(solution.molarity.m_as(unit("mol/L")))
+        m = float(molar_mass.m_as(unit("g/mol")))
         solute = c * m / 1000                       # kg of solute per litre
         if solute >= rho * (1 - _EQUAL):
             limit = rho * 1000 / m                  # mol/L at which the solute would be all the mass
@@ -275,7 +280,7 @@ def mass_balance_finding(path: tuple, step_id: str | None, equation,
     'step S1 does not balance by mass: the products weigh 350 g/mol more than the reactants (600 vs 250 g/mol)'
     """
     def side(terms) -> float:
-        return math.fsum(t.coefficient * float(molar_masses[t.key].m_as("g/mol")) for t in terms)
+        return math.fsum(t.coefficient * float(molar_masses[t.key].m_as(unit("g/mol"))) for t in terms)
 
     reactants, products = side(equation.reactants), side(equation.products)
     diff = products - reactants
@@ -305,19 +310,19 @@ def vessel_volume_findings(target_amount, equipment: Mapping[str, Any]) -> list[
         One warning at each vessel's ``volume`` under :data:`SMALL_VESSEL_L` when the
         target is above :data:`LARGE_TARGET_KG`, suggesting the same number in litres.
     """
-    if target_amount is None or not float(target_amount.m_as("kg")) > LARGE_TARGET_KG:
+    if target_amount is None or not float(target_amount.m_as(unit("kg"))) > LARGE_TARGET_KG:
         return []
     out = []
     for key, vessel in equipment.items():
         volume = getattr(vessel, "volume", None)
         if volume is None:
             continue
-        V_L = float(volume.m_as("L"))
+        V_L = float(volume.m_as(unit("L")))
         if 0 < V_L < SMALL_VESSEL_L:
             out.append(Finding(
                 Severity.WARNING, ("equipment", key, "volume"),
                 f"vessel {key} holds {_written(volume)} ({_g(V_L)} L), under {SMALL_VESSEL_L:g} L, for a target of "
-                f"{_g(float(target_amount.m_as('kg')))} kg: it would need a great many batches",
+                f"{_g(float(target_amount.m_as(unit('kg'))))} kg: it would need a great many batches",
                 f"probably meant {volume.magnitude:g} L"))
     return out
 

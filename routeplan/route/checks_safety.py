@@ -22,6 +22,7 @@ from __future__ import annotations
 from typing import Any, Iterable
 
 from routeplan.route.findings import Finding
+from routeplan.units import unit
 from routeplan.vocab import Severity
 
 __all__ = ["DEFAULT_TEMPERATURE_C", "DEFAULT_PRESSURE_BAR", "gas_findings", "step_safety_findings"]
@@ -54,7 +55,7 @@ def gas_findings(materials: dict[str, Any]) -> list[Finding]:
 
 
 def _kelvin(q) -> float | None:
-    return None if q is None else float(q.to("K").magnitude)
+    return None if q is None else float(q.to(unit("K")).magnitude)
 
 
 def _celsius(k: float) -> str:

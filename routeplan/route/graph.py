@@ -24,6 +24,7 @@ __all__ = [
     "step_graph",
     "find_step_cycle",
     "execution_order",
+    "route_step_graph",
     "longest_linear_sequence",
     "steps_leading_to",
 ]
@@ -111,7 +112,19 @@ def execution_order(route: "Route") -> list[str]:
 
     Ties are broken by the order of the steps in the file, so the order is stable.
     """
-    return _file_order_sort(step_graph(route.steps), route.steps)
+    return _file_order_sort(route_step_graph(route), route.steps)
+
+
+def route_step_graph(route: "Route") -> "nx.DiGraph":
+    """:func:`step_graph` of ``route.steps``, built once per route (a Route is frozen) and
+    shared by the execution order and the longest linear sequence; read it, never change it."""
+    cache = getattr(route, "__dict__", None)
+    g = None if cache is None else cache.get("_step_graph")
+    if g is None:
+        g = step_graph(route.steps)
+        if cache is not None:
+            cache["_step_graph"] = g
+    return g
 
 
 def _file_order_sort(g: "nx.DiGraph", steps) -> list[str]:
@@ -144,7 +157,7 @@ def steps_leading_to(route: "Route", step_id: str) -> set[str]:
     """Ids of ``step_id`` and every step upstream of it."""
     import networkx as nx
 
-    g = step_graph(route.steps)
+    g = route_step_graph(route)
     return set(nx.ancestors(g, step_id)) | {step_id}
 
 
@@ -189,7 +202,7 @@ def longest_linear_sequence(route: "Route") -> list[str]:
     """
     import networkx as nx
 
-    g = step_graph(route.steps)
+    g = route_step_graph(route)
     final = next(s.id for s in route.steps if s.product == route.target.material)
     keep = set(nx.ancestors(g, final)) | {final}
     expected = {s.id: s.yield_.expected for s in route.steps}

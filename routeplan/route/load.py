@@ -32,6 +32,7 @@ from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepM
                                     WastePricesModel, describe_value,
                                     keys_of, validation_problems)
 from routeplan.route.yamlpos import Positions, read_yaml
+from routeplan.units import unit
 from routeplan.vocab import GIVEN_BASES, Basis, Role, Severity
 
 __all__ = ["load_route", "load_route_text", "MAX_BYTES"]
@@ -250,12 +251,12 @@ def _salvage(doc: dict) -> Parts:
 
 def _build(model: RouteFile, facts: Facts, pos: Positions, source: Source, warnings: tuple) -> Route:
     materials = {key: _material(key, m, facts, pos) for key, m in model.materials.items()}
-    equipment = {key: Vessel(key=key, volume=v.volume.to("L"), max_fill=v.max_fill,
+    equipment = {key: Vessel(key=key, volume=v.volume.to(unit("L")), max_fill=v.max_fill,
                              location=pos.at(("equipment", key), key=True), rate=v.rate)
                  for key, v in (model.equipment or {}).items()}
     steps = tuple(_step(i, s, facts, pos) for i, s in enumerate(model.steps))
     t = model.target
-    target = Target(material=t.material, amount=t.amount.to("kg"), overage=t.overage, location=pos.at(("target",)))
+    target = Target(material=t.material, amount=t.amount.to(unit("kg")), overage=t.overage, location=pos.at(("target",)))
     tolerance = model.charge_tolerance if model.charge_tolerance is not None else DEFAULT_CHARGE_TOLERANCE
     wp = model.waste_prices
     waste_prices = None if wp is None else WastePrices(wp.aqueous, wp.organic, wp.halogenated)
@@ -266,11 +267,11 @@ def _build(model: RouteFile, facts: Facts, pos: Positions, source: Source, warni
 
 def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Material:
     solution = None
-    density = m.density.to("g/mL") if m.density is not None else None
+    density = m.density.to(unit("g/mL")) if m.density is not None else None
     if m.solution is not None:
         s = m.solution
-        solution = Solution(density=s.density.to("g/mL"),
-                            molarity=s.molarity.to("mol/L") if s.molarity is not None else None,
+        solution = Solution(density=s.density.to(unit("g/mL")),
+                            molarity=s.molarity.to(unit("mol/L")) if s.molarity is not None else None,
                             mass_fraction=s.mass_fraction)
         density = solution.density
     return Material(
@@ -286,7 +287,7 @@ def _pack_unit(q):
     """A pack size in kg (a mass) or L (a volume), or None."""
     if q is None:
         return None
-    return q.to("kg") if q.check("[mass]") else q.to("L")
+    return q.to(unit("kg")) if q.check("[mass]") else q.to(unit("L"))
 
 
 def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
@@ -316,15 +317,15 @@ def _step(i: int, s: StepModel, facts: Facts, pos: Positions) -> Step:
         id=s.id, name=s.name if s.name is not None else s.id, equation=eq, equation_text=s.equation,
         limiting=limiting, product=facts.product[i], yield_=Yield(y.expected, y.low, y.high),
         charges=tuple(lines), isolated=s.isolated, vessel=s.vessel,
-        demonstrated_batch=s.demonstrated_batch.to("kg") if s.demonstrated_batch is not None else None,
+        demonstrated_batch=s.demonstrated_batch.to(unit("kg")) if s.demonstrated_batch is not None else None,
         notes=s.notes, location=pos.at(("steps", i)),
-        cycle_time=s.cycle_time.to("h") if s.cycle_time is not None else None,
+        cycle_time=s.cycle_time.to(unit("h")) if s.cycle_time is not None else None,
         controls=tuple(Control(point=k.point, check=k.check, limit=k.limit) for k in (s.controls or ())),
         **_safety_parts(i, s, pos))
 
 
 def _kelvin(q):
-    return None if q is None else q.to("K")
+    return None if q is None else q.to(unit("K"))
 
 
 def _safety_parts(i: int, s: StepModel, pos: Positions) -> dict:
@@ -334,15 +335,15 @@ def _safety_parts(i: int, s: StepModel, pos: Positions) -> dict:
     if s.conditions is not None:
         c = s.conditions
         out["conditions"] = Conditions(temperature=_kelvin(c.temperature),
-                                       pressure=None if c.pressure is None else c.pressure.to("bar"),
+                                       pressure=None if c.pressure is None else c.pressure.to(unit("bar")),
                                        location=pos.at(here + ("conditions",)))
     if s.dosing is not None:
-        out["dosing"] = Dosing(material=s.dosing.material, time=s.dosing.time.to("h"),
+        out["dosing"] = Dosing(material=s.dosing.material, time=s.dosing.time.to(unit("h")),
                                location=pos.at(here + ("dosing",)))
     if s.thermal is not None:
         t = s.thermal
         out["thermal"] = Thermal(
-            reaction_enthalpy=t.reaction_enthalpy.to("kJ/mol"), heat_capacity=t.heat_capacity.to("kJ/(kg*K)"),
+            reaction_enthalpy=t.reaction_enthalpy.to(unit("kJ/mol")), heat_capacity=t.heat_capacity.to(unit("kJ/(kg*K)")),
             process_temperature=_kelvin(t.process_temperature),
             max_technical_temperature=_kelvin(t.max_technical_temperature),
             decomposition_temperature_24h=_kelvin(t.decomposition_temperature_24h),

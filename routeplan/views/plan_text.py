@@ -71,6 +71,19 @@ def _step_grid(sp: "StepPlan", plan: "Plan", u: DisplayUnits) -> Grid:
     return Grid(tuple(cols), tuple(out))
 
 
+def _legend(plan: "Plan") -> str:
+    """What the columns and marks of the step tables mean: only the marks the plan uses."""
+    charges = [c for sp in plan.steps for c in sp.charges]
+    parts = ["n: amount of the compound, m: mass and V: volume as charged"]
+    if any(c.intermediate for c in charges):
+        parts.append("(S1) after a material: made in step S1")
+    if any(c.carried_from is not None for c in charges):
+        parts.append("in solution: V is the reaction mixture carried in")
+    if any(c.leaves for c in charges):
+        parts.append("(separated): run off right after it is charged, not carried on")
+    return "; ".join(parts)
+
+
 def batch_notes(sp: "StepPlan", u: DisplayUnits, route: "Route") -> list[str]:
     """What the step's volume carries in or leaves out, as notes for the reader.
 
@@ -248,9 +261,7 @@ def plan_blocks(plan: "Plan", units: DisplayUnits | None = None, *, width: int =
     u = units or plan_units(plan)
     out: list[Block] = [
         Para(header_text(plan, u), style="heading"),
-        Para("n: amount of the compound, m: mass and V: volume as charged; (S1) after a material: made in step "
-             "S1; in solution: V is the reaction mixture carried in; (separated): run off right after it is "
-             "charged, not carried on", style="dim"),
+        Para(_legend(plan), style="dim"),
         Para(f"units of the whole plan: {u.legend()}", style="dim"),
         blank(),
     ]

@@ -22,8 +22,14 @@ CASES = [
       "for 5 wt % write 'mass_ratio: 0.05'"]),
     ("equiv above 10", ("{material: Ac2O, equiv: 1.1}", "{material: Ac2O, equiv: 11}"),
      "steps[0].charges[2].equiv", "equiv: 11", "11", ["Ac2O is charged at equiv: 11", "more than 10", "up to 10 equiv"]),
-    ("volumes above 50", ("{material: water, volumes: 3}", "{material: water, volumes: 60}"),
-     "steps[0].charges[1].volumes", "volumes: 60", "60", ["water is charged at volumes: 60", "up to 50 volumes"]),
+    ("work-up volumes above 50", ("{material: water, volumes: 2, role: workup}", "{material: water, volumes: 60, "
+                                                                                   "role: workup}"),
+     "steps[0].charges[3].volumes", "volumes: 60", "60",
+     ["water is charged at volumes: 60", "more than 50) for a workup", "up to 50 volumes"]),
+    # a reaction solvent at 40 volumes is most often 4 typed with a zero too many
+    ("solvent volumes above 30", ("{material: water, volumes: 3}", "{material: water, volumes: 40}"),
+     "steps[0].charges[1].volumes", "volumes: 40", "40",
+     ["water is charged at volumes: 40", "more than 30) for a solvent", "3 to 20 volumes", "a zero too many"]),
     ("step yield below 10 %", ("    yield: 88 %", "    yield: 0.9 %"),
      "steps[1].yield", "yield: 0.9 %", "0.9 %",
      ["step S2: a yield of 0.9 % is below the usual range (less than 10 %)", "was the fraction 0.9 (90 %) meant?"]),
@@ -61,7 +67,7 @@ def test_mol_percent_above_100_is_an_error(tmp_path, good_text):
 
 @pytest.mark.parametrize("basis, role, limit", [
     ("mass_ratio", "catalyst", 0.5), ("mass_ratio", "workup", 10.0), ("equiv", "reagent", 10.0),
-    ("volumes", "solvent", 50.0), ("mol_percent", "catalyst", 100.0)])
+    ("volumes", "solvent", 30.0), ("volumes", "workup", 50.0), ("mol_percent", "catalyst", 100.0)])
 def test_the_limit_itself_is_usual_and_just_above_is_not(basis, role, limit):
     assert plausible.charge_findings(("x",), "m", basis, limit, role) == []
     assert len(plausible.charge_findings(("x",), "m", basis, limit * 1.001, role)) == 1

@@ -142,3 +142,14 @@ def test_a_gas_is_not_named_for_its_missing_density(tmp_path):
     gases = [(c.material, c.V_L) for sp in plan.steps for c in sp.charges
              if plan.route.materials[c.material].phase == "gas"]
     assert gases == [("H2", None)]  # charged, with no volume: it would be named if it were a liquid
+
+
+def test_the_legend_explains_only_the_marks_the_plan_uses(routes):
+    from conftest import route_text
+    from routeplan.route.load import load_route_text
+
+    linear = plan_blocks(plan_route(routes["linear"]))[1].text
+    assert "(S1) after a material" in linear and "in solution" in linear  # S3 is telescoped
+    assert "(separated)" not in linear  # no wash leaves in the demo
+    washed = plan_route(load_route_text(route_text("telescoped-wash.yaml"), "w.yaml"))
+    assert "(separated): run off right after it is charged" in plan_blocks(washed)[1].text
