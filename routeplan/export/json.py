@@ -195,6 +195,7 @@ def uncertainty_to_dict(u) -> dict[str, Any]:
     """The ``uncertainty`` block of the route format's "Yield uncertainty", plus
     ``contributions``, ``contribution_method``, ``ranged_steps`` and ``notes``."""
     from routeplan.plan.uncertainty import CONTRIBUTION_METHOD
+    from routeplan.views.uncertainty_text import uncertainty_notes
 
     return {
         "draws": u.draws,
@@ -210,7 +211,7 @@ def uncertainty_to_dict(u) -> dict[str, Any]:
         "contributions": [{"step": sid, "share": share} for sid, share in u.contributions],
         "contribution_method": CONTRIBUTION_METHOD,
         "ranged_steps": list(u.ranged_steps),
-        "notes": list(u.notes),
+        "notes": uncertainty_notes(u),
     }
 
 

@@ -186,8 +186,9 @@ class Uncertainty:
         Draws in each bin [-].
     ranged_steps : tuple of str
         Ids of the steps whose yield is drawn; empty when the route carries no uncertainty.
-    notes : tuple of str
-        What the reader must know about these figures.
+    stock_in_full : bool
+        True when intermediates are taken from stock: they arrive in full in every draw
+        (an approximation the views state beside the figures).
     """
 
     draws: int
@@ -207,7 +208,7 @@ class Uncertainty:
     histogram_edges_kg: tuple[float, ...]
     histogram_counts: tuple[int, ...]
     ranged_steps: tuple[str, ...]
-    notes: tuple[str, ...] = ()
+    stock_in_full: bool = False
 
     @property
     def carries_uncertainty(self) -> bool:
@@ -463,10 +464,6 @@ def yield_uncertainty(plan: "Plan", *, confidence: float, draws: int = DEFAULT_D
         counts, edges = np.histogram(delivered * required, bins=HISTOGRAM_BINS, range=(lo * required, hi * required))
     else:
         counts, edges = np.array([draws]), np.array([lo * required, hi * required])
-    notes = []
-    if any(st.stock_mol > 0 for st in fw.steps):
-        notes.append("intermediates taken from stock arrive in full in every draw; the target and purchases for "
-                     "the confidence scale the plan in proportion, the stock taken included")
     return Uncertainty(
         draws=draws, seed=seed, distribution=DISTRIBUTION, required_kg=required,
         p10_kg=float(p10) * required, p50_kg=float(p50) * required, p90_kg=float(p90) * required,
@@ -480,5 +477,5 @@ def yield_uncertainty(plan: "Plan", *, confidence: float, draws: int = DEFAULT_D
         histogram_edges_kg=tuple(float(e) for e in edges),
         histogram_counts=tuple(int(c) for c in counts),
         ranged_steps=tuple(fw.steps[i].id for i in ranged),
-        notes=tuple(notes),
+        stock_in_full=any(st.stock_mol > 0 for st in fw.steps),
     )

@@ -144,7 +144,10 @@ def unranked_text(why: "Unranked | None", cmp: "Comparison") -> str | None:
     if r == R.NO_VALUE:
         text = "a route has no value"
     elif r == R.CURRENCIES:
-        text = f"the routes give prices in different currencies ({', '.join(str(c) for c in why.currencies)})"
+        named = ", ".join(str(c) for c in why.currencies if c is not None)
+        none = None in why.currencies
+        text = ("the routes give prices in different currencies ("
+                + "; ".join(x for x in (named, "a route gives none" if none else "") if x) + ")")
     elif r == R.NO_COST:
         text = "a route has no cost (no currency or no prices)"
     elif r == R.NOTHING_PRICED:

@@ -131,9 +131,17 @@ def uncertainty_lines(plan: "Plan", units: "DisplayUnits | None" = None) -> list
     if u.contributions:
         lines.append("  share of the spread by step (squared correlation of its yield with the delivered mass): "
                      + ", ".join(f"{sid} {_pct(share)}" for sid, share in u.contributions))
-    for note in u.notes:
+    for note in uncertainty_notes(u):
         lines.append(f"  note: {note}")
     return lines
+
+
+def uncertainty_notes(u) -> list[str]:
+    """What the reader must know about the figures of the draws ``u`` (an Uncertainty)."""
+    if u.stock_in_full:
+        return ["intermediates taken from stock arrive in full in every draw; the target and purchases for "
+                "the confidence scale the plan in proportion, the stock taken included"]
+    return []
 
 
 def _fact(key, item, value, unit="", kind="text", note=""):
@@ -167,6 +175,6 @@ def uncertainty_fact_rows(plan: "Plan") -> list[dict[str, Any]]:
     for sid, share in u.contributions:
         rows.append(_fact(f"share:{sid}", f"share of the spread, {sid}", share, "-", "fraction",
                           "squared correlation of the step's yield with the delivered mass"))
-    for i, note in enumerate(u.notes):
+    for i, note in enumerate(uncertainty_notes(u)):
         rows.append(_fact(f"note:{i}", "note", note))
     return rows

@@ -171,3 +171,24 @@ def test_compare_ranks_routes_with_ranges(tmp_path):
     t_narrow, t_wide = rows["confidence_target"]["values"]
     assert p_narrow > p_wide and t_narrow < t_wide
     assert rows["confidence_target"]["best"] == [json.loads(result.stdout)["routes"][0]["label"]]
+
+
+def test_stock_arriving_in_full_is_said_beside_the_draws():
+    # intermediates from stock are taken to arrive in full in every draw: an approximation
+    # the JSON and the terminal state whenever the plan takes any
+    from conftest import route_text
+    from routeplan.export.json import plan_to_dict
+    from routeplan.plan.planner import plan_route
+    from routeplan.route.load import load_route_text
+    from routeplan.units import Q
+    from routeplan.views.uncertainty_text import uncertainty_lines
+
+    route = load_route_text(route_text("shelf.yaml").replace("yield: 80 %", "yield: {expected: 80 %, low: 70 %, "
+                                                                          "high: 85 %}"), "shelf.yaml")
+    with_stock = plan_route(route, stock={"I": Q(4.5, "kg")}, confidence=0.9, draws=500)
+    without = plan_route(route, confidence=0.9, draws=500)
+    assert with_stock.uncertainty.stock_in_full and not without.uncertainty.stock_in_full
+    notes = plan_to_dict(with_stock)["uncertainty"]["notes"]
+    assert len(notes) == 1 and "arrive in full in every draw" in notes[0]
+    assert plan_to_dict(without)["uncertainty"]["notes"] == []
+    assert any("arrive in full" in line for line in uncertainty_lines(with_stock))

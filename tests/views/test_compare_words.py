@@ -78,6 +78,8 @@ def test_the_data_beside_values_is_worded_by_row(drawn):
     (Unranked(UnrankedReason.NO_VALUE), "a route has no value"),
     (Unranked(UnrankedReason.CURRENCIES, currencies=("EUR", "USD")),
      "the routes give prices in different currencies (EUR, USD)"),
+    (Unranked(UnrankedReason.CURRENCIES, currencies=(None, "EUR")),
+     "the routes give prices in different currencies (EUR; a route gives none)"),
     (Unranked(UnrankedReason.NO_COST), "a route has no cost (no currency or no prices)"),
     (Unranked(UnrankedReason.NOTHING_PRICED),
      "a route has nothing priced here (no currency, prices, rates or waste prices)"),
