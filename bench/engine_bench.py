@@ -191,7 +191,7 @@ def main() -> int:
     print(f"3 plan 200 steps / plain-float walk   {t_plan * 1e3:.2f} / {t_float * 1e3:.3f} ms = {t_plan / t_float:5.1f}x   40x")
 
     t_compose = t_load = float("inf")
-    for _ in range(7):
+    for _ in range(11):
         t_compose = min(t_compose, best(lambda: compose_text(text), repeat=1))
         t_load = min(t_load, best(lambda: load_route_text(text, "b200.yaml"), repeat=1, before=cold_caches))
     print(f"4 load 200 steps / ruamel compose     {t_load * 1e3:.1f} / {t_compose * 1e3:.1f} ms = {t_load / t_compose:5.2f}x   3x")
