@@ -34,6 +34,9 @@ __all__ = [
     "YieldCase",
     "RecordYields",
     "BetterIs",
+    "ValueKind",
+    "ValueQualifier",
+    "UnrankedReason",
 ]
 
 
@@ -97,3 +100,35 @@ class BetterIs(enum.StrEnum):
 
     LOWER = "lower"
     HIGHER = "higher"
+
+
+class ValueKind(enum.StrEnum):
+    """What a value of a comparison row is, and so how it is shown."""
+
+    COUNT = "count"  #: a whole number [-]
+    FRACTION = "fraction"  #: a share, shown as a percentage [-]
+    RATIO = "ratio"  #: a ratio or a duration [kg/kg, h]
+    MONEY = "money"  #: money per kg of target [currency/kg]
+    MASS = "mass"  #: a mass [kg]
+
+
+class ValueQualifier(enum.StrEnum):
+    """What bounds one value of a comparison row (a value that is not the whole story)."""
+
+    PRICED_MATERIALS_ONLY = "priced-materials-only"  #: a raw-material cost over the priced materials only
+    PRICED_ITEMS_ONLY = "priced-items-only"  #: a cost of goods over the priced items only
+    NO_UNCERTAINTY = "no-uncertainty"  #: no step gives a yield range: nothing drawn
+
+
+class UnrankedReason(enum.StrEnum):
+    """Why a comparison row that could be ranked is not."""
+
+    NO_VALUE = "no-value"  #: a route has no value
+    CURRENCIES = "currencies"  #: the routes price in different currencies
+    NO_COST = "no-cost"  #: a route has no raw-material cost (no currency or no prices)
+    NOTHING_PRICED = "nothing-priced"  #: a route has nothing priced in this part of the cost of goods
+    UNPRICED_MATERIALS = "unpriced-materials"  #: some raw materials have no price
+    UNPRICED_ITEMS = "unpriced-items"  #: some items of the cost of goods have no price
+    NO_SCHEDULE = "no-schedule"  #: a route has no schedule (a step without a cycle time)
+    NO_UNCERTAINTY = "no-uncertainty"  #: a route carries no yield uncertainty
+    YIELDS_WITHOUT_CASE = "yields-without-case"  #: planned at low/high yields, a route has steps without one

@@ -8,7 +8,9 @@ count; imports under ``if TYPE_CHECKING:`` do not, they never run) and fails on
 - plan/, route/, chemistry/, inputs/, units or errors importing views/ or export/ (or a
   module outside them that imports a writer's library),
 - plan/, route/ or chemistry/ importing a writer's library (rich, xlsxwriter, openpyxl,
-  jinja2).
+  jinja2),
+- plan/compare.py holding words: a text field on its rows or comparison, or a string of
+  words outside a docstring, an annotation and the functions that word its errors.
 """
 
 from __future__ import annotations
@@ -168,3 +170,76 @@ def test_the_checks_catch_what_they_should():
     assert _circles(fake) == [["routeplan.a", "routeplan.b"]]
     assert _up_arrows(fake, {"routeplan.c": {"rich"}}) == {("routeplan.plan.x", "routeplan.views.y"),
                                                            ("routeplan.plan.x", "routeplan.c")}
+
+
+#: The functions of plan/compare.py that word an error (CompareError) or a route's column
+#: label; every other string of words there is a docstring, an annotation or in a ``raise``.
+COMPARE_ERROR_WORDS = {"who", "_describe_target", "check_same_target", "_same_formula", "_labels"}
+
+
+def _worded_strings(tree: ast.Module, allowed_functions: set[str]):
+    """(line, text) of every string or f-string with a space between words, outside
+    docstrings, annotations, ``raise`` statements and the functions ``allowed_functions``."""
+    skip = set()
+    for node in ast.walk(tree):
+        body = getattr(node, "body", None)
+        if isinstance(node, (ast.Module, ast.FunctionDef, ast.ClassDef)) and body and isinstance(body[0], ast.Expr) \
+                and isinstance(body[0].value, ast.Constant):
+            skip.add(id(body[0].value))
+        if isinstance(node, ast.FunctionDef) and node.name in allowed_functions or isinstance(node, ast.Raise):
+            skip.update(id(n) for n in ast.walk(node))
+        for ann in ([node.annotation] if isinstance(node, (ast.arg, ast.AnnAssign)) and node.annotation else []) \
+                + ([node.returns] if isinstance(node, ast.FunctionDef) and node.returns else []):
+            skip.update(id(n) for n in ast.walk(ann))
+    for node in ast.walk(tree):
+        if isinstance(node, ast.JoinedStr):
+            skip.update(id(v) for v in node.values)  # judged as a whole, below
+    for node in ast.walk(tree):
+        if id(node) in skip:
+            continue
+        if isinstance(node, ast.JoinedStr):
+            text = "".join(v.value for v in node.values if isinstance(v, ast.Constant))
+        elif isinstance(node, ast.Constant) and isinstance(node.value, str):
+            text = node.value.strip()
+        else:
+            continue
+        if " " in text:  # a unit such as f"{currency}/kg" is no sentence
+            yield node.lineno, ast.unparse(node)
+
+
+def _class_fields(tree: ast.Module) -> dict[str, dict[str, str]]:
+    return {c.name: {a.target.id: ast.unparse(a.annotation) for a in c.body
+                     if isinstance(a, ast.AnnAssign) and isinstance(a.target, ast.Name)}
+            for c in tree.body if isinstance(c, ast.ClassDef)}
+
+
+def test_plan_compare_holds_no_words():
+    # plan/ holds data only (issue 10, Deliver 3): a comparison's headings, the texts beside
+    # its values, why a row is not ranked and its notes are worded in views/compare_words.py
+    tree = ast.parse((PKG / "plan" / "compare.py").read_text(encoding="utf-8"))
+    fields = _class_fields(tree)
+    for cls in ("CompareRow", "Comparison", "Unranked"):
+        assert not {"heading", "short", "note", "labels_text", "text"} & set(fields[cls]), cls
+    assert "str" not in fields["Comparison"]["notes"]  # records, not sentences
+    assert "str" not in fields["CompareRow"]["unranked"]
+    assert list(_worded_strings(tree, COMPARE_ERROR_WORDS)) == []
+
+
+def test_the_words_check_finds_words():
+    tree = ast.parse('''
+class Row:
+    """A row."""
+    heading: str
+    note: "str | None"
+
+
+def f(x: "int | None") -> "str | None":
+    """Doc string."""
+    raise ValueError(f"bad {x}")
+
+
+def g(n):
+    return f"not ranked: {n}", "a route has no value", "kg", f"{n}/kg"
+''')
+    assert _class_fields(tree)["Row"] == {"heading": "str", "note": "'str | None'"}
+    assert [t for _, t in _worded_strings(tree, set())] == ["f'not ranked: {n}'", "'a route has no value'"]

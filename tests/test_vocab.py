@@ -24,7 +24,8 @@ from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route
 from routeplan.route.model import BASES, ROLES
 from routeplan.route.schema import CHARGE_BASES
-from routeplan.vocab import GIVEN_BASES, MOLAR_BASES, Basis, BetterIs, Role, Severity, YieldCase
+from routeplan.vocab import (GIVEN_BASES, MOLAR_BASES, Basis, BetterIs, Role, Severity, UnrankedReason,
+                             ValueKind, ValueQualifier, YieldCase)
 
 DEMO = Path(__file__).resolve().parents[1] / "demo_routes" / "hx17-linear.yaml"
 WORDS = {
@@ -33,8 +34,13 @@ WORDS = {
     Severity: ["error", "warning"],
     YieldCase: ["expected", "low", "high"],
     BetterIs: ["lower", "higher"],
+    ValueKind: ["count", "fraction", "ratio", "money", "mass"],
+    ValueQualifier: ["priced-materials-only", "priced-items-only", "no-uncertainty"],
+    UnrankedReason: ["no-value", "currencies", "no-cost", "nothing-priced", "unpriced-materials", "unpriced-items",
+                     "no-schedule", "no-uncertainty", "yields-without-case"],
 }
-ENUM_REPR = ("Basis.", "Role.", "Severity.", "YieldCase.", "BetterIs.")
+ENUM_REPR = ("Basis.", "Role.", "Severity.", "YieldCase.", "BetterIs.", "ValueKind.", "ValueQualifier.",
+             "UnrankedReason.")
 
 
 @pytest.fixture(scope="module")

@@ -1,7 +1,8 @@
 """A route comparison written out: terminal table, JSON and workbook.
 
 Reads a :class:`~routeplan.plan.compare.Comparison` and never recomputes it; the
-terminal's text comes from :mod:`routeplan.views.compare_text`.  xlsxwriter is imported
+words of its rows and notes come from :mod:`routeplan.views.compare_words`, the
+terminal's text from :mod:`routeplan.views.compare_text`.  xlsxwriter is imported
 inside the function that needs it.  Every output carries the safety caution.
 """
 
@@ -11,10 +12,12 @@ import json
 from typing import TYPE_CHECKING, Any
 
 from routeplan.views.compare_text import BEST_MARK, tradeoff
+from routeplan.views.compare_words import note_texts, shown_rows
 from routeplan.views.tables import display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
-    from routeplan.plan.compare import Comparison, CompareRow
+    from routeplan.plan.compare import Comparison
+    from routeplan.views.compare_words import ShownRow
     from routeplan.views.display_units import DisplayUnits
 
 __all__ = [
@@ -65,14 +68,14 @@ def format_value(value: Any, kind: str) -> str:
     return f"{value:.0f}" if "e" in text else text
 
 
-def _shown_unit(row: "CompareRow") -> str:
+def _shown_unit(row: "ShownRow") -> str:
     return _SHOWN_UNIT.get(row.kind, row.unit)
 
 
 # ------------------------------------------------------------------------ JSON
 
 
-def _row_dict(cmp: "Comparison", row: "CompareRow") -> dict[str, Any]:
+def _row_dict(cmp: "Comparison", row: "ShownRow") -> dict[str, Any]:
     out: dict[str, Any] = {
         "key": row.key,
         "heading": row.heading,
@@ -106,9 +109,9 @@ def comparison_to_dict(cmp: "Comparison") -> dict[str, Any]:
         "target": {"material": cmp.target_material, "amount_kg": cmp.amount},
         "routes": routes,
         "currency": cmp.currency,
-        "rows": [_row_dict(cmp, r) for r in cmp.rows],
+        "rows": [_row_dict(cmp, r) for r in shown_rows(cmp)],
         "tradeoff": tradeoff(cmp),
-        "notes": list(cmp.notes),
+        "notes": list(note_texts(cmp)),
         "metrics": [p.metrics.to_dict() for p in cmp.plans],
         "caution": CAUTION,
         "generator": f"routeplan {__version__}",
@@ -212,7 +215,8 @@ def _fill_sheet(wb, cmp: "Comparison", caution: str) -> None:
     for c, h in enumerate(headings):
         ws.write_string(r, c, h, head)
     fit(r, {c: (h, c) for c, h in enumerate(headings)}, is_bold=True)
-    for row in cmp.rows:
+    shown = shown_rows(cmp)
+    for row in shown:
         r += 1
         ws.write_string(r, 0, row.heading, wrap)
         ws.write_string(r, 1, _shown_unit(row), wrap)
@@ -232,8 +236,8 @@ def _fill_sheet(wb, cmp: "Comparison", caution: str) -> None:
                     ws.write_string(r, 3 + i, text, dim)
             fit(r, {0: (f"{row.heading}: which", 0), **{3 + i: (t, 3 + i) for i, t in enumerate(row.labels) if t}})
     r += 2
-    texts = [("trade-off", tradeoff(cmp), bold)] + [(row.short, row.note, wrap) for row in cmp.rows if row.note] \
-        + [("note", note, wrap) for note in cmp.notes]
+    texts = [("trade-off", tradeoff(cmp), bold)] + [(row.short, row.note, wrap) for row in shown if row.note] \
+        + [("note", note, wrap) for note in note_texts(cmp)]
     for label, text, fmt in texts:
         ws.write_string(r, 0, label, fmt)
         ws.merge_range(r, 1, r, last, "", wrap)

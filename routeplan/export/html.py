@@ -104,14 +104,15 @@ def plan_html(plan: "Plan", *, fragment: bool = False) -> str:
 def compare_html(cmp: "Comparison") -> str:
     """The comparison of routes as one HTML page: schemes side by side, the measures, the trade-off."""
     from routeplan.export.compare_out import format_value
-    from routeplan.views.report import plan_report
     from routeplan.views.compare_text import tradeoff
+    from routeplan.views.compare_words import note_texts, shown_rows
+    from routeplan.views.report import plan_report
 
     routes = []
     for label, plan in zip(cmp.labels, cmp.plans):
         routes.append({"label": label, "report": plan_report(plan), "scheme": _scheme(plan)})
     rows = []
-    for row in cmp.rows:
+    for row in shown_rows(cmp):
         unit = "%" if row.kind == "fraction" else row.unit
         cells = []
         for i, v in enumerate(row.values):
@@ -122,7 +123,7 @@ def compare_html(cmp: "Comparison") -> str:
         rows.append({"key": row.key, "heading": row.heading, "unit": "" if unit in ("-", "") else unit,
                      "better": row.better, "cells": cells, "note": row.note})
     return _env().get_template("compare.html.j2").render(
-        cmp=cmp, tradeoff=tradeoff(cmp), routes=routes, rows=rows, **_common())
+        cmp=cmp, tradeoff=tradeoff(cmp), notes=note_texts(cmp), routes=routes, rows=rows, **_common())
 
 
 def write_plan_html(plan: "Plan", path) -> None:

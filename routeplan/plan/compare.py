@@ -5,7 +5,11 @@ each plan and its :class:`~routeplan.plan.metrics.Metrics` (it computes no metri
 own) and lays them out as rows, one value per route.  In each ranked row the best value
 is marked: lower is better, except for the overall yield.  A row is ranked only when
 every route has a value that can be set beside the others (a cost needs one currency
-and a price for every raw material); otherwise a note says why it is not.
+and a price for every raw material); otherwise an :class:`Unranked` record says why not.
+
+This module holds data only: keys, values, closed-vocabulary reasons and the data they
+name.  Headings, the texts beside values, the not-ranked sentences and the notes are
+worded in :mod:`routeplan.views.compare_words`.
 """
 
 from __future__ import annotations
@@ -13,11 +17,11 @@ from __future__ import annotations
 import math
 from dataclasses import field
 from pathlib import Path
-from typing import TYPE_CHECKING, Any, Sequence
+from typing import TYPE_CHECKING, Any, Sequence, Union
 
 from routeplan.errors import CompareError, RouteplanError
 from routeplan.frozen import frozen
-from routeplan.vocab import BetterIs, YieldCase
+from routeplan.vocab import BetterIs, UnrankedReason, ValueKind, ValueQualifier, YieldCase
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -31,7 +35,15 @@ __all__ = [
     "MOLAR_MASS_TOLERANCE",
     "CompareError",
     "CompareRow",
+    "Unranked",
     "Comparison",
+    "CompareNote",
+    "TargetFromFirst",
+    "OveragesDiffer",
+    "YieldsPlanned",
+    "StepsWithoutYield",
+    "YieldsDrawn",
+    "who",
     "check_same_target",
     "comparison_amount",
     "plan_for_comparison",
@@ -53,47 +65,74 @@ _TIE = 1e-9
 
 
 @frozen
+class Unranked:
+    """Why a row that could be ranked is not: a reason and the data it names.
+
+    Attributes
+    ----------
+    reason : UnrankedReason
+    routes : tuple of int
+        The routes concerned, as indices in route order: those with unpriced items
+        (``UNPRICED_MATERIALS``, ``UNPRICED_ITEMS``), those that carry no uncertainty
+        (``NO_UNCERTAINTY``), those with steps without a yield of the case planned
+        (``YIELDS_WITHOUT_CASE``); empty for the other reasons.
+    items : tuple of tuple of str
+        With ``UNPRICED_*``: the keys without a price of each route in ``routes``.
+    currencies : tuple of str or None
+        With ``CURRENCIES``: the currencies the routes give (None for a route without
+        one), each once, in the order of their words.
+    yields : YieldCase or None
+        With ``YIELDS_WITHOUT_CASE``: the yield case planned.
+    """
+
+    reason: UnrankedReason
+    routes: tuple[int, ...] = ()
+    items: tuple[tuple[str, ...], ...] = ()
+    currencies: tuple[str | None, ...] = ()
+    yields: YieldCase | None = None
+
+
+@frozen
 class CompareRow:
     """One measure, one value per route.
 
     Attributes
     ----------
     key : str
-        Machine key (JSON), e.g. ``"pmi"``.
-    heading : str
-        Heading shown to people.
-    short : str
-        Short name used in the trade-off sentence.
+        Machine key (JSON), e.g. ``"pmi"``; the views word the row by it.
     unit : str
-        Unit of ``values``: ``"-"`` for counts and fractions, ``"kg/kg"``,
-        ``"EUR/kg"``, ``"kg"``.
-    kind : str
-        How to show a value: ``"count"``, ``"fraction"`` (shown as %), ``"ratio"``,
-        ``"money"`` or ``"mass"``.
+        Unit of ``values``: ``"-"`` for counts and fractions, ``"kg/kg"``, ``"h"``,
+        ``"EUR/kg"`` (``"currency/kg"`` when the routes give none or differ), ``"kg"``.
+    kind : ValueKind
+        What a value is: a count, a fraction, a ratio, money or a mass.
     better : BetterIs or None
         :data:`LOWER`, :data:`HIGHER`, or None for a row that is not ranked by nature.
     values : tuple
         One value per route, in route order; None where there is none.
-    labels : tuple of str or None
-        Text that goes with each value (the material of the largest raw material, the
-        steps of the longest linear sequence); empty when there is none.
+    which : tuple
+        The data that goes with each value, in route order: the material key of the
+        largest raw material, the step ids of the longest linear sequence (a tuple), the
+        pace-setting step of the campaign; None for a route without; empty when the
+        row has none.
+    qualifiers : tuple of ValueQualifier or None
+        What bounds each value (a cost over priced items only, no uncertainty carried),
+        in route order; empty when no value is bounded.
     best : tuple of int
         Indices of the routes holding the best value; empty when the row is not ranked
         or every route has the same value.
-    note : str or None
-        Why the row is not ranked, or what to bear in mind.
+    unranked : Unranked or None
+        Why the row is not ranked, when it could be.
     """
 
     key: str
-    heading: str
-    short: str
     unit: str
-    kind: str
+    kind: ValueKind
     better: BetterIs | None
     values: tuple[Any, ...]
-    labels: tuple[str | None, ...] = ()
+    which: tuple[Any, ...] = ()
+    qualifiers: tuple[ValueQualifier | None, ...] = ()
     best: tuple[int, ...] = ()
-    note: str | None = None
+    unranked: Unranked | None = None
 
     @property
     def ranked(self) -> bool:
@@ -103,8 +142,87 @@ class CompareRow:
     @property
     def all_equal(self) -> bool:
         """True when the row is rankable and every route has the same value."""
-        return (self.better is not None and not self.best and self.note is None
+        return (self.better is not None and not self.best and self.unranked is None
                 and all(v is not None for v in self.values))
+
+
+# ----------------------------------------------------------------- the notes
+
+
+@frozen
+class TargetFromFirst:
+    """Every route is planned for the first route's target amount; others asked otherwise.
+
+    Attributes
+    ----------
+    amount_kg : float
+        The first route's target amount, asked of every route [kg].
+    asked : tuple of (int, float)
+        Each other route whose amount differs: its index and the amount it asks [kg].
+    """
+
+    amount_kg: float
+    asked: tuple[tuple[int, float], ...]
+
+
+@frozen
+class OveragesDiffer:
+    """The routes plan different overages, so the masses planned differ.
+
+    Attributes
+    ----------
+    overages : tuple of float
+        Each route's overage, in route order [-].
+    """
+
+    overages: tuple[float, ...]
+
+
+@frozen
+class YieldsPlanned:
+    """Every route is planned at its steps' low (or high) yields."""
+
+    case: YieldCase
+
+
+@frozen
+class StepsWithoutYield:
+    """Steps of one route without a yield of the case planned, planned at the expected one.
+
+    Attributes
+    ----------
+    route : int
+        Index of the route.
+    steps : tuple of str
+        Ids of the steps.
+    case : YieldCase
+        The yield case planned.
+    """
+
+    route: int
+    steps: tuple[str, ...]
+    case: YieldCase
+
+
+@frozen
+class YieldsDrawn:
+    """Every route's step yields are drawn (``--confidence``).
+
+    Attributes
+    ----------
+    draws, seed : int
+        Number of draws [-] and the seed of the generator.
+    distribution : str
+        The distribution's name (``"beta-PERT"``).
+    """
+
+    draws: int
+    distribution: str
+    seed: int
+
+
+#: What the reader of a comparison must know, as data (worded in the views).
+CompareNote = Union[TargetFromFirst, OveragesDiffer, YieldsPlanned, StepsWithoutYield, YieldsDrawn]
 
 
 @frozen(eq=False)
@@ -127,8 +245,9 @@ class Comparison:
         The routes' common currency; None when they give none or differ.
     rows : tuple of CompareRow
         The measures, in display order.
-    notes : tuple of str
-        What the reader must know (the target mass chosen, differing overages).
+    notes : tuple of CompareNote
+        What the reader must know (the target mass chosen, differing overages, the yields
+        planned or drawn), as records.
     plans : tuple of Plan
         The plans compared, in route order.
     """
@@ -140,7 +259,7 @@ class Comparison:
     amount: float
     currency: str | None
     rows: tuple[CompareRow, ...]
-    notes: tuple[str, ...] = ()
+    notes: tuple[CompareNote, ...] = ()
     plans: tuple["Plan", ...] = field(default=(), repr=False)
 
     def row(self, key: str) -> CompareRow:
@@ -158,7 +277,8 @@ def _file(route: "Route") -> str | None:
     return route.source.path if route.source is not None else None
 
 
-def _who(route: "Route") -> str:
+def who(route: "Route") -> str:
+    """How an error or a note names a route: ``'file' (name)``, or ``'name'`` without a file."""
     f = _file(route)
     return f"'{f}' ({route.name})" if f else f"'{route.name}'"
 
@@ -209,8 +329,8 @@ def check_same_target(routes: Sequence["Route"]) -> None:
                 what = "the target molar masses differ"
         if what is not None:
             raise CompareError(
-                f"routes to different targets cannot be compared: {_who(first)} makes "
-                f"{_describe_target(first)} but {_who(other)} makes {_describe_target(other)}; {what}",
+                f"routes to different targets cannot be compared: {who(first)} makes "
+                f"{_describe_target(first)} but {who(other)} makes {_describe_target(other)}; {what}",
                 hint="compare routes to one target, with the same material key and formula in every file")
 
 
@@ -226,29 +346,25 @@ def comparison_amount(routes: Sequence["Route"], target: "pint.Quantity | str | 
     -------
     amount : pint.Quantity
         Mass to deliver [kg], before each route's overage.
-    notes : list of str
-        Sentences for the reader.
+    notes : list of CompareNote
+        :class:`TargetFromFirst` when the other routes ask for other amounts,
+        :class:`OveragesDiffer` when the routes' overages differ.
     """
     from routeplan.units import parse_quantity
 
-    notes: list[str] = []
+    notes: list[CompareNote] = []
     if target is None:
         amount = routes[0].target.amount.to("kg")
-        differ = [r for r in routes[1:] if not math.isclose(r.target.amount.m_as("kg"), amount.m_as("kg"),
-                                                            rel_tol=1e-12)]
+        differ = [(i, r.target.amount.m_as("kg")) for i, r in enumerate(routes) if i
+                  and not math.isclose(r.target.amount.m_as("kg"), amount.m_as("kg"), rel_tol=1e-12)]
         if differ:
-            asked = ", ".join(f"{_who(r)} {r.target.amount.m_as('kg'):.6g} kg" for r in differ)
-            notes.append(f"every route is planned for {amount.m_as('kg'):.6g} kg, the target amount of the "
-                         f"first route {_who(routes[0])}; the others ask for other amounts ({asked})")
+            notes.append(TargetFromFirst(amount.m_as("kg"), tuple(differ)))
     elif isinstance(target, str):
         amount = parse_quantity(target, "mass").to("kg")
     else:
         amount = target.to("kg")
-    overages = {r.target.overage for r in routes}
-    if len(overages) > 1:
-        each = ", ".join(f"{_who(r)} {r.target.overage:.1%}" for r in routes)
-        notes.append(f"the routes plan different overages ({each}), so the masses planned differ; "
-                     "ratios per kg of target are still comparable")
+    if len({r.target.overage for r in routes}) > 1:
+        notes.append(OveragesDiffer(tuple(r.target.overage for r in routes)))
     return amount, notes
 
 
@@ -266,8 +382,10 @@ def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str 
     -------
     plans : tuple of Plan
         One plan per route, in order.
-    notes : list of str
-        From :func:`comparison_amount`.
+    notes : list of CompareNote
+        From :func:`comparison_amount`; then, at low or high yields, :class:`YieldsPlanned`
+        and a :class:`StepsWithoutYield` per route with steps that lack that yield; with
+        ``confidence``, :class:`YieldsDrawn`.
     """
     from routeplan.plan.planner import plan_route
 
@@ -276,16 +394,13 @@ def plan_for_comparison(routes: Sequence["Route"], target: "pint.Quantity | str 
     plans = tuple(plan_route(r, amount, yields=yields, confidence=confidence, draws=draws, seed=seed)
                   for r in routes)
     if yields != YieldCase.EXPECTED:
-        notes = [*notes, f"every route is planned at its steps' {yields} yields"]
-        for r, p in zip(routes, plans):
-            if p.yields_without_range:
-                notes.append(f"{_who(r)}: step{'s' if len(p.yields_without_range) > 1 else ''} "
-                             f"{', '.join(p.yields_without_range)} ha{'ve' if len(p.yields_without_range) > 1 else 's'}"
-                             f" no {yields} yield and {'are' if len(p.yields_without_range) > 1 else 'is'} planned at "
-                             f"the expected yield; the rows that depend on yields are not ranked")
+        case = YieldCase(yields)
+        notes = [*notes, YieldsPlanned(case)]
+        notes += [StepsWithoutYield(i, tuple(p.yields_without_range), case)
+                  for i, p in enumerate(plans) if p.yields_without_range]
     if confidence is not None:
         u = plans[0].uncertainty
-        notes = [*notes, f"every route's step yields are drawn {u.draws} times ({u.distribution}, seed {u.seed})"]
+        notes = [*notes, YieldsDrawn(u.draws, u.distribution, u.seed)]
     return plans, notes
 
 
@@ -312,14 +427,6 @@ def best_indices(values: Sequence[float | None], better: BetterIs | str | None) 
     return () if len(best) == len(values) else best
 
 
-def _join(words: Sequence[str]) -> str:
-    """``a, b and c``: words joined for a note."""
-    words = list(words)
-    if len(words) <= 1:
-        return "".join(words)
-    return ", ".join(words[:-1]) + " and " + words[-1]
-
-
 # ----------------------------------------------------------------------- rows
 
 
@@ -337,12 +444,17 @@ def _labels(plans: Sequence["Plan"]) -> tuple[str, ...]:
     return tuple(out)
 
 
-def _row(key, heading, short, unit, kind, better, values, labels=(), note=None) -> CompareRow:
+def _row(key, unit, kind, better, values, which=(), qualifiers=(), unranked=None) -> CompareRow:
     values = tuple(values)
-    best = best_indices(values, better) if note is None else ()
-    if better is not None and note is None and any(v is None for v in values):
-        note = "not ranked: a route has no value"
-    return CompareRow(key, heading, short, unit, kind, better, values, tuple(labels), best, note)
+    best = best_indices(values, better) if unranked is None else ()
+    if better is not None and unranked is None and any(v is None for v in values):
+        unranked = Unranked(UnrankedReason.NO_VALUE)
+    return CompareRow(key, unit, ValueKind(kind), better, values, tuple(which), tuple(qualifiers), best, unranked)
+
+
+def _currencies(currencies) -> tuple[str | None, ...]:
+    """The different currencies of the routes, each once, in the order of their words."""
+    return tuple(sorted(currencies, key=str))
 
 
 def _cost_row(plans: Sequence["Plan"]) -> CompareRow:
@@ -351,23 +463,21 @@ def _cost_row(plans: Sequence["Plan"]) -> CompareRow:
     currency = next(iter(currencies)) if len(currencies) == 1 else None
     unit = f"{currency}/kg" if currency else "currency/kg"
     values = [m.cost_per_kg for m in ms]
-    note = None
+    unranked = None
     if len(currencies) > 1:
-        note = "not ranked: the routes give prices in different currencies (" + \
-               ", ".join(sorted(str(c) for c in currencies)) + ")"
+        unranked = Unranked(UnrankedReason.CURRENCIES, currencies=_currencies(currencies))
     elif any(v is None for v in values):
-        note = "not ranked: a route has no cost (no currency or no prices)"
+        unranked = Unranked(UnrankedReason.NO_COST)
     elif any(m.unpriced for m in ms):
-        gaps = "; ".join(f"{p.route.name}: {', '.join(p.metrics.unpriced)}" for p in plans if p.metrics.unpriced)
-        note = f"not ranked: priced raw materials only, some have no price ({gaps})"
-    labels = ["priced materials only" if m.unpriced and m.cost_per_kg is not None else None for m in ms]
-    if not any(labels):
-        labels = []
-    return _row("cost_per_kg", "raw-material cost per kg of target", "raw-material cost", unit, "money",
-                LOWER, values, labels, note)
+        gaps = [(i, tuple(m.unpriced)) for i, m in enumerate(ms) if m.unpriced]
+        unranked = Unranked(UnrankedReason.UNPRICED_MATERIALS, routes=tuple(i for i, _ in gaps),
+                            items=tuple(g for _, g in gaps))
+    qualifiers = [ValueQualifier.PRICED_MATERIALS_ONLY if m.unpriced and m.cost_per_kg is not None else None
+                  for m in ms]
+    return _row("cost_per_kg", unit, "money", LOWER, values, (), qualifiers if any(qualifiers) else (), unranked)
 
 
-def _cog_row(plans: Sequence["Plan"], key: str, heading: str, short: str, part: str | None) -> CompareRow:
+def _cog_row(plans: Sequence["Plan"], key: str, part: str | None) -> CompareRow:
     """A cost-of-goods row per kg of target: the whole (``part`` None) or one part."""
     cogs = [p.cost_of_goods for p in plans]
     currencies = {None if c is None else c.currency for c in cogs}
@@ -380,35 +490,33 @@ def _cog_row(plans: Sequence["Plan"], key: str, heading: str, short: str, part: 
         parts = c.parts.values() if part is None else [c.parts[part]]
         return tuple(k for p in parts for k in p.unpriced)
 
-    note = None
+    unranked = None
     if len(currencies) > 1:
-        note = "not ranked: the routes give prices in different currencies (" + \
-               ", ".join(sorted(str(c) for c in currencies)) + ")"
+        unranked = Unranked(UnrankedReason.CURRENCIES, currencies=_currencies(currencies))
     elif any(v is None for v in values):
-        note = "not ranked: a route has nothing priced here (no currency, prices, rates or waste prices)"
+        unranked = Unranked(UnrankedReason.NOTHING_PRICED)
     elif any(gaps(c) for c in cogs):
-        listed = "; ".join(f"{p.route.name}: {', '.join(gaps(c))}" for p, c in zip(plans, cogs) if gaps(c))
-        note = f"not ranked: priced items only, some have no price ({listed})"
-    labels = ["priced items only" if gaps(c) and v is not None else None for c, v in zip(cogs, values)]
-    return _row(key, heading, short, f"{currency}/kg" if currency else "currency/kg", "money", LOWER, values,
-                labels if any(labels) else [], note)
+        listed = [(i, gaps(c)) for i, c in enumerate(cogs) if gaps(c)]
+        unranked = Unranked(UnrankedReason.UNPRICED_ITEMS, routes=tuple(i for i, _ in listed),
+                            items=tuple(g for _, g in listed))
+    qualifiers = [ValueQualifier.PRICED_ITEMS_ONLY if gaps(c) and v is not None else None
+                  for c, v in zip(cogs, values)]
+    return _row(key, f"{currency}/kg" if currency else "currency/kg", "money", LOWER, values, (),
+                qualifiers if any(qualifiers) else (), unranked)
 
 
 def _time_waste_rows(plans: Sequence["Plan"]) -> tuple[CompareRow, ...]:
     """Campaign duration, halogenated waste and the cost of goods, whole and by part."""
     hours = [None if p.schedule is None else p.schedule.campaign_h for p in plans]
-    note = ("not ranked: a route has no schedule (a step without cycle_time)"
-            if any(h is None for h in hours) else None)
+    unranked = Unranked(UnrankedReason.NO_SCHEDULE) if any(h is None for h in hours) else None
     halogenated = [None if p.waste is None else p.waste.total.halogenated_kg / p.waste.product_kg for p in plans]
     return (
-        _row("campaign_h", "campaign duration, first batch to last", "campaign duration", "h", "ratio", LOWER,
-             hours, [f"pace: {p.schedule.pace_step}" for p in plans] if note is None else [], note),
-        _row("halogenated_waste_per_kg", "halogenated waste per kg of target", "halogenated waste", "kg/kg",
-             "ratio", LOWER, halogenated),
-        _cog_row(plans, "cost_of_goods_per_kg", "cost of goods per kg of target (materials, plant, waste)",
-                 "cost of goods", None),
-        _cog_row(plans, "plant_cost_per_kg", "plant time per kg of target", "plant time", "plant"),
-        _cog_row(plans, "waste_cost_per_kg", "waste disposal per kg of target", "waste disposal", "waste"),
+        _row("campaign_h", "h", "ratio", LOWER, hours,
+             [p.schedule.pace_step for p in plans] if unranked is None else (), (), unranked),
+        _row("halogenated_waste_per_kg", "kg/kg", "ratio", LOWER, halogenated),
+        _cog_row(plans, "cost_of_goods_per_kg", None),
+        _cog_row(plans, "plant_cost_per_kg", "plant"),
+        _cog_row(plans, "waste_cost_per_kg", "waste"),
     )
 
 
@@ -421,22 +529,14 @@ def _uncertainty_rows(plans: Sequence["Plan"]) -> tuple[CompareRow, ...]:
     us = [p.uncertainty for p in plans]
     if any(u is None for u in us):
         return ()
-    flat = [p.route.name for p, u in zip(plans, us) if not u.carries_uncertainty]
-    note = None
-    if flat:
-        note = (f"not ranked: {_join(flat)} {'carries' if len(flat) == 1 else 'carry'} no uncertainty "
-                "(no step gives a yield range)")
-    labels = [None if u.carries_uncertainty else "no yield ranges: carries no uncertainty" for u in us]
-    if not flat:
-        labels = []
-    level = f"{100 * us[0].confidence:g} %"
+    flat = tuple(i for i, u in enumerate(us) if not u.carries_uncertainty)
+    unranked = Unranked(UnrankedReason.NO_UNCERTAINTY, routes=flat) if flat else None
+    qualifiers = [None if u.carries_uncertainty else ValueQualifier.NO_UNCERTAINTY for u in us] if flat else ()
     return (
-        _row("probability_of_target", "probability of delivering the target (yields drawn)",
-             "probability of delivering", "-", "fraction", HIGHER,
-             [u.probability_of_target if u.carries_uncertainty else None for u in us], labels, note),
-        _row("confidence_target", f"target to plan for {level} confidence, before overage",
-             "confidence target", "kg", "mass", LOWER,
-             [u.target_kg if u.carries_uncertainty else None for u in us], labels, note),
+        _row("probability_of_target", "-", "fraction", HIGHER,
+             [u.probability_of_target if u.carries_uncertainty else None for u in us], (), qualifiers, unranked),
+        _row("confidence_target", "kg", "mass", LOWER,
+             [u.target_kg if u.carries_uncertainty else None for u in us], (), qualifiers, unranked),
     )
 
 
@@ -444,42 +544,36 @@ def _rows(plans: Sequence["Plan"]) -> tuple[CompareRow, ...]:
     ms = [p.metrics for p in plans]
     largest = [m.largest_raw_material for m in ms]
     return (
-        _row("target_mass", "target mass planned, overage included", "target mass", "kg", "mass", None,
-             [p.target_mass.m_as("kg") for p in plans]),
-        _row("steps", "steps", "steps", "-", "count", LOWER, [m.step_count for m in ms]),
-        _row("longest_linear_sequence", "longest linear sequence", "longest linear sequence", "-", "count",
-             LOWER, [len(m.longest_linear_sequence) for m in ms],
-             [" → ".join(m.longest_linear_sequence) for m in ms]),
-        _row("overall_yield", "overall yield along the longest linear sequence", "overall yield", "-",
-             "fraction", HIGHER, [p.overall_yield.yield_ for p in plans]),
-        _row("pmi", "process mass intensity (PMI)", "PMI", "kg/kg", "ratio", LOWER, [m.pmi for m in ms]),
-        _row("e_factor_complete", "complete E-factor (cEF)", "complete E-factor", "kg/kg", "ratio", LOWER,
-             [m.e_factor_complete for m in ms]),
-        _row("e_factor_simple", "simple E-factor (sEF)", "simple E-factor", "kg/kg", "ratio", LOWER,
-             [m.e_factor_simple for m in ms]),
+        _row("target_mass", "kg", "mass", None, [p.target_mass.m_as("kg") for p in plans]),
+        _row("steps", "-", "count", LOWER, [m.step_count for m in ms]),
+        _row("longest_linear_sequence", "-", "count", LOWER, [len(m.longest_linear_sequence) for m in ms],
+             [tuple(m.longest_linear_sequence) for m in ms]),
+        _row("overall_yield", "-", "fraction", HIGHER, [p.overall_yield.yield_ for p in plans]),
+        _row("pmi", "kg/kg", "ratio", LOWER, [m.pmi for m in ms]),
+        _row("e_factor_complete", "kg/kg", "ratio", LOWER, [m.e_factor_complete for m in ms]),
+        _row("e_factor_simple", "kg/kg", "ratio", LOWER, [m.e_factor_simple for m in ms]),
         _cost_row(plans),
-        _row("batches", "batches, all steps", "batches", "-", "count", LOWER,
-             [sum(sp.batches for sp in p.steps) for p in plans]),
-        _row("largest_raw_material", "largest single raw material", "largest single raw material", "kg",
-             "mass", LOWER, [None if x is None else x[1] for x in largest],
+        _row("batches", "-", "count", LOWER, [sum(sp.batches for sp in p.steps) for p in plans]),
+        _row("largest_raw_material", "kg", "mass", LOWER, [None if x is None else x[1] for x in largest],
              [None if x is None else x[0] for x in largest]),
     ) + _time_waste_rows(plans) + _uncertainty_rows(plans)
 
 
-def compare_plans(plans: Sequence["Plan"], notes: Sequence[str] = ()) -> Comparison:
+def compare_plans(plans: Sequence["Plan"], notes: Sequence[CompareNote] = ()) -> Comparison:
     """Lay plans of routes to one target side by side.
 
     Parameters
     ----------
     plans : sequence of Plan
         Two or more plans, each with its metrics, planned for the same target mass.
-    notes : sequence of str
-        Sentences to carry (how the target mass was chosen).
+    notes : sequence of CompareNote
+        Notes to carry (how the target mass was chosen, the yields planned), as
+        :func:`plan_for_comparison` gives them.
 
     Returns
     -------
     Comparison
-        Rows with the best value of each marked, and the trade-off sentence.
+        Rows with the best value of each marked (the views word them and the trade-off).
 
     Raises
     ------
@@ -492,12 +586,12 @@ def compare_plans(plans: Sequence["Plan"], notes: Sequence[str] = ()) -> Compari
 
     plans = tuple(p if p.metrics is not None else _with_metrics(p, compute_metrics(p)) for p in plans)
     labels = _labels(plans)
-    rows = _unranked_without_ranges(plans, labels, _rows(plans))
+    rows = _unranked_without_ranges(plans, _rows(plans))
     currencies = {p.route.currency for p in plans}
     amounts = [p.target_mass.m_as("kg") / (1 + p.route.target.overage) for p in plans]
     if any(not math.isclose(a, amounts[0], rel_tol=1e-9) for a in amounts):
-        each = ", ".join(f"{_who(p.route)} {a:.6g} kg" for p, a in zip(plans, amounts))
-        raise CompareError(f"plans for different target masses cannot be compared ({each})",
+        raise CompareError("plans for different target masses cannot be compared ("
+                           + ", ".join(f"{who(p.route)} {a:.6g} kg" for p, a in zip(plans, amounts)) + ")",
                            hint="plan every route for the same mass, e.g. with plan_for_comparison")
     return Comparison(
         labels=labels,
@@ -516,19 +610,18 @@ def compare_plans(plans: Sequence["Plan"], notes: Sequence[str] = ()) -> Compari
 _YIELD_FREE_ROWS = ("target_mass", "steps", "longest_linear_sequence")
 
 
-def _unranked_without_ranges(plans, labels, rows):
+def _unranked_without_ranges(plans, rows):
     """``rows`` with no best value marked where a yield-dependent row compares a route
     planned at the low (or high) yields with steps that have no such yield: those steps
     were planned at their expected yields, so the route would be ranked as if certain."""
     from dataclasses import replace
 
-    gaps = [(label, p.yield_basis) for label, p in zip(labels, plans)
-            if p.yield_basis != "expected" and p.yields_without_range]
+    gaps = [i for i, p in enumerate(plans) if p.yield_basis != "expected" and p.yields_without_range]
     if not gaps:
         return rows
-    note = (f"not ranked: {', '.join(label for label, _ in gaps)} ha{'s' if len(gaps) == 1 else 've'} steps "
-            f"without a {gaps[0][1]} yield, planned at their expected yields")
-    return tuple(r if r.key in _YIELD_FREE_ROWS or r.better is None else replace(r, best=(), note=note)
+    unranked = Unranked(UnrankedReason.YIELDS_WITHOUT_CASE, routes=tuple(gaps),
+                        yields=YieldCase(plans[gaps[0]].yield_basis))
+    return tuple(r if r.key in _YIELD_FREE_ROWS or r.better is None else replace(r, best=(), unranked=unranked)
                  for r in rows)
 
 

@@ -1,16 +1,18 @@
 """A comparison of routes for people: the trade-off in one sentence, and the terminal's
-table (:func:`comparison_blocks`) in the comparison's one set of units."""
+table (:func:`comparison_blocks`) in the comparison's one set of units.  The rows' words
+come from :mod:`routeplan.views.compare_words`."""
 
 from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any, Sequence
 
-from routeplan.plan.compare import LOWER, CompareRow, _join
+from routeplan.views.compare_words import SHORT, note_texts, shown_rows
 from routeplan.views.numbers import money, pct, share
-from routeplan.views.text_blocks import Col, Grid, Para, blank
+from routeplan.views.text_blocks import Col, Grid, Para, blank, join_words
 
 if TYPE_CHECKING:  # pragma: no cover
-    from routeplan.plan.compare import Comparison
+    from routeplan.plan.compare import CompareRow, Comparison
+    from routeplan.views.compare_words import ShownRow
     from routeplan.views.display_units import DisplayUnits
     from routeplan.views.text_blocks import Block
 
@@ -25,13 +27,14 @@ def tradeoff(cmp: "Comparison") -> str:
     return tradeoff_sentence(cmp.labels, cmp.rows)
 
 
-def tradeoff_sentence(labels: Sequence[str], rows: Sequence[CompareRow]) -> str:
-    """One sentence saying which route wins on which measure.
+def tradeoff_sentence(labels: Sequence[str], rows: "Sequence[CompareRow]") -> str:
+    """One sentence saying which route wins on which measure (each row by its short name).
 
     Examples
     --------
-    >>> rows = [CompareRow("pmi", "PMI", "PMI", "kg/kg", "ratio", LOWER, (20.0, 30.0), best=(0,)),
-    ...         CompareRow("batches", "batches", "batches", "-", "count", LOWER, (9, 6), best=(1,))]
+    >>> from routeplan.plan.compare import LOWER, CompareRow
+    >>> rows = [CompareRow("pmi", "kg/kg", "ratio", LOWER, (20.0, 30.0), best=(0,)),
+    ...         CompareRow("batches", "-", "count", LOWER, (9, 6), best=(1,))]
     >>> tradeoff_sentence(["A", "B"], rows)
     'A wins on PMI; B wins on batches.'
     """
@@ -42,24 +45,24 @@ def tradeoff_sentence(labels: Sequence[str], rows: Sequence[CompareRow]) -> str:
         if r.better is None:
             continue
         if r.best:
-            wins.setdefault(r.best, []).append(r.short)
+            wins.setdefault(r.best, []).append(SHORT[r.key])
         elif r.all_equal:
-            equal.append(r.short)
+            equal.append(SHORT[r.key])
         else:
-            unranked.append(r.short)
+            unranked.append(SHORT[r.key])
     parts = []
     ranked_count = sum(len(v) for v in wins.values())
     for idx in sorted(wins, key=lambda k: (-len(wins[k]), k)):
-        who = _join([labels[i] for i in idx])
+        who = join_words([labels[i] for i in idx])
         verb = "wins" if len(idx) == 1 else "share the best value"
         if len(idx) == 1 and len(wins) == 1 and not equal and not unranked:
-            parts.append(f"{who} wins on every measure ranked ({_join(wins[idx])})")
+            parts.append(f"{who} wins on every measure ranked ({join_words(wins[idx])})")
         else:
-            parts.append(f"{who} {verb} on {_join(wins[idx])}")
+            parts.append(f"{who} {verb} on {join_words(wins[idx])}")
     if equal:
-        parts.append(f"the routes are equal on {_join(equal)}")
+        parts.append(f"the routes are equal on {join_words(equal)}")
     if unranked:
-        parts.append(f"{_join(unranked)} cannot be ranked")
+        parts.append(f"{join_words(unranked)} cannot be ranked")
     if not ranked_count and not parts:
         return "No measure could be ranked."
     text = "; ".join(parts)
@@ -90,7 +93,7 @@ def value_text(value: Any, kind: str, units: "DisplayUnits") -> str:
     return share(value)
 
 
-def _unit(row: CompareRow, units: "DisplayUnits") -> str:
+def _unit(row: "ShownRow", units: "DisplayUnits") -> str:
     if row.kind == "fraction":
         return "%"
     if row.kind == "mass":
@@ -110,8 +113,9 @@ def comparison_blocks(cmp: "Comparison", units: "DisplayUnits") -> "list[Block]"
         One set for every route (masses in its unit of mass).
     """
     cols = (Col("measure", wrap=True), Col("unit")) + tuple(Col(label, "right", wrap=True) for label in cmp.labels)
+    shown = shown_rows(cmp)
     rows, strong = [], set()
-    for r, row in enumerate(cmp.rows):
+    for r, row in enumerate(shown):
         cells = [row.heading, _unit(row, units)]
         for i, v in enumerate(row.values):
             text = value_text(v, row.kind, units) + (f" {BEST_MARK}" if i in row.best else "")
@@ -122,10 +126,10 @@ def comparison_blocks(cmp: "Comparison", units: "DisplayUnits") -> "list[Block]"
             cells.append(text)
         rows.append(tuple(cells))
     title = f"Routes to {cmp.target_material}, each planned for {units.mass_text(cmp.amount)} (before overage)"
-    higher = [r.short for r in cmp.rows if r.better == "higher"]
+    higher = [r.short for r in shown if r.better == "higher"]
     out: list[Block] = [Grid(cols, tuple(rows), title=title, strong=frozenset(strong)),
                         Para(f"{BEST_MARK} best in its row: lower is better, except {' and '.join(higher) or 'none'}.")]
-    out += [Para(f"{row.short}: {row.note}", indent=2) for row in cmp.rows if row.note]
-    out += [Para(f"note: {note}") for note in cmp.notes]
+    out += [Para(f"{row.short}: {row.note}", indent=2) for row in shown if row.note]
+    out += [Para(f"note: {note}") for note in note_texts(cmp)]
     out += [blank(), Para(tradeoff(cmp), label="Trade-off:"), blank()]
     return out

@@ -17,7 +17,7 @@ from typing import TYPE_CHECKING
 from routeplan.views.display_units import DisplayUnits, plan_units
 from routeplan.views.numbers import money, pct, share
 from routeplan.views.tables import charge_label, raw_material_rows, step_charge_rows
-from routeplan.views.text_blocks import Block, Col, Grid, Para, Pre, blank, para_of_line
+from routeplan.views.text_blocks import Block, Col, Grid, Para, Pre, blank, join_words, para_of_line
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
@@ -101,12 +101,8 @@ def batch_notes(sp: "StepPlan", u: DisplayUnits, route: "Route") -> list[str]:
         elif c.V_L is None and route.materials[c.material].phase != "gas" and c.material not in no_density:
             no_density.append(c.material)
     if no_density:
-        notes.append(f"the volume leaves out {_join(no_density)} (no density in the route file)")
+        notes.append(f"the volume leaves out {join_words(no_density)} (no density in the route file)")
     return notes
-
-
-def _join(words: list[str]) -> str:
-    return words[0] if len(words) == 1 else ", ".join(words[:-1]) + " and " + words[-1]
 
 
 def _step_footer(plan: "Plan", sp: "StepPlan", u: DisplayUnits) -> list[Para]:

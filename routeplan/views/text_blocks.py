@@ -10,7 +10,7 @@ from __future__ import annotations
 
 from routeplan.frozen import frozen
 
-__all__ = ["Para", "Col", "Grid", "Pre", "Block", "blank", "para_of_line"]
+__all__ = ["Para", "Col", "Grid", "Pre", "Block", "blank", "para_of_line", "join_words"]
 
 
 @frozen
@@ -103,3 +103,15 @@ def para_of_line(line: str, *, style: str | None = None, hang: int = 4) -> Para:
     """
     text = line.lstrip(" ")
     return Para(text, indent=len(line) - len(text), hang=hang, style=style)
+
+
+def join_words(words) -> str:
+    """Words joined for a sentence: ``a``, ``a and b``, ``a, b and c`` (empty for none).
+
+    >>> join_words(["S1"]), join_words(["S1", "S2", "S3"]), join_words([])
+    ('S1', 'S1, S2 and S3', '')
+    """
+    words = list(words)
+    if len(words) <= 1:
+        return "".join(words)
+    return ", ".join(words[:-1]) + " and " + words[-1]

@@ -7,11 +7,12 @@ import openpyxl
 import pytest
 
 from conftest import run_cli, write_route
-from routeplan.plan.compare import compare_plans, plan_for_comparison
+from routeplan.plan.compare import Unranked, YieldsDrawn, compare_plans, plan_for_comparison
 from routeplan.plan.planner import plan_route
 from routeplan.route.load import load_route
 from routeplan.views.uncertainty_text import (NO_UNCERTAINTY, contribution_rows, histogram_data, sparkline,
                                               uncertainty_fact_rows, uncertainty_lines)
+from routeplan.vocab import UnrankedReason, ValueQualifier
 
 DEMO = Path(__file__).resolve().parents[2] / "demo_routes"
 LINEAR = DEMO / "hx17-linear.yaml"
@@ -152,7 +153,9 @@ def test_compare_rows_probability_and_confidence_target(tmp_path):
     prob, target = cmp.row("probability_of_target"), cmp.row("confidence_target")
     # the flat route has no value (never a probability of 1) and says why
     assert prob.values[0] is None and target.values[0] is None
-    assert "carries no uncertainty" in prob.note and prob.best == ()
+    assert prob.best == () and prob.unranked == Unranked(UnrankedReason.NO_UNCERTAINTY, routes=(0,))
+    assert prob.qualifiers == (ValueQualifier.NO_UNCERTAINTY, None)
+    assert cmp.notes[-1] == YieldsDrawn(2000, "beta-PERT", 1)
     assert prob.values[1] == plans[1].uncertainty.probability_of_target
     assert target.values[1] == plans[1].uncertainty.target_kg
 

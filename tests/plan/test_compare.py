@@ -11,7 +11,6 @@ from pathlib import Path
 import openpyxl
 import pytest
 
-from routeplan.views.compare_text import tradeoff, tradeoff_sentence
 from click.testing import CliRunner
 
 from routeplan import CAUTION
@@ -20,13 +19,19 @@ from routeplan.plan.compare import (
     HIGHER,
     LOWER,
     CompareError,
-    CompareRow,
+    OveragesDiffer,
+    StepsWithoutYield,
+    TargetFromFirst,
+    Unranked,
+    YieldsPlanned,
     best_indices,
     compare_plans,
     compare_routes,
     plan_for_comparison,
 )
 from routeplan.route.load import load_route
+from routeplan.views.compare_text import tradeoff
+from routeplan.vocab import UnrankedReason, ValueQualifier, YieldCase
 
 DEMO = Path(__file__).resolve().parents[2] / "demo_routes"
 LINEAR = str(DEMO / "hx17-linear.yaml")
@@ -153,20 +158,6 @@ def test_best_indices_and_ties():
     assert best_indices([1.0, 2.0], None) == ()
 
 
-def test_tradeoff_sentence_splits_wins():
-    rows = [
-        CompareRow("pmi", "PMI", "PMI", "kg/kg", "ratio", LOWER, (20.0, 30.0), best=(0,)),
-        CompareRow("overall_yield", "yield", "overall yield", "-", "fraction", HIGHER, (0.5, 0.7), best=(1,)),
-        CompareRow("batches", "batches", "batches", "-", "count", LOWER, (6, 9), best=(0,)),
-        CompareRow("steps", "steps", "steps", "-", "count", LOWER, (4, 4)),
-        CompareRow("cost_per_kg", "cost", "raw-material cost", "EUR/kg", "money", LOWER, (1.0, None),
-                   note="not ranked: a route has no value"),
-    ]
-    text = tradeoff_sentence(["A", "B"], rows)
-    assert text == ("A wins on PMI and batches; B wins on overall yield; the routes are equal on steps; "
-                    "raw-material cost cannot be ranked.")
-
-
 def _variant(tmp_path, name, old, new, *, source=LINEAR):
     text = Path(source).read_text(encoding="utf-8")
     assert old in text
@@ -204,7 +195,8 @@ def test_without_target_the_first_amount_is_used(tmp_path):
     cmp = compare_routes([load_route(LINEAR), load_route(other)])
     # 25 kg x 1.02 overage for both, not 30 kg for the second
     assert cmp.row("target_mass").values == pytest.approx((25.5, 25.5))
-    assert any("first route" in n and "30 kg" in n for n in cmp.notes)
+    # the note names the amount used and what the second route (index 1) asked [kg]
+    assert cmp.notes == (TargetFromFirst(25.0, ((1, 30.0),)),)
 
 
 def test_target_option_applies_to_every_route(tmp_path):
@@ -282,8 +274,12 @@ def test_unpriced_cost_is_not_ranked(tmp_path):
                      source=CONVERGENT)
     cmp = compare_routes([load_route(LINEAR), load_route(other)])
     row = cmp.row("cost_per_kg")
-    assert row.best == () and "KI" in row.note
-    assert row.labels[1] == "priced materials only"
+    assert row.best == ()
+    assert row.unranked == Unranked(UnrankedReason.UNPRICED_MATERIALS, routes=(1,), items=(("KI",),))
+    assert row.qualifiers == (None, ValueQualifier.PRICED_MATERIALS_ONLY)
+    cog = cmp.row("cost_of_goods_per_kg")
+    assert cog.unranked == Unranked(UnrankedReason.UNPRICED_ITEMS, routes=(1,), items=(("KI",),))
+    assert cog.qualifiers == (None, ValueQualifier.PRICED_ITEMS_ONLY)
     assert "raw-material cost and cost of goods cannot be ranked" in tradeoff(cmp)
 
 
@@ -305,10 +301,38 @@ def test_help_says_how_the_target_is_chosen():
 def test_compare_at_low_yields(demo):
     plans, _ = demo
     low, notes = plan_for_comparison([p.route for p in plans], yields="low")
-    assert any("low yields" in n for n in notes)
+    # both routes have steps without a low yield: A's S2-S5, B's B2 and B3
+    assert notes == [YieldsPlanned(YieldCase.LOW), StepsWithoutYield(0, ("S2", "S3", "S4", "S5"), YieldCase.LOW),
+                     StepsWithoutYield(1, ("B2", "B3"), YieldCase.LOW)]
+    cmp = compare_plans(low, notes)
+    pmi = cmp.row("pmi")
+    assert pmi.best == () and pmi.unranked == Unranked(UnrankedReason.YIELDS_WITHOUT_CASE, routes=(0, 1),
+                                                       yields=YieldCase.LOW)
+    assert cmp.row("steps").best == (1,)  # a row that does not depend on yields is still ranked
     # route A's S1 gives a range (92 %, low 88 %), the other steps of its sequence none; route
     # B's sequence is B2-B3 (the tie rule reads the expected yields) and neither has a range
     for expected, at_low, factor in zip(plans, low, (0.88 / 0.92, 1.0)):
         assert at_low.overall_yield.longest_linear_sequence == expected.overall_yield.longest_linear_sequence
         assert at_low.overall_yield.yield_ == pytest.approx(expected.overall_yield.yield_ * factor)
         assert at_low.yield_basis == "low"
+
+
+def test_notes_and_reasons_are_data(tmp_path):
+    # the second route asks 30 kg at 5 % overage, prices in USD and has a step without a cycle time
+    other = _variant(tmp_path, "b.yaml", "currency: EUR", "currency: USD", source=CONVERGENT)
+    other = _variant(tmp_path, "b.yaml", "amount: 25 kg\n  overage: 2 %", "amount: 30 kg\n  overage: 5 %",
+                     source=other)
+    other = _variant(tmp_path, "b.yaml", "    vessel: R250\n    cycle_time: 10 h\n", "    vessel: R250\n",
+                     source=other)
+    cmp = compare_routes([load_route(LINEAR), load_route(other)])
+    assert cmp.notes == (TargetFromFirst(25.0, ((1, 30.0),)), OveragesDiffer((0.02, 0.05)))
+    assert cmp.currency is None
+    for key in ("cost_per_kg", "cost_of_goods_per_kg", "plant_cost_per_kg", "waste_cost_per_kg"):
+        row = cmp.row(key)
+        assert row.unit == "currency/kg" and row.best == ()
+        assert row.unranked == Unranked(UnrankedReason.CURRENCIES, currencies=("EUR", "USD")), key
+    campaign = cmp.row("campaign_h")
+    assert campaign.values[1] is None and campaign.which == () and campaign.best == ()
+    assert campaign.unranked == Unranked(UnrankedReason.NO_SCHEDULE)
+    # the rows without a reason are ranked as before; none carries a word
+    assert cmp.row("steps").best == (1,) and cmp.row("steps").unranked is None
