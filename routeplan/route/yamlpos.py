@@ -39,6 +39,7 @@ MAX_NODES = 1_000_000
 
 _CORE = "tag:yaml.org,2002:"
 _SCALAR_TAGS = {f"{_CORE}{t}" for t in ("str", "int", "float", "bool", "null", "timestamp")}
+_STR, _TIMESTAMP = f"{_CORE}str", f"{_CORE}timestamp"
 _IDENT = re.compile(r"^[A-Za-z0-9_][A-Za-z0-9_\-]*$")
 
 
@@ -141,8 +142,10 @@ class _Builder:
                 self.problem(node, path, f"the YAML tag '{_tag(node)}' is not allowed in a route file",
                              "write a plain value without a tag")
                 return None
-            if tag == f"{_CORE}timestamp":
-                return node.value  # a date is only ever free text here
+            if tag == _STR or tag == _TIMESTAMP:
+                # what ruamel's safe constructor gives for a string, without its per-node
+                # bookkeeping (most of a route's scalars); a date is only ever free text here
+                return node.value
             try:
                 return self.constructor.construct_object(node, deep=True)
             except (YAMLError, ValueError, TypeError):
@@ -167,11 +170,12 @@ class _Builder:
                     self.problem(key_node, path, "a key must be a plain word, not a list or a mapping")
                     continue
                 key = str(key_node.value)
-                if str(key_node.tag) == f"{_CORE}merge" or key == "<<" and key_node.style is None:
+                key_tag = str(key_node.tag)
+                if key_tag == f"{_CORE}merge" or key == "<<" and key_node.style is None:
                     self.problem(key_node, path, "merge keys ('<<') are not supported in route files",
                                  "write the keys out in full")
                     continue
-                if str(key_node.tag) not in _SCALAR_TAGS and str(key_node.tag) != f"{_CORE}merge":
+                if key_tag not in _SCALAR_TAGS and key_tag != f"{_CORE}merge":
                     self.problem(key_node, path, f"the YAML tag '{_tag(key_node)}' is not allowed in a route file",
                                  "write the key without a tag")
                     continue
@@ -179,11 +183,13 @@ class _Builder:
                     self.problem(key_node, path + (key,), f"duplicate key '{key}'",
                                  f"it is already given on line {first_line[key]}; keep one of them")
                     continue
-                first_line[key] = _mark(key_node)[0]
-                self.pos.keys.setdefault(path + (key,), _mark(key_node))
+                key_mark = _mark(key_node)
+                first_line[key] = key_mark[0]
+                here = path + (key,)
+                self.pos.keys.setdefault(here, key_mark)
                 if isinstance(value_node, ScalarNode) and value_node.value == "" and not value_node.style:
-                    self.pos.values.setdefault(path + (key,), _mark(key_node))  # 'key:' with nothing after
-                out[key] = self.build(value_node, path + (key,), depth + 1)
+                    self.pos.values.setdefault(here, key_mark)  # 'key:' with nothing after
+                out[key] = self.build(value_node, here, depth + 1)
             return out
         self.problem(node, path, "unexpected YAML node")  # pragma: no cover - no other kinds
         return None
@@ -226,8 +232,10 @@ def _split_number(value_node: Node, next_key: Node, next_value: Node) -> bool:
     """Whether ``value_node`` and the following key are one number split at a decimal comma."""
     plain = (isinstance(value_node, ScalarNode) and isinstance(next_key, ScalarNode)
              and isinstance(next_value, ScalarNode) and not value_node.style and not next_key.style)
-    return (plain and re.search(r"(?:^|[^0-9A-Za-z.])[0-9]+$", value_node.value) is not None
-            and re.match(r"[0-9]", next_key.value) is not None and next_value.value == ""
+    # the cheap tests first: almost every pair fails on a next key that has a value
+    return (plain and next_value.value == ""
+            and re.search(r"(?:^|[^0-9A-Za-z.])[0-9]+$", value_node.value) is not None
+            and re.match(r"[0-9]", next_key.value) is not None
             and next_key.start_mark.line == value_node.end_mark.line
             and next_key.start_mark.index == value_node.end_mark.index + 1)
 
