@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import UNITS_HELP, caution_line, echo_warnings, units_option
+from routeplan.commands.common import UNITS_HELP, echo_caution, echo_warnings, units_option
 from routeplan.vocab import YieldCase
 
 
@@ -55,10 +55,13 @@ def explain_cmd(route: str, what: tuple[str, ...], target: str | None, stock_fil
         lines = raw_text(plan, what[1], shown)
     else:
         lines = charge_text(plan, what[0], what[1], shown)
-    for line in lines:
-        click.echo(line)
+    from routeplan.export.terminal import print_blocks
+    from routeplan.views.text_blocks import Para
+
+    # each line of the chain folded to the width, its continuation indented under it
+    print_blocks([Para(line, hang=3) for line in lines])
     echo_warnings(plan.warnings)
-    click.echo(caution_line())
+    echo_caution()
 
 
 def register(cli: click.Group) -> None:

@@ -33,6 +33,13 @@ KEY = {"mol": "mol", "g": "mass_kg", "kg": "mass_kg", "t": "mass_kg", "mg": "mas
        "kmol": "mol", "mL": "volume_L", "L": "volume_L", "m³": "volume_L"}
 
 
+@pytest.fixture(autouse=True)
+def _one_line_per_chain(monkeypatch):
+    # a wide output keeps each line of a chain on one printed line (the fold to a width is
+    # tested in tests/plan/test_explain.py)
+    monkeypatch.setenv("COLUMNS", "1000")
+
+
 def _explain(*args):
     r = run_cli("explain", *args)
     assert r.exit_code == 0, r.output

@@ -203,8 +203,13 @@ def test_textbook_check_your_learning_backwards():
     assert check_plan(plan) > 0  # and it multiplies out with pint
 
 
-def _cli(*args):
-    return subprocess.run([sys.executable, "-m", "routeplan", *args], capture_output=True, text=True, cwd=ROOT)
+def _cli(*args, columns: int = 1000):
+    # a wide COLUMNS keeps each logical line on one printed line (the fold is tested below)
+    import os
+
+    env = {**os.environ, "COLUMNS": str(columns)}
+    return subprocess.run([sys.executable, "-m", "routeplan", *args], capture_output=True, text=True, cwd=ROOT,
+                          env=env)
 
 
 @pytest.mark.parametrize("args,expect", [
@@ -318,3 +323,15 @@ def test_a_route_longer_than_the_recursion_limit_is_derived():
     raw = next(r for r in plan.raw_materials if r.material == "THF")
     assert total.value == pytest.approx(raw.m_kg, rel=1e-12)
     assert sum(lines[f.ref].value for f in total.factors) == pytest.approx(raw.m_kg, rel=1e-12)
+
+
+def test_explain_folds_each_line_of_the_chain_to_the_width():
+    # at 80 columns every printed line fits, a chain's continuation is indented under its
+    # number, and the words are those of the unfolded chain
+    wide = _cli("explain", "demo_routes/hx17-linear.yaml", "S3", "NaOH50").stdout.splitlines()
+    narrow = _cli("explain", "demo_routes/hx17-linear.yaml", "S3", "NaOH50", columns=80).stdout.splitlines()
+    assert all(len(line) <= 80 for line in narrow), max(narrow, key=len)
+    assert len(narrow) > len(wide)
+    assert " ".join(" ".join(narrow).split()) == " ".join(" ".join(wide).split())
+    starts = [i for i, line in enumerate(narrow) if re.match(r"\d+\. ", line)]
+    assert starts and all(narrow[i + 1].startswith("   ") for i in starts if not re.match(r"\d+\. |= ", narrow[i + 1]))
