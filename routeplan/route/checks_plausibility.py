@@ -63,7 +63,8 @@ MASS_BALANCE_TOLERANCE = 5e-3
 #: limit is common practice, no source:
 #:
 #: - a catalyst by ``mass_ratio`` (Pd/C, Raney nickel) is charged at a few to 20 % of the
-#:   substrate's mass; above 0.5 kg/kg (50 wt %) it is a percentage typed as a ratio;
+#:   substrate's mass; above 0.3 kg/kg (30 wt %) it is most often a loading typed ten times
+#:   too big (0.5 for 0.05) or a percentage typed as a ratio (5 for 0.05);
 #: - another material by ``mass_ratio`` (a filter aid, carbon, a salt) above 10 kg/kg;
 #: - ``equiv`` above 10 on any line but a solvent (a reagent that is also the solvent is
 #:   charged in large excess);
@@ -72,7 +73,7 @@ MASS_BALANCE_TOLERANCE = 5e-3
 #:   a work-up) above 50 L/kg: a step that dilute does not fit a plant vessel;
 #: - ``mol_percent`` above 100 is more than one equivalent: an error, not a warning.
 CHARGE_RANGES = {
-    ("mass_ratio", "catalyst"): (0.5, "a catalyst by mass is usually 0.01 to 0.2 kg per kg of limiting reagent "
+    ("mass_ratio", "catalyst"): (0.3, "a catalyst by mass is usually 0.01 to 0.2 kg per kg of limiting reagent "
                                       "(1 to 20 wt %)"),
     ("mass_ratio", "solvent"): (50.0, "a solvent is usually up to 50 kg per kg of limiting reagent"),
     ("mass_ratio", None): (10.0, "a charge by mass ratio is usually up to 10 kg per kg of limiting reagent"),
@@ -359,7 +360,9 @@ def charge_findings(path: tuple, material: str, basis: str, value: float, role: 
                                        f"{_g(value / 100)} equivalents, more than one",
                         f"{usual}; write 'equiv: {_g(value / 100)}' if that much is meant")]
     hint = usual
-    if basis == "mass_ratio" and role == "catalyst" and value <= 100:
+    if basis == "mass_ratio" and role == "catalyst" and value <= 1:
+        hint += f"; was 'mass_ratio: {_g(value / 10)}' meant (a loading typed ten times too big)?"
+    elif basis == "mass_ratio" and role == "catalyst" and value <= 100:
         hint += f"; for {_g(value)} wt % write 'mass_ratio: {_g(value / 100)}'"
     return [Finding(Severity.WARNING, path, f"{material} is charged at {basis}: {_g(value)}, above the usual range "
                                      f"(more than {_g(limit)}) for a {role}", hint)]

@@ -18,8 +18,13 @@ CASES = [
     ("catalyst by mass_ratio above 0.5",
      ("{material: charcoal, mass_ratio: 0.05, role: workup}", "{material: charcoal, mass_ratio: 5, role: catalyst}"),
      "steps[3].charges[1].mass_ratio", "mass_ratio: 5,", "5,",
-     ["charcoal is charged at mass_ratio: 5", "more than 0.5", "for a catalyst", "1 to 20 wt %",
+     ["charcoal is charged at mass_ratio: 5", "more than 0.3", "for a catalyst", "1 to 20 wt %",
       "for 5 wt % write 'mass_ratio: 0.05'"]),
+    # a 5 wt % palladium on carbon typed ten times too big
+    ("catalyst by mass_ratio ten times too big",
+     ("{material: charcoal, mass_ratio: 0.05, role: workup}", "{material: charcoal, mass_ratio: 0.5, role: catalyst}"),
+     "steps[3].charges[1].mass_ratio", "mass_ratio: 0.5,", "0.5,",
+     ["charcoal is charged at mass_ratio: 0.5", "more than 0.3", "was 'mass_ratio: 0.05' meant"]),
     ("equiv above 10", ("{material: Ac2O, equiv: 1.1}", "{material: Ac2O, equiv: 11}"),
      "steps[0].charges[2].equiv", "equiv: 11", "11", ["Ac2O is charged at equiv: 11", "more than 10", "up to 10 equiv"]),
     ("work-up volumes above 50", ("{material: water, volumes: 2, role: workup}", "{material: water, volumes: 60, "
@@ -66,7 +71,7 @@ def test_mol_percent_above_100_is_an_error(tmp_path, good_text):
 
 
 @pytest.mark.parametrize("basis, role, limit", [
-    ("mass_ratio", "catalyst", 0.5), ("mass_ratio", "workup", 10.0), ("equiv", "reagent", 10.0),
+    ("mass_ratio", "catalyst", 0.3), ("mass_ratio", "workup", 10.0), ("equiv", "reagent", 10.0),
     ("volumes", "solvent", 30.0), ("volumes", "workup", 50.0), ("mol_percent", "catalyst", 100.0)])
 def test_the_limit_itself_is_usual_and_just_above_is_not(basis, role, limit):
     assert plausible.charge_findings(("x",), "m", basis, limit, role) == []
