@@ -148,15 +148,20 @@ def _boolean(value: Any) -> bool:
     raise _fail(f"must be true or false, got {describe_value(value)}")
 
 
+def _parsed(value: Any, dimension: str):
+    """``value`` read as a quantity of ``dimension``, or the located error in our words."""
+    if value is None:
+        raise _fail(f"has no value; expected {dimension} such as '{DIMENSIONS[dimension][1]}'",
+                    "leave the key out if it does not apply")
+    try:
+        return parse_quantity(value, dimension)
+    except QuantityError as exc:
+        raise _fail(exc.message, exc.hint) from None
+
+
 def _quantity(dimension: str):
     def check(value: Any):
-        if value is None:
-            raise _fail(f"has no value; expected {dimension} such as '{DIMENSIONS[dimension][1]}'",
-                        "leave the key out if it does not apply")
-        try:
-            q = parse_quantity(value, dimension)
-        except QuantityError as exc:
-            raise _fail(exc.message, exc.hint) from None
+        q = _parsed(value, dimension)
         if not math.isfinite(q.magnitude) or q.magnitude <= 0:
             raise _fail(f"must be positive, got {describe_value(value)}")
         return q
@@ -167,13 +172,7 @@ def _quantity(dimension: str):
 def _signed_quantity(dimension: str):
     """A quantity of ``dimension`` that may be negative or zero (a reaction enthalpy)."""
     def check(value: Any):
-        if value is None:
-            raise _fail(f"has no value; expected {dimension} such as '{DIMENSIONS[dimension][1]}'",
-                        "leave the key out if it does not apply")
-        try:
-            q = parse_quantity(value, dimension)
-        except QuantityError as exc:
-            raise _fail(exc.message, exc.hint) from None
+        q = _parsed(value, dimension)
         if not math.isfinite(q.magnitude):
             raise _fail(f"must be a finite number, got {describe_value(value)}")
         return q
