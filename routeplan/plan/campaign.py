@@ -35,7 +35,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.walk import Walked
     from routeplan.route.model import Route
 
-__all__ = ["MIN_FILL", "MAX_SCALE_UP", "MANY_BATCHES", "MAX_BATCHES", "Sized", "size_steps"]
+__all__ = ["MIN_FILL", "MAX_SCALE_UP", "MANY_BATCHES", "MAX_BATCHES", "Sized", "nominal_volumes_L", "size_steps"]
 
 #: Smallest batch volume over nominal vessel volume that can still be stirred [-]
 #: (common practice, no source).
@@ -92,6 +92,13 @@ class Sized:
     transfer_m_kg: float | None = None
 
 
+def nominal_volumes_L(route: "Route") -> dict[str, float]:
+    """Vessel key -> nominal volume [L], converted once for all steps."""
+    from routeplan.units import unit
+
+    return {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
+
+
 def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list[Problem]]:
     """Volumes, reaction masses and batches of every step, and the warnings.
 
@@ -102,7 +109,7 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
 
     from routeplan.plan.core import contents
 
-    nominal_L = {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
+    nominal_L = nominal_volumes_L(route)
     held = contents(walked.core, walked.steps)
     out: dict[str, Sized] = {}
     warnings: list[Problem] = []
