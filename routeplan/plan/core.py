@@ -30,7 +30,6 @@ __all__ = [
     "CoreStep",
     "CoreRoute",
     "compile_route",
-    "step_order",
     "molar_masses",
     "material_form",
     "target_amount",
@@ -157,16 +156,6 @@ class CoreRoute:
         raise KeyError(step_id)
 
 
-def step_order(route: "Route") -> tuple[str, ...]:
-    """The route's execution order (:func:`routeplan.route.graph.execution_order`), computed once per route."""
-    cached = route.__dict__.get("_step_order")
-    if cached is None:
-        from routeplan.route.graph import execution_order
-
-        cached = route.__dict__["_step_order"] = tuple(execution_order(route))
-    return cached
-
-
 def molar_masses(route: "Route") -> Mapping[str, float | None]:
     """Molar mass of every material [kg/mol] (None without one), computed once per route."""
     cached = route.__dict__.get("_molar_masses_kg")
@@ -198,6 +187,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
     CoreRoute
         Cached on the route for the default ``quantity``.
     """
+    from routeplan.route.graph import execution_order
     from routeplan.units import magnitude
 
     cache = None
@@ -215,7 +205,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
     steps = []
     maker = route.maker  # intermediate -> the step that makes it
     case = str(yields)
-    for sid in step_order(route):
+    for sid in execution_order(route):
         step = route.step(sid)
         chosen = getattr(step.yield_, case)
         y = step.yield_.expected if chosen is None else chosen
