@@ -121,7 +121,8 @@ def execution_order(route: "Route") -> list[str]:
 
 def route_step_graph(route: "Route") -> "nx.DiGraph":
     """:func:`step_graph` of ``route.steps``, built once per route (a Route is frozen) and
-    shared by the execution order and the longest linear sequence; read it, never change it."""
+    shared by the execution order, the longest linear sequence, the steps upstream of a
+    step and the schedule; read it, never change it."""
     return _route_cache(route, "_step_graph", lambda: step_graph(route.steps))
 
 
