@@ -89,7 +89,7 @@ def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]", 
             ratio = (have / need).m_as("")
             if best_ratio is None or ratio < best_ratio:
                 best_ratio, limited_by = ratio, r.material
-        if r.buy_m_kg > 0:  # need less stock (routeplan.plan.purchase.with_packs)
+        if r.bought and r.buy_m_kg > 0:  # need less stock (routeplan.plan.purchase.with_packs)
             to_buy.append((r.material, r.buy_mass))
     max_target = None if best_ratio is None else (target * best_ratio).to(unit("kg"))
     shelf = intermediate_stock(plan.route, on_hand)

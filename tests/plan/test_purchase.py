@@ -183,3 +183,15 @@ def test_with_stock_process_water_is_never_to_buy(stocked):
     assert any("not bought, so not listed: process water (water)" in line for line in lines)
     data = plan_to_dict(stocked)["stock"]
     assert "water" not in data["not_in_stock"] and "water" not in {r["material"] for r in data["to_buy"]}
+
+
+def test_process_water_listed_short_in_the_stock_is_still_never_to_buy():
+    # a 'bought: false' material that the stock lists with less than the need is still
+    # not to buy (it comes from the site's supply); before, only an unlisted one was left out
+    from routeplan.plan.planner import plan_route
+    from routeplan.route.load import load_route
+    from routeplan.units import Q
+
+    plan = plan_route(load_route(DEMO), stock={"water": Q(1, "kg")})
+    assert "water" not in {k for k, _m in plan.stock.to_buy}
+    assert not next(r for r in plan.raw_materials if r.material == "water").bought
