@@ -495,10 +495,11 @@ def _metrics_lines(plan: "Plan") -> tuple[str, ...]:
 def _safety_facts(plan: "Plan") -> list[tuple[str, str, str, float | None]]:
     """Summary cards a safety review reads first: the highest criticality class and the
     steps not screened (never silently safe), and how many warnings the plan has."""
-    running = [sp for sp in plan.steps if sp.safety is not None and sp.safety.runs]
+    from routeplan.views.safety_text import safety_steps
+
+    running, unscreened = safety_steps(plan)
     classed = [(sp.safety.thermal.criticality_class, sp.id) for sp in running
                if sp.safety.thermal is not None and sp.safety.thermal.criticality_class is not None]
-    unscreened = [sp.id for sp in running if not sp.safety.screened]
     parts = []
     top = None
     if classed:
