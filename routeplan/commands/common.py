@@ -44,13 +44,12 @@ def echo_warnings(problems, *, strict: bool = False) -> None:
         echo_err("\n".join(wrap_text(text, width, hang=4)) if fold else text)
 
 
-def caution_line() -> str:
-    """The safety caution, as one line."""
-    return "CAUTION: " + CAUTION
-
-
-def echo_caution() -> None:
-    """Print the safety caution as the last lines of standard output, folded to its width."""
+def echo_caution(*, err: bool = False) -> None:
+    """Print the safety caution as the last lines of standard output, folded to its width;
+    with ``err``, as one line on standard error (standard output holds JSON, or nothing)."""
+    if err:
+        echo_err("CAUTION: " + CAUTION)
+        return
     from routeplan.export.terminal import print_blocks
     from routeplan.views.plan_text import caution_block
 

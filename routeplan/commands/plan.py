@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import (UNITS_HELP, caution_line, check_output_paths, confidence_option, echo_caution,
-                                       echo_err, echo_warnings, finish_outputs, output_set, units_option)
+from routeplan.commands.common import (UNITS_HELP, check_output_paths, confidence_option, echo_caution, echo_err,
+                                       echo_warnings, finish_outputs, output_set, units_option)
 from routeplan.vocab import YieldCase
 
 
@@ -109,7 +109,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     finish_outputs(out)
     if json_out == "-" or quiet:
         echo_warnings(plan.warnings)
-        echo_err(caution_line())
+        echo_caution(err=True)
     else:
         from routeplan.export.terminal import print_plan
         from routeplan.views.display_units import plan_units
