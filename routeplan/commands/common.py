@@ -77,6 +77,12 @@ def units_option(text: str | None) -> str | None:
     return text
 
 
+def record_yields_option(record_file: str | None, record_yields: str) -> None:
+    """Refuse ``--record-yields`` other than ``expected`` without ``--record`` (a usage error)."""
+    if record_yields != "expected" and record_file is None:
+        raise click.UsageError("--record-yields applies to a campaign record; give --record FILE too")
+
+
 def write_text_output(text: str, dest: str) -> None:
     """Write ``text`` to standard output (``dest == "-"``) or atomically to a file."""
     if dest == "-":

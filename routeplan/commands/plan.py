@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from routeplan.commands.common import (UNITS_HELP, check_output_paths, confidence_option, echo_caution, echo_err,
-                                       echo_warnings, finish_outputs, output_set, units_option)
+                                       echo_warnings, finish_outputs, output_set, record_yields_option, units_option)
 from routeplan.vocab import YieldCase
 
 
@@ -67,8 +67,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
 
     check_output_paths(json_out=json_out, xlsx_out=xlsx_out, csv_dir=csv_dir, html_out=html_out)
     units_option(units)
-    if record_yields != "expected" and record_file is None:
-        raise click.UsageError("--record-yields applies to a campaign record; give --record FILE too")
+    record_yields_option(record_file, record_yields)
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
