@@ -56,7 +56,8 @@ def echo_caution(*, err: bool = False) -> None:
     print_blocks([caution_block()])
 
 
-#: Help text of ``--units`` (kept here so that ``--help`` imports nothing heavy).
+#: Help text of ``--units``, written out so that ``--help`` loads no view; the sets and thresholds it
+#: names are those of :mod:`routeplan.views.display_units` (a test holds the two together).
 UNITS_HELP = ("Units of the whole printout, one per kind: 'auto' (default: lab = mmol, g, mL below 1 kg of "
               "target; kilo = mol, kg, L below 100 kg; plant = kmol, kg, L from 100 kg), 'lab', 'kilo', "
               "'plant', or units separated by commas, e.g. 'g,mmol,mL' or 't,m3' (from mmol, mol, kmol; mg, g, "
