@@ -26,7 +26,7 @@ Batches
 from __future__ import annotations
 
 import math
-from typing import TYPE_CHECKING, Mapping
+from typing import TYPE_CHECKING
 
 from routeplan.errors import Problem
 from routeplan.frozen import frozen
@@ -35,7 +35,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.walk import Walked
     from routeplan.route.model import Route
 
-__all__ = ["MIN_FILL", "MAX_SCALE_UP", "MANY_BATCHES", "MAX_BATCHES", "Sized", "size_steps"]
+__all__ = ["MIN_FILL", "MAX_SCALE_UP", "MANY_BATCHES", "MAX_BATCHES", "Sized", "nominal_volumes_L", "size_steps"]
 
 #: Smallest batch volume over nominal vessel volume that can still be stirred [-]
 #: (common practice, no source).
@@ -62,9 +62,10 @@ class Sized:
     ----------
     V_L : float
         Largest volume in the vessel over the campaign [L] (its fullest).
-    carried_in : Mapping[int, tuple[str, float or None]]
-        Charge index (0-based) -> (id of the telescoped step, volume of its mixture
-        carried in [L], None when that mixture has no known volume).
+    lines_V : tuple of float or None
+        Per charge line, the volume it brings into the vessel [L] (for a line carried in
+        solution from a telescoped step, the volume of that step's mixture), None where
+        it has no known volume (:attr:`routeplan.plan.core.Contents.lines_V`).
     batches : int
         Number of batches [-] (0 for a step that does not run).
     fill : float or None
@@ -83,12 +84,19 @@ class Sized:
     """
 
     V_L: float
-    carried_in: Mapping[int, tuple[str, float | None]]
+    lines_V: tuple[float | None, ...]
     batches: int
     fill: float | None
     reaction_m_kg: float
     transfer_V_L: float | None = None
     transfer_m_kg: float | None = None
+
+
+def nominal_volumes_L(route: "Route") -> dict[str, float]:
+    """Vessel key -> nominal volume [L], converted once for all steps."""
+    from routeplan.units import unit
+
+    return {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
 
 
 def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list[Problem]]:
@@ -101,23 +109,20 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
 
     from routeplan.plan.core import contents
 
-    nominal_L = {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
+    nominal_L = nominal_volumes_L(route)
     held = contents(walked.core, walked.steps)
     out: dict[str, Sized] = {}
     warnings: list[Problem] = []
     for sid, w in walked.steps.items():
         step = route.step(sid)
         h = held[sid]
-        carried_in: dict[int, tuple[str, float | None]] = {
-            i: (c.carried_from, V) for i, (c, V) in enumerate(zip(w.step.charges, h.lines_V))
-            if c.carried_from is not None}
         V_total = 0.0 if h.fullest_V is None else h.fullest_V
         telescoped = not step.isolated
         parts = dict(reaction_m_kg=h.reaction_m,
                      transfer_V_L=h.transfer_V if telescoped else None,
                      transfer_m_kg=h.transfer_m if telescoped else None)
         if sid in walked.not_run:
-            out[sid] = Sized(V_total, carried_in, 0, None, **parts)
+            out[sid] = Sized(V_total, h.lines_V, 0, None, **parts)
             continue
         vessel = route.equipment.get(step.vessel) if step.vessel else None
         if vessel is None:
@@ -146,7 +151,7 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
                     f"{per_batch / shown:.3g} times the largest batch run so far ({shown:.4g} kg)",
                     location=step.location, step=sid,
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
-        out[sid] = Sized(V_total, carried_in, batches, fill, **parts)
+        out[sid] = Sized(V_total, h.lines_V, batches, fill, **parts)
     return out, warnings
 
 

@@ -45,15 +45,13 @@ def step_plans(route: "Route", walked: "Walked", sized: Mapping[str, "Sized"],
         z = sized[sid]
         batches = z.batches
         lines = []
-        for i, (c, (n, m, V)) in enumerate(zip(step.charges, w.charges)):
-            carried = z.carried_in.get(i)
+        for i, (c, cc, (n, m, _V), V) in enumerate(zip(step.charges, w.step.charges, w.charges, z.lines_V)):
             lines.append(ChargePlan(
                 order=i + 1, material=c.material, name=materials[c.material].name, role=c.role,
                 basis=c.basis, basis_value=c.value, equiv=c.equiv, n_mol=n, m_kg=m,
-                V_L=V if carried is None else carried[1],
-                intermediate=w.step.charges[i].intermediate, implicit=c.implicit,
-                carried_from=None if carried is None else carried[0], batches=batches,
-                leaves=c.leaves))
+                V_L=V,  # a line carried in solution: the volume of mixture carried in
+                intermediate=cc.intermediate, implicit=c.implicit,
+                carried_from=cc.carried_from, batches=batches, leaves=c.leaves))
         m_prod = w.n_product * w.step.product_form.kg_per_mol  # as isolated, at its assay [kg]
         batch = BatchPlan(batches=batches, step_V_L=z.V_L, fill_fraction=z.fill, vessel=step.vessel,
                           limiting_n_mol=w.n_lim, limiting_m_kg=w.m_lim,

@@ -30,7 +30,6 @@ __all__ = [
     "CoreStep",
     "CoreRoute",
     "compile_route",
-    "step_order",
     "molar_masses",
     "material_form",
     "target_amount",
@@ -72,6 +71,13 @@ class Form:
     L_per_kg: Number | None
 
 
+def _molar_mass(mat: "Material", quantity: Callable) -> Number:
+    """The molar mass of ``mat`` [kg/mol] as ``quantity`` builds it (named ``molar_mass``)."""
+    from routeplan.units import magnitude
+
+    return quantity(magnitude(mat.molar_mass, "kg/mol"), "kg/mol", ("molar_mass", mat))
+
+
 def material_form(mat: "Material", quantity: Callable = _plain) -> Form:
     """The :class:`Form` of ``mat``, its numbers built by ``quantity(value, unit, what)``.
 
@@ -89,8 +95,7 @@ def material_form(mat: "Material", quantity: Callable = _plain) -> Form:
     elif mat.molar_mass is not None:
         fraction = (quantity(sol.mass_fraction, "", ("mass_fraction", mat)) if sol is not None
                     else quantity(mat.assay, "", ("assay", mat)))
-        M = quantity(magnitude(mat.molar_mass, "kg/mol"), "kg/mol", ("molar_mass", mat))
-        kg_per_mol = M / fraction  # [kg/mol] / [-]
+        kg_per_mol = _molar_mass(mat, quantity) / fraction  # [kg/mol] / [-]
     L_per_kg = None
     if density is not None:
         kind = "solution_density" if sol is not None else "density"
@@ -157,16 +162,6 @@ class CoreRoute:
         raise KeyError(step_id)
 
 
-def step_order(route: "Route") -> tuple[str, ...]:
-    """The route's execution order (:func:`routeplan.route.graph.execution_order`), computed once per route."""
-    cached = route.__dict__.get("_step_order")
-    if cached is None:
-        from routeplan.route.graph import execution_order
-
-        cached = route.__dict__["_step_order"] = tuple(execution_order(route))
-    return cached
-
-
 def molar_masses(route: "Route") -> Mapping[str, float | None]:
     """Molar mass of every material [kg/mol] (None without one), computed once per route."""
     cached = route.__dict__.get("_molar_masses_kg")
@@ -198,7 +193,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
     CoreRoute
         Cached on the route for the default ``quantity``.
     """
-    from routeplan.units import magnitude
+    from routeplan.route.graph import execution_order
 
     cache = None
     if quantity is _plain:
@@ -215,7 +210,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
     steps = []
     maker = route.maker  # intermediate -> the step that makes it
     case = str(yields)
-    for sid in step_order(route):
+    for sid in execution_order(route):
         step = route.step(sid)
         chosen = getattr(step.yield_, case)
         y = step.yield_.expected if chosen is None else chosen
@@ -231,11 +226,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
             else:
                 factor = quantity(c.equiv, "", ("equiv", step, c))
             src = maker.get(c.material)  # None for a bought material
-            key = c.material
-            f = forms.get(key)
-            if f is None:
-                f = form(key)
-            charges.append(CoreCharge(key, str(basis), factor, f, src is not None,
+            charges.append(CoreCharge(c.material, str(basis), factor, form(c.material), src is not None,
                                       src if src is not None and not route.step(src).isolated else None,
                                       c.leaves, c.role == "workup"))
         eq = step.equation
@@ -245,18 +236,18 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
             mat = route.materials[t.key]
             if mat.phase == "gas" and mat.molar_mass is not None:
                 gases.append((quantity(t.coefficient / nu_lim, "", ("gas_ratio", step, t.key)),
-                              quantity(magnitude(mat.molar_mass, "kg/mol"), "kg/mol", ("molar_mass", mat))))
+                              _molar_mass(mat, quantity)))
         steps.append(CoreStep(
             id=sid, product=step.product, limiting=step.limiting,
-            nu_ratio=quantity(eq.coefficient(step.product) / eq.coefficient(step.limiting), "", ("nu_ratio", step)),
-            yield_=quantity(y, "", ("yield", step, str(yields) if chosen is not None else "expected")),
+            nu_ratio=quantity(eq.coefficient(step.product) / nu_lim, "", ("nu_ratio", step)),
+            yield_=quantity(y, "", ("yield", step, case if chosen is not None else "expected")),
             product_form=form(step.product), limiting_form=form(step.limiting),
             charges=tuple(charges), gases=tuple(gases)))
     tgt = route.materials[route.target.material]
     if tgt.molar_mass is None:  # the loader forbids this; kept as a guard
         raise PlanError(f"target '{tgt.key}' has no molar mass")
-    M = quantity(magnitude(tgt.molar_mass, "kg/mol"), "kg/mol", ("molar_mass", tgt))
-    core = CoreRoute(tuple(steps), tgt.key, form(tgt.key), M / quantity(tgt.assay, "", ("assay", tgt)),
+    core = CoreRoute(tuple(steps), tgt.key, form(tgt.key),
+                     _molar_mass(tgt, quantity) / quantity(tgt.assay, "", ("assay", tgt)),
                      quantity(route.target.overage, "", ("overage", route.target)))
     if cache is not None:
         cache[yields] = core

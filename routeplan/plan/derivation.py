@@ -278,11 +278,9 @@ class Derivation:
         (indices, lines)
             The index in :attr:`lines` of each line shown, and the lines.
         """
-        if step is None:
-            return self._cut(keys, lambda i: True)
-        return self._cut(keys, lambda i: self.home(i) in (None, step))
+        def follow(i: int) -> bool:
+            return step is None or self.home(i) in (None, step)
 
-    def _cut(self, keys, follow) -> tuple[tuple[int, ...], tuple[Line, ...]]:
         need: set[int] = set()
         todo = [self.named[k] for k in keys]
         while todo:
@@ -550,8 +548,8 @@ def find_charge(route: "Route", step: str, material: str) -> int:
     if material in charged:
         return charged.index(material)
     if material not in route.materials:
-        close = [m for m in _close(material, charged + list(route.materials))]
-        hint = (f"did you mean {', '.join(dict.fromkeys(close))}? " if close else "") \
+        close = _close(material, charged + list(route.materials))  # each name once
+        hint = (f"did you mean {', '.join(close)}? " if close else "") \
             + f"charged in {step}: " + ", ".join(charged)
         raise PlanError(f"no material '{material}' in the route", location=Location(key="MATERIAL"),
                         step=step, hint=hint)

@@ -130,10 +130,10 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         When the route cannot be planned (e.g. a non-positive target).
     """
     from routeplan.plan import guards
-    from routeplan.plan.campaign import size_steps
+    from routeplan.plan.campaign import nominal_volumes_L, size_steps
     from routeplan.plan.charges import step_plans
     from routeplan.plan.metrics import compute_metrics
-    from routeplan.plan.safety import batch_safety, nominal_volumes_L
+    from routeplan.plan.safety import batch_safety
     from routeplan.plan.safety import safety_warnings as safety_warnings_of
     from routeplan.plan.model import Plan
     from routeplan.plan.purchase import with_packs

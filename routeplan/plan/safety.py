@@ -64,8 +64,6 @@ __all__ = [
     "mtsr_K",
     "criticality_class",
     "severity",
-    "step_safety",
-    "nominal_volumes_L",
     "batch_safety",
     "safety_warnings",
 ]
@@ -345,34 +343,30 @@ def _conditions(step: "Step") -> tuple[float, float]:
     return float(T_K), float(p_Pa)
 
 
-def nominal_volumes_L(route: "Route") -> dict[str, float]:
-    """Vessel key -> nominal volume [L], converted once for all steps."""
-    return {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
-
-
-def step_safety(route: "Route", sp: "StepPlan", nominal_L: "dict[str, float] | None" = None) -> StepSafety:
-    """Heat and gas of one batch of step ``sp`` (its batches sized).
+def batch_safety(route: "Route", step_id: str, runs: bool, b: "BatchPlan | None",
+                 charges: "Sequence[ChargePlan]", nominal_L: "dict[str, float] | None" = None) -> StepSafety:
+    """Heat and gas of one batch of step ``step_id`` (its batches sized), from the parts
+    of its StepPlan before that is built (the planner builds each StepPlan once, with its
+    safety).
 
     Parameters
     ----------
     route : Route
-    sp : StepPlan
-        With ``batch`` set.
+    step_id : str
+    runs : bool
+        Whether the step runs (a step whose product is all in stock does not).
+    b : BatchPlan or None
+        The step's batches.
+    charges : sequence of ChargePlan
+        The step's charges (the gases taken up are read from them).
     nominal_L : dict, optional
-        Vessel key -> nominal volume [L] (:func:`nominal_volumes_L`), converted once for all steps.
+        Vessel key -> nominal volume [L] (:func:`routeplan.plan.campaign.nominal_volumes_L`),
+        converted once for all steps.
 
     Returns
     -------
     StepSafety
     """
-    return batch_safety(route, sp.id, sp.runs, sp.batch, sp.charges, nominal_L)
-
-
-def batch_safety(route: "Route", step_id: str, runs: bool, b: "BatchPlan | None",
-                 charges: "Sequence[ChargePlan]", nominal_L: "dict[str, float] | None" = None) -> StepSafety:
-    """Heat and gas of one batch of step ``step_id`` from its parts, before its StepPlan is
-    built (the planner builds each StepPlan once, with its safety): whether it ``runs``,
-    its batch ``b`` and its ``charges``; see :func:`step_safety`."""
     step = route.step(step_id)
     dosing = step.dosing
     dosing_min = None if dosing is None else float(dosing.time.m_as(unit("min")))

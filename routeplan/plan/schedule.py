@@ -214,13 +214,15 @@ def schedule_order(timings: Sequence[StepTiming]) -> list[str]:
     """
     import networkx as nx
 
+    from routeplan.route.graph import topological_order
+
     g = nx.DiGraph()
     for t in timings:
         g.add_node(t.id)
     for t in timings:
         for f in t.feeds_from:
             g.add_edge(f, t.id)
-    return list(nx.lexicographical_topological_sort(g, key=str))
+    return topological_order(g, str)
 
 
 def place_steps(timings: Sequence[StepTiming]) -> Schedule:
@@ -334,10 +336,10 @@ def schedule_plan(route: "Route", steps: "Sequence[StepPlan]") -> Schedule | Non
     """
     if steps_without_cycle_time(route):
         return None
-    from routeplan.route.graph import step_graph
+    from routeplan.route.graph import route_step_graph
     from routeplan.units import unit
 
-    g = step_graph(steps)
+    g = route_step_graph(route)  # the steps planned are the route's
     timings = [StepTiming(id=sp.id, vessel=sp.vessel, batches=sp.batches if sp.runs else 0,
                           cycle_time_h=float(route.step(sp.id).cycle_time.m_as(unit("h"))),
                           feeds_from=tuple(sorted(g.predecessors(sp.id))))

@@ -52,10 +52,10 @@ def downstream_factors(route: "Route") -> dict[str, float]:
     favourable path is taken (the largest factor).  One pass in reverse execution order,
     no recursion, so the cost is linear in the number of steps.
     """
-    from routeplan.plan.core import step_order
+    from routeplan.route.graph import execution_order
 
     out: dict[str, float] = {route.target.material: 1.0}
-    for sid in reversed(step_order(route)):
+    for sid in reversed(execution_order(route)):
         product = route.step(sid).product
         if product == route.target.material:
             continue

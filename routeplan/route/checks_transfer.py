@@ -22,6 +22,7 @@ from __future__ import annotations
 
 from routeplan.errors import Problem
 from routeplan.route.yamlpos import Positions
+from routeplan.vocab import GIVEN_BASES
 
 __all__ = ["leaving_problems"]
 
@@ -69,8 +70,7 @@ def leaving_problems(parts, facts, pos: Positions) -> list[Problem]:
                 error(f"step {sid}: '{c.material}' is a reactant of the equation, consumed by the reaction, so "
                       "it cannot leave", f"drop 'leaves'; {_WHAT_LEAVES}")
             else:
-                basis = next((b for b in ("equiv", "mol_percent", "volumes", "mass_ratio")
-                              if getattr(c, b, None) is not None), None)
+                basis = next((b for b in GIVEN_BASES if getattr(c, b, None) is not None), None)
                 role = c.role if getattr(c, "role", None) is not None else _default_role(basis, False)
                 if str(role) != "workup":
                     error(f"step {sid}: this line of '{c.material}' is a {role}, and {_WHAT_LEAVES}: it "

@@ -25,6 +25,7 @@ __all__ = [
     "find_step_cycle",
     "execution_order",
     "route_step_graph",
+    "topological_order",
     "longest_linear_sequence",
     "steps_leading_to",
 ]
@@ -111,43 +112,53 @@ def execution_order(route: "Route") -> list[str]:
     """Step ids in an order in which every step runs after the steps feeding it.
 
     Ties are broken by the order of the steps in the file, so the order is stable.
+    Worked out once per route (a Route is frozen).
     """
-    return _file_order_sort(route_step_graph(route), route.steps)
+    order = _route_cache(route, "_execution_order", lambda: tuple(
+        topological_order(route_step_graph(route), {s.id: i for i, s in enumerate(route.steps)}.__getitem__)))
+    return list(order)
 
 
 def route_step_graph(route: "Route") -> "nx.DiGraph":
     """:func:`step_graph` of ``route.steps``, built once per route (a Route is frozen) and
-    shared by the execution order and the longest linear sequence; read it, never change it."""
+    shared by the execution order, the longest linear sequence, the steps upstream of a
+    step and the schedule; read it, never change it."""
+    return _route_cache(route, "_step_graph", lambda: step_graph(route.steps))
+
+
+def _route_cache(route, name: str, make):
+    """``make()``, kept in the route's ``__dict__`` under ``name`` (an object without one
+    gets it afresh each time)."""
     cache = getattr(route, "__dict__", None)
-    g = None if cache is None else cache.get("_step_graph")
-    if g is None:
-        g = step_graph(route.steps)
+    value = None if cache is None else cache.get(name)
+    if value is None:
+        value = make()
         if cache is not None:
-            cache["_step_graph"] = g
-    return g
+            cache[name] = value
+    return value
 
 
-def _file_order_sort(g: "nx.DiGraph", steps) -> list[str]:
-    """The nodes of the step graph ``g`` in topological order, ties to the earlier step in ``steps``.
+def topological_order(g: "nx.DiGraph", key) -> list:
+    """The nodes of ``g`` in topological order, ties to the smallest ``key(node)``.
 
-    Kahn's algorithm with the ready steps in a heap keyed by file position: the order
-    ``networkx.lexicographical_topological_sort(g, key=position)`` gives, at a fraction
-    of its cost (it spends about 4 us a step on wrapping and dispatch, which a plan of
-    10 000 steps pays more than once).  ``g`` must have no cycle (the loader refuses one).
+    Kahn's algorithm with the ready nodes in a heap: the order
+    ``networkx.lexicographical_topological_sort(g, key=key)`` gives, at a fraction of its
+    cost (it spends about 4 us a node on wrapping and dispatch, which a plan of 10 000
+    steps pays more than once).  ``g`` must have no cycle (the loader refuses one).
     """
-    position = {s.id: i for i, s in enumerate(steps)}
     succ, pred = g.succ, g.pred
+    rank = {n: (key(n), i) for i, n in enumerate(pred)}  # ties on the key: the graph's node order
     waiting = {n: len(p) for n, p in pred.items()}
-    ready = [(position[n], n) for n, k in waiting.items() if k == 0]
+    ready = [(rank[n], n) for n, k in waiting.items() if k == 0]
     heapq.heapify(ready)
     out = []
     while ready:
-        _pos, n = heapq.heappop(ready)
+        _rank, n = heapq.heappop(ready)
         out.append(n)
         for m in succ[n]:
             waiting[m] -= 1
             if waiting[m] == 0:
-                heapq.heappush(ready, (position[m], m))
+                heapq.heappush(ready, (rank[m], m))
     if len(out) < len(waiting):  # the loader refuses a cycle; kept as a guard
         raise ValueError("the steps form a cycle")
     return out
@@ -222,7 +233,7 @@ def longest_linear_sequence(route: "Route") -> list[str]:
             a, b = parent[a], parent[b]
         return first_a is not None and first_a < first_b
 
-    for sid in _file_order_sort(g, route.steps):
+    for sid in execution_order(route):
         if sid not in keep:
             continue
         best = None
