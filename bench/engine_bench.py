@@ -42,28 +42,15 @@ import os
 import subprocess
 import sys
 import tempfile
-import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT / "bench"))
 sys.path.insert(0, str(ROOT))
 
-from plan_bench import linear_route  # noqa: E402
+from plan_bench import best, linear_route  # noqa: E402
 
 FLOOR = "import pint, pydantic, ruamel.yaml, networkx, click"
-
-
-def best(fn, repeat: int = 5, before=None) -> float:
-    """Best wall time of ``fn()`` [s] over ``repeat`` runs; ``before()`` runs untimed first."""
-    out = float("inf")
-    for _ in range(repeat):
-        if before is not None:
-            before()
-        t = time.perf_counter()
-        fn()
-        out = min(out, time.perf_counter() - t)
-    return out
 
 
 def cold_caches() -> None:

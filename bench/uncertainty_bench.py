@@ -24,7 +24,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-from plan_bench import linear_route  # noqa: E402
+from plan_bench import best, linear_route  # noqa: E402
 
 STEPS = 30
 DRAWS = 100_000
@@ -55,15 +55,6 @@ def bare(fw, draws: int, seed: int = 1):
     return np.percentile(out, [10, 50, 90])
 
 
-def _best(fn, repeat: int = 3) -> float:
-    best = float("inf")
-    for _ in range(repeat):
-        t = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - t)
-    return best
-
-
 def main() -> None:
     from routeplan.plan.planner import plan_route
     from routeplan.plan.uncertainty import forward_structure, yield_uncertainty
@@ -75,8 +66,8 @@ def main() -> None:
     ref = bare(fw, DRAWS)
     same = all(abs(a - b * fw.required_kg) <= 1e-9 * fw.required_kg
                for a, b in zip((ours.p10_kg, ours.p50_kg, ours.p90_kg), ref))
-    t_ours = _best(lambda: yield_uncertainty(plan, confidence=0.9, draws=DRAWS))
-    t_bare = _best(lambda: bare(fw, DRAWS))
+    t_ours = best(lambda: yield_uncertainty(plan, confidence=0.9, draws=DRAWS))
+    t_bare = best(lambda: bare(fw, DRAWS))
     print(f"{STEPS} steps, {DRAWS} draws: routeplan {t_ours * 1000:.0f} ms, bare numpy {t_bare * 1000:.0f} ms, "
           f"ratio {t_ours / t_bare:.2f} (aim: at most 3); same P10/P50/P90: {same}")
 

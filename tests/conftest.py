@@ -18,7 +18,7 @@ DATA = Path(__file__).parent / "data"
 
 #: A valid route (four steps, every charge basis, solutions, vessels); the base of the
 #: bad-route tests, which change one thing in it at a time.
-GOOD_ROUTE = Path(__file__).parent / "data" / "routes" / "good.yaml"
+GOOD_ROUTE = DATA / "routes" / "good.yaml"
 
 
 def route_text(name: str) -> str:

@@ -44,20 +44,20 @@ def echo_warnings(problems, *, strict: bool = False) -> None:
         echo_err("\n".join(wrap_text(text, width, hang=4)) if fold else text)
 
 
-def caution_line() -> str:
-    """The safety caution, as one line."""
-    return "CAUTION: " + CAUTION
-
-
-def echo_caution() -> None:
-    """Print the safety caution as the last lines of standard output, folded to its width."""
+def echo_caution(*, err: bool = False) -> None:
+    """Print the safety caution as the last lines of standard output, folded to its width;
+    with ``err``, as one line on standard error (standard output holds JSON, or nothing)."""
+    if err:
+        echo_err("CAUTION: " + CAUTION)
+        return
     from routeplan.export.terminal import print_blocks
     from routeplan.views.plan_text import caution_block
 
     print_blocks([caution_block()])
 
 
-#: Help text of ``--units`` (kept here so that ``--help`` imports nothing heavy).
+#: Help text of ``--units``, written out so that ``--help`` loads no view; the sets and thresholds it
+#: names are those of :mod:`routeplan.views.display_units` (a test holds the two together).
 UNITS_HELP = ("Units of the whole printout, one per kind: 'auto' (default: lab = mmol, g, mL below 1 kg of "
               "target; kilo = mol, kg, L below 100 kg; plant = kmol, kg, L from 100 kg), 'lab', 'kilo', "
               "'plant', or units separated by commas, e.g. 'g,mmol,mL' or 't,m3' (from mmol, mol, kmol; mg, g, "
@@ -76,6 +76,12 @@ def units_option(text: str | None) -> str | None:
 
     parse_units(text)
     return text
+
+
+def record_yields_option(record_file: str | None, record_yields: str) -> None:
+    """Refuse ``--record-yields`` other than ``expected`` without ``--record`` (a usage error)."""
+    if record_yields != "expected" and record_file is None:
+        raise click.UsageError("--record-yields applies to a campaign record; give --record FILE too")
 
 
 def write_text_output(text: str, dest: str) -> None:

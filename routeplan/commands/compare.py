@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import (UNITS_HELP, caution_line, check_output_paths, confidence_option, echo_err,
-                                       echo_warnings, finish_outputs, output_set, units_option)
+from routeplan.commands.common import (UNITS_HELP, check_output_paths, confidence_option, echo_caution, echo_warnings,
+                                       finish_outputs, output_set, units_option)
 from routeplan.vocab import YieldCase
 
 
@@ -80,7 +80,7 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
             write_compare_html(cmp, out.file(html_out, suffix=".html"))
     finish_outputs(out)
     if json_out == "-":
-        echo_err(caution_line())
+        echo_caution(err=True)
     else:
         from routeplan.export.compare_out import print_comparison
         from routeplan.views.display_units import choose_units

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import UNITS_HELP, echo_caution, echo_warnings, units_option
+from routeplan.commands.common import UNITS_HELP, echo_caution, echo_warnings, record_yields_option, units_option
 from routeplan.vocab import YieldCase
 
 
@@ -37,8 +37,7 @@ def explain_cmd(route: str, what: tuple[str, ...], target: str | None, stock_fil
     from routeplan.views.derivation_text import charge_text, raw_text, target_text
     from routeplan.views.display_units import plan_units
 
-    if record_yields != "expected" and record_file is None:
-        raise click.UsageError("--record-yields applies to a campaign record; give --record FILE too")
+    record_yields_option(record_file, record_yields)
     if what[0] not in ("target", "raw") and len(what) != 2 or what[0] == "target" and len(what) != 1 \
             or what[0] == "raw" and len(what) != 2:
         raise PlanError(f"cannot read '{' '.join(what)}'", location=Location(key="explain"),

@@ -4,8 +4,8 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import (UNITS_HELP, caution_line, check_output_paths, confidence_option, echo_caution,
-                                       echo_err, echo_warnings, finish_outputs, output_set, units_option)
+from routeplan.commands.common import (UNITS_HELP, check_output_paths, confidence_option, echo_caution, echo_err,
+                                       echo_warnings, finish_outputs, output_set, record_yields_option, units_option)
 from routeplan.vocab import YieldCase
 
 
@@ -67,8 +67,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
 
     check_output_paths(json_out=json_out, xlsx_out=xlsx_out, csv_dir=csv_dir, html_out=html_out)
     units_option(units)
-    if record_yields != "expected" and record_file is None:
-        raise click.UsageError("--record-yields applies to a campaign record; give --record FILE too")
+    record_yields_option(record_file, record_yields)
     amount = None
     if target is not None:
         amount = parse_quantity(target, "mass", where=Location(key="--target"))
@@ -109,7 +108,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     finish_outputs(out)
     if json_out == "-" or quiet:
         echo_warnings(plan.warnings)
-        echo_err(caution_line())
+        echo_caution(err=True)
     else:
         from routeplan.export.terminal import print_plan
         from routeplan.views.display_units import plan_units

@@ -11,7 +11,7 @@ from __future__ import annotations
 import json
 from typing import TYPE_CHECKING, Any
 
-from routeplan.views.compare_text import BEST_MARK, tradeoff
+from routeplan.views.compare_text import tradeoff
 from routeplan.views.compare_words import note_texts, shown_rows
 from routeplan.views.tables import display_quantity
 
@@ -22,7 +22,6 @@ if TYPE_CHECKING:  # pragma: no cover
 
 __all__ = [
     "COMPARE_FORMAT",
-    "BEST_MARK",
     "format_value",
     "comparison_to_dict",
     "comparison_to_json",

@@ -217,7 +217,8 @@ def role_text(row: dict[str, Any]) -> str:
 
     Examples
     --------
-    >>> role_text({"role": "reactant", "limiting": True, "made_in": "S3", "rule": "carried"})
+    >>> role_text({"role": "reactant", "limiting": True, "made_in": "S3", "rule": "carried",
+    ...            "transfer": "transfer the whole mixture"})
     'reactant, limiting reagent, in solution from S3: transfer the whole mixture; mass = content, not weighed'
     >>> role_text({"role": "workup", "limiting": False, "made_in": None, "rule": "volumes",
     ...            "leaves_note": "separated and discarded right after this line, not transferred"})
@@ -229,8 +230,7 @@ def role_text(row: dict[str, Any]) -> str:
     if row.get("leaves_note"):
         parts.append(row["leaves_note"])
     if row["rule"] == "carried":
-        how = row.get("transfer") or "transfer the whole mixture"
-        parts.append(f"in solution from {row['made_in']}: {how}; mass = content, not weighed")
+        parts.append(f"in solution from {row['made_in']}: {row['transfer']}; mass = content, not weighed")
     elif row["rule"] == "gas":
         parts.append("gas: charge the normal volume (0 °C, 101.325 kPa); mass not weighed")
     elif row["made_in"]:
@@ -355,7 +355,7 @@ def _lot_cell(ws, st: Styles, row: dict[str, Any], r: int, mass_f: str | None) -
     else:
         put(ws, r, lot_col, None, st.not_used)
         message = (f"This charge is the reaction mixture of step {row['made_in']} "
-                   f"({row.get('transfer') or 'transfer the whole mixture'}): no lot assay applies." if carried else
+                   f"({row['transfer']}): no lot assay applies." if carried else
                    "A gas is charged by its normal volume: no lot assay applies." if row["rule"] == "gas"
                    else _RECORDED_ONLY)
         ws.data_validation(r, lot_col, r, lot_col, {

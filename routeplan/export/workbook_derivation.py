@@ -31,22 +31,20 @@ _COL = {key: i for i, (_h, key) in enumerate(DERIVATION_COLUMNS)}
 #: Row (0-based) of the column headings.
 DERIVATION_TOP = 5
 
-_OP = {"start": "", "x": "x", "/": "/", "+": "+", "-": "-"}
+#: A factor's operator (``""`` for the first) as a spreadsheet writes it.
+_FORMULA_OP = {"": "", "x": "*", "/": "/", "+": "+", "-": "-"}
 
 
 def result_formula(ops: list[str], cells: list[str]) -> str:
     """The formula of a line: ``x`` and ``/`` apply to the term so far, ``+`` and ``-``
-    start a new one.
+    start a new one; the first factor's ``op`` is ``""``.
 
-    >>> result_formula(["start", "x", "/"], ["F6", "F7", "F8"])
+    >>> result_formula(["", "x", "/"], ["F6", "F7", "F8"])
     '=F6*F7/F8'
-    >>> result_formula(["start", "+", "x", "-"], ["F6", "F7", "F8", "F9"])
+    >>> result_formula(["", "+", "x", "-"], ["F6", "F7", "F8", "F9"])
     '=F6+F7*F8-F9'
     """
-    out = []
-    for op, cell in zip(ops, cells):
-        out.append(cell if op == "start" else {"x": "*", "/": "/", "+": "+", "-": "-"}[op] + cell)
-    return "=" + "".join(out)
+    return "=" + "".join(_FORMULA_OP[op] + cell for op, cell in zip(ops, cells))
 
 
 def write_derivation(ws, st, plan: "Plan", caution: str, context: dict[str, str] | None = None) -> int:
@@ -90,7 +88,7 @@ def write_derivation(ws, st, plan: "Plan", caution: str, context: dict[str, str]
             cells, ops = [], []
             for row in line["rows"]:
                 shown = {"step": block["step"], "order": block["order"], "material": block["material"],
-                         "line": li + 1, "op": _OP[row["op"]], "unit": row["unit"], "what": row["what"],
+                         "line": li + 1, "op": row["op"], "unit": row["unit"], "what": row["what"],
                          "source": row["source"]}
                 for key, value in shown.items():
                     put(ws, r, _COL[key], value, st.integer if key in ("order", "line") else st.cell_text)
@@ -104,11 +102,11 @@ def write_derivation(ws, st, plan: "Plan", caution: str, context: dict[str, str]
                 cells.append(xl_rowcol_to_cell(r, _COL["value"]))
                 ops.append(row["op"])
                 r += 1
-            last = r - 1
-            ws.write_formula(last, _COL["result"], result_formula(ops, cells), st.quantity(line["value"], bold=True),
+            end = r - 1  # the line's last row holds its result
+            ws.write_formula(end, _COL["result"], result_formula(ops, cells), st.quantity(line["value"], bold=True),
                              line["value"])
-            put(ws, last, _COL["result_unit"], line["unit"], st.cell_text)
-            put(ws, last, _COL["result_what"], line["what"], st.cell_text)
+            put(ws, end, _COL["result_unit"], line["unit"], st.cell_text)
+            put(ws, end, _COL["result_what"], line["what"], st.cell_text)
             for key, value in (("result", line["value"]), ("result_unit", line["unit"]),
                                ("result_what", line["what"])):
                 widths[key].append(value)

@@ -128,7 +128,7 @@ def comparison_blocks(cmp: "Comparison", units: "DisplayUnits") -> "list[Block]"
     title = f"Routes to {cmp.target_material}, each planned for {units.mass_text(cmp.amount)} (before overage)"
     higher = [r.short for r in shown if r.better == "higher"]
     out: list[Block] = [Grid(cols, tuple(rows), title=title, strong=frozenset(strong)),
-                        Para(f"{BEST_MARK} best in its row: lower is better, except {' and '.join(higher) or 'none'}.")]
+                        Para(f"{BEST_MARK} best in its row: lower is better, except {join_words(higher) or 'none'}.")]
     out += [Para(f"{row.short}: {row.note}", indent=2) for row in shown if row.note]
     out += [Para(f"note: {note}") for note in note_texts(cmp)]
     out += [blank(), Para(tradeoff(cmp), label="Trade-off:"), blank()]

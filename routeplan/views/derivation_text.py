@@ -1,14 +1,17 @@
 """Derivations for people: one line per chain of factors, and the same as plain data.
 
 Reads only ``plan.derivation`` (:class:`routeplan.plan.derivation.Derivation`, made by the
-plan's own core on recording numbers); nothing is recomputed here.  The ``explain``
-command prints :func:`charge_text`, :func:`target_text` and :func:`raw_text`; the JSON
-writer, the workbook's Derivation sheet and the HTML report take :func:`derivation_rows`
-(one dict per factor) from here, so a number in the report can open its derivation.
+plan's own core on recording numbers); nothing is recomputed here.  Every derivation for
+people is an :class:`Explanation`: the ``explain`` command prints :func:`charge_text`,
+:func:`target_text` and :func:`raw_text`; the HTML report lays out
+:func:`step_explanations`, the workbook's Derivation sheet :func:`sheet_blocks` (the same
+lines as rows for live formulas), and the JSON writer takes :func:`charge_derivations`
+(one dict per factor, as the plan records them).
 """
 
 from __future__ import annotations
 
+from functools import lru_cache
 from typing import TYPE_CHECKING, Any
 
 from routeplan.frozen import frozen
@@ -16,27 +19,22 @@ from routeplan.views.numbers import sig
 from routeplan.views.tables import column_unit, fmt, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
-    from routeplan.plan.derivation import Line
     from routeplan.plan.model import Plan
     from routeplan.views.display_units import DisplayUnits
 
-__all__ = ["FactorView", "LineView", "Explanation", "line_views", "line_text", "lines_text", "charge_lines",
-           "charge_explanation", "charge_text", "target_text", "raw_text", "derivation_rows",
-           "charge_derivations", "plan_derivation_rows", "step_explanations", "sheet_blocks"]
+__all__ = ["FactorView", "LineView", "Explanation", "line_views", "line_text", "charge_explanation",
+           "charge_text", "target_text", "raw_text", "derivation_rows", "charge_derivations",
+           "step_explanations", "sheet_blocks"]
 
 _KIND = {"mol": "amount", "kg": "mass", "L": "volume"}
 
 
-def _num(value: float, digits: int = 6) -> str:
-    """A factor to ``digits`` significant figures, without exponent for everyday sizes."""
-    text = f"{value:.{digits}g}"
+def _num(value: float) -> str:
+    """A factor to 6 significant figures, without exponent for everyday sizes."""
+    text = f"{value:.6g}"
     if "e" in text and 1e-3 <= abs(value) < 1e6:
         text = f"{value:.0f}"
     return text
-
-
-def _with_unit(value: float, unit: str, digits: int = 6) -> str:
-    return _num(value, digits) + (f" {unit}" if unit else "")
 
 
 @frozen
@@ -116,7 +114,8 @@ class Explanation:
     lines : tuple of LineView
     amounts : tuple of (str, float, str, str)
         The plan's numbers this explains: kind (``"n"``, ``"m"``, ``"V"``), value in the
-        base unit (mol, kg, L), text to 4 significant figures and unit shown.
+        base unit (mol, kg, L), text to 4 significant figures and unit shown; empty
+        where the last line is the number itself (the moles of target to make).
     subject : str
         What the numbers are of (``"NaOH50 charged to S3"``).
     notes : tuple of str
@@ -124,8 +123,8 @@ class Explanation:
 
     title: str
     lines: tuple[LineView, ...]
-    amounts: tuple[tuple[str, float, str, str], ...]
-    subject: str
+    amounts: tuple[tuple[str, float, str, str], ...] = ()
+    subject: str = ""
     notes: tuple[str, ...] = ()
 
     @property
@@ -134,9 +133,10 @@ class Explanation:
         return f"= {', '.join(f'{t} {u}' for _k, _v, t, u in self.amounts)} {self.subject}, as in the plan"
 
     def text(self) -> list[str]:
-        """The explanation as the ``explain`` command prints it."""
-        return [self.title] + [f"{i + 1}. {line_text(x)}" for i, x in enumerate(self.lines)] + [self.closing] \
-            + list(self.notes)
+        """The explanation as the ``explain`` command prints it: the title, the numbered
+        lines, the plan's numbers (where it has them) and the notes."""
+        return ([self.title] + [f"{i + 1}. {line_text(x)}" for i, x in enumerate(self.lines)]
+                + ([self.closing] if self.amounts else []) + list(self.notes))
 
 
 def line_views(lines, origins=None, scales: dict[int, tuple[str, float]] | None = None,
@@ -161,14 +161,8 @@ def line_views(lines, origins=None, scales: dict[int, tuple[str, float]] | None 
     return tuple(out)
 
 
-def line_text(line) -> str:
-    """One line: ``25 kg (target mass of HX17, f line 11) x 1.02 (...) / 278.308 g/mol (...) = 91.17 mol HX17 to make``.
-
-    ``line`` is a :class:`LineView`, or a :class:`~routeplan.plan.derivation.Line`
-    (shown in its own unit).
-    """
-    if not isinstance(line, LineView):
-        line = line_views([line])[0]
+def line_text(line: LineView) -> str:
+    """One line: ``25 kg (target mass of HX17, f line 11) x 1.02 (...) / 278.308 g/mol (...) = 91.17 mol HX17 to make``."""
     parts = []
     for f in line.factors:
         text = f.text + (f" {f.unit}" if f.unit else "")
@@ -178,11 +172,6 @@ def line_text(line) -> str:
             text += f" ({f.what}, {f.source})" if f.source else f" ({f.what})"
         parts.append(f"{f.op} {text}" if f.op else text)
     return " ".join(parts) + f" = {line.result} {line.unit} {line.what}"
-
-
-def lines_text(lines, scales: dict[int, tuple[str, float]] | None = None, number=fmt) -> list[str]:
-    """Numbered lines of a derivation."""
-    return [f"{i + 1}. {line_text(x)}" for i, x in enumerate(line_views(lines, scales=scales, number=number))]
 
 
 def _step_scales(plan: "Plan", step: str, units: "DisplayUnits | None" = None) -> dict[str, tuple[str, float]]:
@@ -198,14 +187,6 @@ def _step_scales(plan: "Plan", step: str, units: "DisplayUnits | None" = None) -
     for unit, col in (("mol", "mol"), ("kg", "mass_kg"), ("L", "volume_L")):
         out[unit] = column_unit([r[col] for r in rows], _KIND[unit])
     return out
-
-
-def charge_lines(plan: "Plan", step: str, material: str):
-    """The derivation lines of ``material``'s charge in ``step`` (PlanError with the nearest names)."""
-    from routeplan.plan.derivation import find_charge
-
-    index = find_charge(plan.route, step, material)
-    return index, plan.derivation.charge(step, index)
 
 
 def charge_explanation(plan: "Plan", step: str, index: int, *, within_step: bool = False,
@@ -226,14 +207,12 @@ def charge_explanation(plan: "Plan", step: str, index: int, *, within_step: bool
     scales = _step_scales(plan, step, units)
     own = {d.named[k]: k[3] for k in keys}  # a carried line's "V" is the mixture carried in
     where = {o: i for i, o in enumerate(origins)}
-    shown = {i: scales[line.unit] for i, line in enumerate(lines)
-             if origins[i] in {d.named[k] for k in keys} and line.unit in scales}
+    shown = {i: scales[line.unit] for i, line in enumerate(lines) if origins[i] in own and line.unit in scales}
     views = line_views(lines, origins, shown, {where[o]: x for o, x in own.items()}, number)
     amounts = []
-    for kind, unit, q in (("n", "mol", c.mol), ("m", "kg", c.mass), ("V", "L", c.volume)):
-        if q is not None:
+    for kind, unit, value in (("n", "mol", c.n_mol), ("m", "kg", c.m_kg), ("V", "L", c.V_L)):
+        if value is not None:
             name, factor = scales[unit]
-            value = q.m_as(unit)
             amounts.append((kind, value, number(value / factor), name))
     subject = f"{c.material} charged to {step}"
     notes = ()
@@ -254,7 +233,8 @@ def charge_text(plan: "Plan", step: str, material: str, units: "DisplayUnits | N
 
 def target_text(plan: "Plan") -> list[str]:
     """The derivation of the moles of target to make."""
-    return [f"{plan.target_material}: moles to make"] + lines_text(plan.derivation.chain(("target",)))
+    return Explanation(f"{plan.target_material}: moles to make",
+                       line_views(plan.derivation.chain(("target",)))).text()
 
 
 def raw_text(plan: "Plan", material: str, units: "DisplayUnits | None" = None) -> list[str]:
@@ -268,10 +248,10 @@ def raw_text(plan: "Plan", material: str, units: "DisplayUnits | None" = None) -
         scale, number = column_unit([r.m_kg for r in plan.raw_materials], "mass"), fmt
     else:
         scale, number = (units.mass.symbol, units.mass.factor), sig
-    total = next(r for r in plan.raw_materials if r.material == material)
-    return ([f"{material} over the campaign: how the plan gets its mass"]
-            + lines_text(lines, {len(lines) - 1: scale}, number)
-            + [f"= {number(total.m_kg / scale[1])} {scale[0]} {material} over the campaign, as in the plan"])
+    total = next(r for r in plan.raw_materials if r.material == material).m_kg
+    return Explanation(f"{material} over the campaign: how the plan gets its mass",
+                       line_views(lines, scales={len(lines) - 1: scale}, number=number),
+                       (("m", total, number(total / scale[1]), scale[0]),), f"{material} over the campaign").text()
 
 
 def derivation_rows(lines) -> list[dict[str, Any]]:
@@ -292,22 +272,6 @@ def charge_derivations(plan: "Plan", step: str) -> list[list[dict[str, Any]]]:
         return []
     sp = plan.step(step)
     return [derivation_rows(plan.derivation.charge(step, i)) for i in range(len(sp.charges))]
-
-
-def plan_derivation_rows(plan: "Plan") -> list[dict[str, Any]]:
-    """Flat rows for a sheet or a report: step, charge, line, op, value, unit, what, source, result."""
-    rows = []
-    if plan.derivation is None:
-        return rows
-    for sp in plan.steps:
-        for i, c in enumerate(sp.charges):
-            for k, line in enumerate(plan.derivation.charge(sp.id, i)):
-                for f in line.factors:
-                    rows.append({"step": sp.id, "order": i + 1, "material": c.material, "line": k + 1,
-                                 "op": f.op, "value": f.value, "unit": f.unit, "what": f.what,
-                                 "source": f.source, "result": line.value, "result_unit": line.unit,
-                                 "result_what": line.what})
-    return rows
 
 
 def step_explanations(plan: "Plan"):
@@ -341,9 +305,11 @@ def step_explanations(plan: "Plan"):
 UNIT_CONVERSION_SOURCE = "SI prefixes (NIST SP 811)"
 
 
-def _conversion(units: list[tuple[str, str]], result_unit: str) -> tuple[float, str]:
+@lru_cache(maxsize=None)
+def _conversion(units: tuple[tuple[str, str], ...], result_unit: str) -> tuple[float, str]:
     """The number that turns the product of ``units`` (op, unit) into ``result_unit``, and the
-    product's unit as text (``"kg·mol/g"``); pint's unit definitions (NIST SP 811)."""
+    product's unit as text (``"kg·mol/g"``); pint's unit definitions (NIST SP 811).  A
+    route has few distinct products of units: each is worked out once."""
     from routeplan.units import Q
 
     q = Q(1.0, "")
@@ -357,12 +323,12 @@ def sheet_blocks(plan: "Plan") -> list[dict[str, Any]]:
 
     One block per charge that has a derivation, in the plan's order of steps and charges:
     ``{"step", "order", "material", "lines"}``; each line ``{"rows", "value", "unit",
-    "what", "amount", "origin"}`` (``value`` [``unit``] the result, ``amount`` ``n``/``m``/
-    ``V`` where it is the plan's number of the charge); each row one factor ``{"op",
-    "value", "unit", "what", "source", "ref", "at"}``: ``ref`` the index of an earlier
-    line of the same block whose result it is, ``at`` the (block, line) that derives it
-    with another step.  The lines stop at their step, as in the report
-    (:func:`charge_explanation` ``within_step``).
+    "what", "amount"}`` (``value`` [``unit``] the result, ``amount`` ``n``/``m``/``V``
+    where it is the plan's number of the charge); each row one factor ``{"op", "value",
+    "unit", "what", "source", "ref", "at"}`` (``op`` as :attr:`FactorView.op`, ``""`` for
+    the first): ``ref`` the index of an earlier line of the same block whose result it
+    is, ``at`` the (block, line) that derives it with another step.  The lines stop at
+    their step, as in the report (:func:`charge_explanation` ``within_step``).
 
     Where the product of a line's units is not the result's unit (kg / (g/mol) is 1000
     mol), a row ``x 1000 (unit conversion ...)`` follows, so that the product of the
@@ -370,15 +336,11 @@ def sheet_blocks(plan: "Plan") -> list[dict[str, Any]]:
     the first: ``x`` and ``/`` apply to the term so far, ``+`` and ``-`` start a new term.
     """
     shown, first = step_explanations(plan)
-    blocks: list[dict[str, Any]] = []
-    for _si, sid, _ci, c, ex in shown:
-        lines = [{"value": line.value, "unit": line.base_unit, "what": line.what, "amount": line.amount,
-                  "origin": line.origin, "factors": line.factors} for line in ex.lines]
-        blocks.append({"step": sid, "order": c.order, "material": c.material, "lines": lines})
-    for block in blocks:
-        for line in block["lines"]:
-            line["rows"] = _sheet_rows(line.pop("factors"), line["unit"], first)
-    return blocks
+    return [{"step": sid, "order": c.order, "material": c.material,
+             "lines": [{"rows": _sheet_rows(line.factors, line.base_unit, first), "value": line.value,
+                        "unit": line.base_unit, "what": line.what, "amount": line.amount}
+                       for line in ex.lines]}
+            for _si, sid, _ci, c, ex in shown]
 
 
 def _sheet_rows(factors, result_unit: str, first: dict[int, tuple[int, int]]) -> list[dict[str, Any]]:
@@ -388,7 +350,7 @@ def _sheet_rows(factors, result_unit: str, first: dict[int, tuple[int, int]]) ->
 
     def close_term() -> None:
         if term:
-            factor, product = _conversion(term, result_unit)
+            factor, product = _conversion(tuple(term), result_unit)
             if abs(factor - 1.0) > 1e-12:
                 rows.append({"op": "x", "value": factor, "unit": "",
                              "what": f"unit conversion: {product or '1'} to {result_unit or '1'}",
@@ -399,7 +361,7 @@ def _sheet_rows(factors, result_unit: str, first: dict[int, tuple[int, int]]) ->
         if f.op in ("+", "-"):
             close_term()
         term.append(("/" if f.op == "/" else "x", f.unit))
-        rows.append({"op": f.op or "start", "value": f.value, "unit": f.unit, "what": f.what, "source": f.source,
+        rows.append({"op": f.op, "value": f.value, "unit": f.unit, "what": f.what, "source": f.source,
                      "ref": f.ref, "at": None if f.elsewhere is None else first[f.elsewhere]})
     close_term()
     return rows

@@ -37,11 +37,10 @@ def metrics_lines(m: "Metrics", target: str) -> list[str]:
         and E-factors [kg/kg], atom economy and reaction mass efficiency in %, cost
         [currency/kg].
     """
-    tgt = target
     lines = [
         "",
         "Mass efficiency and cost (per kg of target as delivered)",
-        f"  process mass intensity (PMI): {share(m.pmi)} kg/kg (raw materials per kg of {tgt})",
+        f"  process mass intensity (PMI): {share(m.pmi)} kg/kg (raw materials per kg of {target})",
         f"  E-factor: complete {share(m.e_factor_complete)} kg/kg (PMI − 1), "
         f"simple {share(m.e_factor_simple)} kg/kg (solvents and water left out)",
         "  step PMI, kg/kg (inputs per kg of the step's own product; these do not add up): "
@@ -57,15 +56,15 @@ def metrics_lines(m: "Metrics", target: str) -> list[str]:
         lines.append("  raw-material cost: not computed (no raw material has a price)")
     elif m.unpriced:
         lines.append(f"  raw-material cost: at least {money(m.cost_per_kg)} {m.currency} "
-                     f"per kg of {tgt}, priced materials only; no price for: " + ", ".join(m.unpriced))
+                     f"per kg of {target}, priced materials only; no price for: " + ", ".join(m.unpriced))
     else:
-        lines.append(f"  raw-material cost: {money(m.cost_per_kg)} {m.currency} per kg of {tgt}")
+        lines.append(f"  raw-material cost: {money(m.cost_per_kg)} {m.currency} per kg of {target}")
     top = sorted(m.mass_per_kg_target.items(), key=lambda kv: -kv[1])[:5]
     if top:
-        lines.append(f"  largest raw materials, kg per kg of {tgt}: "
+        lines.append(f"  largest raw materials, kg per kg of {target}: "
                      + " · ".join(f"{k} {share(v)}" for k, v in top))
     if m.from_stock_per_kg_target:
-        lines.append(f"  intermediates from stock, counted as inputs in the PMI and E-factors, kg per kg of {tgt}: "
+        lines.append(f"  intermediates from stock, counted as inputs in the PMI and E-factors, kg per kg of {target}: "
                      + " · ".join(f"{k} {share(v)}" for k, v in m.from_stock_per_kg_target.items()))
     lls = " → ".join(m.longest_linear_sequence)
     plural = "s" if m.step_count != 1 else ""

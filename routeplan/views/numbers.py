@@ -27,7 +27,7 @@ from __future__ import annotations
 import math
 
 
-__all__ = ["sig", "share", "pct", "money", "QUANTITY_FIGURES", "SHARE_FIGURES"]
+__all__ = ["sig", "share", "pct", "money", "grouped", "QUANTITY_FIGURES", "SHARE_FIGURES"]
 
 #: Significant figures of a quantity with a unit [-].
 QUANTITY_FIGURES = 4
@@ -40,8 +40,13 @@ _EXPONENT_BELOW = 1e-4
 _EXPONENT_FROM = 1e15
 
 
-def _grouped(whole: int) -> str:
-    """A whole number with its digits in groups of three, separated by a space."""
+def grouped(whole: int) -> str:
+    """A whole number with its digits in groups of three, separated by a space (a count
+    such as the number of yield draws is written so too).
+
+    >>> grouped(100000), grouped(-1234567)
+    ('100 000', '-1 234 567')
+    """
     text = f"{abs(whole):,}".replace(",", " ")
     return ("-" if whole < 0 else "") + text
 
@@ -75,7 +80,7 @@ def sig(value: float | None, figures: int = QUANTITY_FIGURES) -> str:
     exponent = math.floor(math.log10(mag))
     rounded = round(value, figures - 1 - exponent)
     if abs(rounded) >= _GROUP_FROM:
-        return _grouped(int(rounded))
+        return grouped(int(rounded))
     if abs(rounded) >= 10 ** figures:  # whole, its last digits holding the place (1234 at 3 figures: 1230)
         return str(int(rounded))
     text = f"{rounded:#.{figures}g}"

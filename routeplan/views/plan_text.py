@@ -189,14 +189,14 @@ def yield_blocks(plan: "Plan") -> list[Para]:
     the overall yield; those that do not are named together in the same line.
     """
     oy = plan.overall_yield
-    text = (f"Overall yield along the longest linear sequence ({' -> '.join(oy.longest_linear_sequence)}): "
-            f"{pct(oy.yield_)}")
+    overall = pct(oy.yield_)
+    text = f"Overall yield along the longest linear sequence ({' -> '.join(oy.longest_linear_sequence)}): {overall}"
     if oy.low is not None and (oy.low, oy.high) != (oy.yield_, oy.yield_):
         text += f" ({pct(oy.low)} to {pct(oy.high)} with the steps' low and high yields)"
     out = [Para(text)]
-    overall = pct(oy.yield_)
-    differ = [(k, pct(y)) for k, y in oy.by_raw_material.items() if pct(y) != overall]
-    same = [k for k, y in oy.by_raw_material.items() if pct(y) == overall]
+    shown = [(k, pct(y)) for k, y in oy.by_raw_material.items()]
+    differ = [(k, y) for k, y in shown if y != overall]
+    same = [k for k, y in shown if y == overall]
     if differ:
         line = "from the starting materials: " + " · ".join(f"{k} {y}" for k, y in differ)
         if same:

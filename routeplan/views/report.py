@@ -271,23 +271,24 @@ def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
 
     facts = []
     if sp.runs:
-        pm = sp.product_mass.m_as("kg")
+        pm = sp.product_m_kg
         how = "as isolated" if sp.isolated else "in solution, carried on"
-        facts.append(("makes", f"{fmt(sp.product_mol.m_as('mol'))} mol {sp.product} "
+        facts.append(("makes", f"{fmt(sp.product_n_mol)} mol {sp.product} "
                                f"({display_quantity(pm, 'mass')} {how})"))
         b = sp.batch
         if b is not None:
             n = b.batches
-            text = f"{n} batch{'es' if n != 1 else ''} of {fmt(b.batch_volume.m_as('L'))} L"
+            text = f"{n} batch{'es' if n != 1 else ''} of {fmt(b.batch_V_L)} L"
             if b.vessel is not None:
                 text += f" in {b.vessel}"
                 if b.fill_fraction is not None:
                     text += f", fill {b.fill_fraction:.0%} of nominal volume"
             facts.append(("batches", text))
-            if b.limiting_mass is not None and n > 1:
-                facts.append(("per batch", f"{display_quantity(b.limiting_mass.m_as('kg'), 'mass')} of "
+            limiting_kg = b.per_batch(b.limiting_m_kg)
+            if limiting_kg is not None and n > 1:
+                facts.append(("per batch", f"{display_quantity(limiting_kg, 'mass')} of "
                                            f"{sp.limiting} charged, "
-                                           f"{display_quantity(b.product_mass.m_as('kg'), 'mass')} of "
+                                           f"{display_quantity(b.per_batch(b.product_m_kg), 'mass')} of "
                                            f"{sp.product} made"))
             for note in batch_notes(sp, SETS["kilo"], plan.route):
                 facts.append(("note", note))
@@ -296,8 +297,8 @@ def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
             facts.append(("goes on", transfer))
     else:
         facts.append(("not run", sp.not_run))
-    if sp.from_stock_mass is not None and sp.from_stock_mass.m_as("kg") > 0:
-        facts.append(("from stock", f"{display_quantity(sp.from_stock_mass.m_as('kg'), 'mass')} of "
+    if sp.stock_m_kg is not None and sp.stock_m_kg > 0:
+        facts.append(("from stock", f"{display_quantity(sp.stock_m_kg, 'mass')} of "
                                     f"{sp.product} taken from stock"))
     if sp.notes:
         facts.append(("notes", sp.notes))
@@ -426,16 +427,16 @@ def _step_sections(plan: "Plan", sp: "StepPlan") -> tuple[Section, ...]:
 
 def chart_data(plan: "Plan") -> ChartData:
     """The chart series of ``plan`` (see :class:`ChartData`)."""
-    target = plan.target_mass.m_as("kg")
+    target = plan.target_kg
     m = plan.metrics
-    by_material = sorted(((r.material, r.mass.m_as("kg") / target) for r in plan.raw_materials),
+    by_material = sorted(((r.material, r.m_kg / target) for r in plan.raw_materials),
                          key=lambda kv: -kv[1])
     by_step = []
     for sp in plan.steps:
         parts: dict[str, float] = {}
         for c in sp.charges:
             if not c.intermediate:
-                parts[c.material] = parts.get(c.material, 0.0) + c.mass.m_as("kg") / target
+                parts[c.material] = parts.get(c.material, 0.0) + c.m_kg / target
         by_step.append((sp.id, tuple(parts.items())))
     costs = sorted(((r.material, r.cost) for r in plan.raw_materials if r.cost is not None), key=lambda kv: -kv[1])
     unpriced = tuple(r.material for r in plan.raw_materials if r.cost is None) if plan.route.currency else ()
@@ -495,10 +496,11 @@ def _metrics_lines(plan: "Plan") -> tuple[str, ...]:
 def _safety_facts(plan: "Plan") -> list[tuple[str, str, str, float | None]]:
     """Summary cards a safety review reads first: the highest criticality class and the
     steps not screened (never silently safe), and how many warnings the plan has."""
-    running = [sp for sp in plan.steps if sp.safety is not None and sp.safety.runs]
+    from routeplan.views.safety_text import safety_steps
+
+    running, unscreened = safety_steps(plan)
     classed = [(sp.safety.thermal.criticality_class, sp.id) for sp in running
                if sp.safety.thermal is not None and sp.safety.thermal.criticality_class is not None]
-    unscreened = [sp.id for sp in running if not sp.safety.screened]
     parts = []
     top = None
     if classed:
@@ -533,14 +535,14 @@ def plan_report(plan: "Plan") -> Report:
         Rows, sentences and chart series; numbers are the Plan's.
     """
     route = plan.route
-    tm = plan.target_mass.m_as("kg")
+    tm = plan.target_kg
     overage = route.target.overage
     oy = plan.overall_yield
     summary = [
         ("target", f"{fmt(tm)} kg of {plan.target_material}"
                    + (f" ({fmt(tm / (1 + overage))} kg + {overage * 100:.3g} % overage)" if overage else ""),
          "target_mass_kg", tm),
-        ("amount", f"{fmt(plan.target_mol.m_as('mol'))} mol", "target_mol", plan.target_mol.m_as("mol")),
+        ("amount", f"{fmt(plan.target_n_mol)} mol", "target_mol", plan.target_n_mol),
         ("steps", f"{len(plan.steps)}; longest linear sequence {len(oy.longest_linear_sequence)} "
                   f"({' → '.join(oy.longest_linear_sequence)})", "steps", float(len(plan.steps))),
         ("overall yield", f"{oy.yield_:.1%}"

@@ -31,6 +31,7 @@ __all__ = [
     "gas_charges",
     "safety_rows",
     "safety_summary_rows",
+    "safety_steps",
 ]
 
 #: What every safety section says of its own figures.
@@ -220,20 +221,25 @@ def safety_rows(plan: "Plan") -> list[dict[str, Any]]:
     return rows
 
 
+def safety_steps(plan: "Plan") -> tuple[list, list[str]]:
+    """The running steps that have a safety screening, and the ids of those among them
+    without thermal data (not screened, never silently safe)."""
+    running = [sp for sp in plan.steps if sp.safety is not None and sp.safety.runs]
+    return running, [sp.id for sp in running if not sp.safety.screened]
+
+
 def safety_summary_rows(plan: "Plan") -> list[dict[str, Any]]:
     """The route-level safety summary: one ``{"step", "text"}`` row per running step,
     then a row that names the steps not screened."""
     rows = []
-    for sp in plan.steps:
+    running, unscreened = safety_steps(plan)
+    for sp in running:
         s = sp.safety
-        if s is None or not s.runs:
-            continue
         parts = ["heat: " + heat_text(sp)]
         parts += ["gas evolved: " + gas_evolved_text(sp, g) for g in s.gas_evolved]
         parts += ["gas taken up: " + gas_taken_up_text(g) for g in s.gas_taken_up]
         parts += ["vent: " + vent_text(g) for g in (*s.gas_evolved, *s.gas_taken_up) if g.vent]
         rows.append({"step": sp.id, "text": "; ".join(parts)})
-    unscreened = [sp.id for sp in plan.steps if sp.safety is not None and sp.safety.runs and not sp.safety.screened]
     rows.append({"step": "", "text": ("not screened (no thermal data): " + ", ".join(unscreened)) if unscreened
                  else "every step that runs has thermal data"})
     return rows

@@ -2,7 +2,7 @@
 
 Reads ``plan.schedule`` (:mod:`routeplan.plan.schedule`) only; it computes no time of its
 own.  :func:`timeline_data` is the data a chart draws (one lane per vessel, one bar per
-batch); :func:`schedule_lines` draws the same lanes as plain text for the terminal;
+batch); :func:`schedule_parts` draws the same lanes as plain text for the terminal;
 :func:`batch_rows` and :func:`vessel_rows` are the tables of the workbook and the CSV.
 """
 
@@ -24,7 +24,6 @@ __all__ = [
     "vessel_rows",
     "schedule_missing_text",
     "pace_text",
-    "schedule_lines",
     "schedule_parts",
 ]
 
@@ -146,31 +145,13 @@ def _ticks(campaign_h: float) -> float:
     return float(10 ** len(str(int(campaign_h / 6))))
 
 
-def schedule_lines(plan: "Plan", *, width: int = 64) -> list[str]:
-    """The schedule as plain text lines: a lane per vessel, an hour axis, then a line per step.
+def schedule_parts(plan: "Plan", *, width: int = 64) -> tuple[str, list[str], list[str]]:
+    """The schedule in three parts: its heading, the drawn lanes with the hour axis (to be
+    laid out as they are, never folded), and the sentences under them, a line per step.
 
     In a lane each batch is drawn from ``|`` with its step id (and ``#k`` for batch k of
     several), ``.`` is the vessel idle between two of its batches.  Without a schedule,
     one line says why.
-
-    Parameters
-    ----------
-    plan : Plan
-    width : int
-        Columns for the whole campaign [-].
-
-    Returns
-    -------
-    list of str
-        Lines without markup (:func:`schedule_parts` joined).
-    """
-    head, lanes, rest = schedule_parts(plan, width=width)
-    return [head, *lanes, *rest]
-
-
-def schedule_parts(plan: "Plan", *, width: int = 64) -> tuple[str, list[str], list[str]]:
-    """The schedule in three parts: its heading, the drawn lanes with the hour axis (to be
-    laid out as they are, never folded), and the sentences under them.
 
     Parameters
     ----------

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
-from routeplan.views import numbers
+from routeplan.views.numbers import grouped, pct
 from routeplan.views.tables import display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -34,18 +34,9 @@ NO_UNCERTAINTY = "no step gives a yield range (low, high), so the route carries 
 BARS = " ▁▂▃▄▅▆▇█"
 
 
-def _pct(x: float) -> str:
-    return numbers.pct(x)
-
-
 def _level(x: float) -> str:
     """A confidence as people write it: ``90 %``, ``97.5 %``."""
     return f"{100 * x:g} %"
-
-
-def _count(n: int) -> str:
-    """A whole number with thin groups of three: ``100 000``."""
-    return f"{n:,}".replace(",", " ")
 
 
 def sparkline(counts, bars: str = BARS) -> str:
@@ -107,7 +98,7 @@ def uncertainty_lines(plan: "Plan", units: "DisplayUnits | None" = None) -> list
         return display_quantity(value, "mass", units=units)
 
     req = kg(u.required_kg)
-    head = (f"Yield uncertainty ({u.distribution}, {_count(u.draws)} draws, seed {u.seed}), "
+    head = (f"Yield uncertainty ({u.distribution}, {grouped(u.draws)} draws, seed {u.seed}), "
             "delivered as isolated by the plan at expected yields:")
     if not u.carries_uncertainty:
         return [head,
@@ -122,7 +113,7 @@ def uncertainty_lines(plan: "Plan", units: "DisplayUnits | None" = None) -> list
         f"  {kg(u.histogram_edges_kg[0])} {sparkline(u.histogram_counts)} "
         f"{kg(u.histogram_edges_kg[-1])}   (draws per bin)",
         "  " + " · ".join(f"P{100 * lv:.0f} {kg(v)}" for lv, v in u.quantiles_kg),
-        f"  probability of delivering {req}: {_pct(u.probability_of_target)}",
+        f"  probability of delivering {req}: {pct(u.probability_of_target)}",
         f"  to be {_level(u.confidence)} sure of {req}: plan --target "
         f"\"{target_option(u.target_kg, units)}\" (before overage) and buy, at that confidence:",
     ]
@@ -130,7 +121,7 @@ def uncertainty_lines(plan: "Plan", units: "DisplayUnits | None" = None) -> list
         lines.append(f"    {material}: {kg(need)}")
     if u.contributions:
         lines.append("  share of the spread by step (squared correlation of its yield with the delivered mass): "
-                     + ", ".join(f"{sid} {_pct(share)}" for sid, share in u.contributions))
+                     + ", ".join(f"{sid} {pct(share)}" for sid, share in u.contributions))
     for note in uncertainty_notes(u):
         lines.append(f"  note: {note}")
     return lines
@@ -159,7 +150,7 @@ def uncertainty_fact_rows(plan: "Plan") -> list[dict[str, Any]]:
     u = plan.uncertainty
     if u is None:
         return []
-    rows = [_fact("draws", "draws", f"{_count(u.draws)} {u.distribution} draws, seed {u.seed}")]
+    rows = [_fact("draws", "draws", f"{grouped(u.draws)} {u.distribution} draws, seed {u.seed}")]
     if not u.carries_uncertainty:
         rows.append(_fact("no_uncertainty", "yield uncertainty", NO_UNCERTAINTY))
         return rows

@@ -82,6 +82,19 @@ def test_help_names_the_choices():
     assert "--units" in out and "g,mmol,mL" in " ".join(out.split())
 
 
+def test_the_units_help_states_the_sets_and_thresholds_of_the_module():
+    # the help text is written out in commands/common (so that --help loads no view); it
+    # must say what this module does: each set's units, the thresholds, the units offered
+    from routeplan.commands.common import UNITS_HELP
+
+    for name, u in SETS.items():
+        assert f"{name} = {u.amount.symbol}, {u.mass.symbol}, {u.volume.symbol} " in UNITS_HELP
+    assert f"mL below {LAB_BELOW_KG:g} kg of target;" in UNITS_HELP
+    assert f"L below {PLANT_FROM_KG:g} kg;" in UNITS_HELP and f"L from {PLANT_FROM_KG:g} kg)" in UNITS_HELP
+    for units in UNITS.values():
+        assert ", ".join("m3" if u.symbol == "m³" else u.symbol for u in units) in UNITS_HELP
+
+
 @pytest.mark.parametrize("units", ["lab", "plant", "t,m3"])
 def test_explain_closes_on_the_numbers_plan_prints_in_the_same_units(units):
     # the last line of explain is the plan's own row, digit for digit, whatever the units
