@@ -588,7 +588,7 @@ def compare_plans(plans: Sequence["Plan"], notes: Sequence[CompareNote] = ()) ->
     labels = _labels(plans)
     rows = _unranked_without_ranges(plans, _rows(plans))
     currencies = {p.route.currency for p in plans}
-    amounts = [p.target_mass.m_as("kg") / (1 + p.route.target.overage) for p in plans]
+    amounts = [p.asked_kg for p in plans]
     if any(not math.isclose(a, amounts[0], rel_tol=1e-9) for a in amounts):
         raise CompareError("plans for different target masses cannot be compared ("
                            + ", ".join(f"{who(p.route)} {a:.6g} kg" for p, a in zip(plans, amounts)) + ")",

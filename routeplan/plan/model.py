@@ -525,6 +525,11 @@ class Plan:
     target_mass = _Quantity("target_kg", "kg", "Mass delivered, as isolated, including overage [kg].")
     target_mol = _Quantity("target_n_mol", "mol", "Moles of pure target [mol].")
 
+    @property
+    def asked_kg(self) -> float:
+        """Mass asked for, before the overage [kg]: the number ``--target`` takes."""
+        return self.target_kg / (1 + self.route.target.overage)
+
     @functools.cached_property
     def _steps_by_id(self) -> Mapping[str, StepPlan]:
         return {s.id: s for s in self.steps}

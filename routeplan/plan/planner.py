@@ -56,6 +56,13 @@ class Draft:
 
         return Q(self.target_kg, unit("kg"))
 
+    @property
+    def asked_kg(self) -> float:
+        """Mass asked for, before the overage [kg]: :attr:`Plan.asked_kg`, read from its one home."""
+        from routeplan.plan.model import Plan
+
+        return Plan.asked_kg.fget(self)
+
 
 def _amount_kg(route: "Route", target) -> float:
     """The target amount before overage [kg], from a Quantity, a string or the route."""

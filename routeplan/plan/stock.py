@@ -70,7 +70,7 @@ def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]", 
     on_hand, read_from = load_stock(plan.route, stock)
     source = read_from or source
     # on the --target basis: the amount before overage, which the plan scales by (1 + overage)
-    target = plan.target_mass / (1 + plan.route.target.overage)
+    target = plan.asked_kg * unit("kg")
     best_ratio, limited_by = None, None
     to_buy = []
     from routeplan.plan.purchase import with_packs

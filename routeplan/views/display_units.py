@@ -255,4 +255,4 @@ def choose_units(target_kg: float, text: str | None = None) -> DisplayUnits:
 def plan_units(plan, text: str | None = None) -> DisplayUnits:
     """The units of ``plan``: :func:`choose_units` for its target as requested (before
     overage, the mass ``--target`` takes) [kg]."""
-    return choose_units(plan.target_kg / (1 + plan.route.target.overage), text)
+    return choose_units(plan.asked_kg, text)

@@ -38,7 +38,7 @@ def header_text(plan: "Plan", u: DisplayUnits) -> str:
     """The first line: route, target as delivered (and as asked, with the overage), steps."""
     tm = plan.target_kg
     overage = plan.route.target.overage
-    asked = f"{u.mass_text(tm / (1 + overage))} + {overage * 100:g} % overage, " if overage else ""
+    asked = f"{u.mass_text(plan.asked_kg)} + {overage * 100:g} % overage, " if overage else ""
     text = (f"{plan.route.name}: {u.mass_text(tm)} of {plan.target_material} ({asked}"
             f"{u.amount_text(plan.target_n_mol)}), {_plural(len(plan.steps), 'step')}")
     if plan.yield_basis != "expected":

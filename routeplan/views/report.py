@@ -484,12 +484,9 @@ def _raw_table(plan: "Plan") -> Table:
 def _metrics_lines(plan: "Plan") -> tuple[str, ...]:
     if plan.metrics is None:
         return ()
-    import re
-
     from routeplan.views.metrics_text import metrics_lines
 
-    # the terminal's lines, with rich's markup taken off ([bold]...[/bold])
-    lines = [re.sub(r"\[/?bold\]", "", x).replace("\\[", "[") for x in metrics_lines(plan.metrics, plan.target_material)]
+    lines = metrics_lines(plan.metrics, plan.target_material)  # the terminal's lines, plain text
     return tuple(x.strip() for x in lines if x.strip())[1:]
 
 
@@ -540,7 +537,7 @@ def plan_report(plan: "Plan") -> Report:
     oy = plan.overall_yield
     summary = [
         ("target", f"{fmt(tm)} kg of {plan.target_material}"
-                   + (f" ({fmt(tm / (1 + overage))} kg + {overage * 100:.3g} % overage)" if overage else ""),
+                   + (f" ({fmt(plan.asked_kg)} kg + {overage * 100:.3g} % overage)" if overage else ""),
          "target_mass_kg", tm),
         ("amount", f"{fmt(plan.target_n_mol)} mol", "target_mol", plan.target_n_mol),
         ("steps", f"{len(plan.steps)}; longest linear sequence {len(oy.longest_linear_sequence)} "

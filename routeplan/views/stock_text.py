@@ -60,8 +60,7 @@ def stock_lines(plan, units=None) -> list[str]:
         lines.append("  in stock, not needed for this target (charged only in steps that do not run): "
                      + ", ".join(idle))
     if s.to_buy:
-        asked = plan.target_mass.m_as("kg") / (1 + overage)
-        lines.append(f"To buy for {mass(asked)} of {tgt}"
+        lines.append(f"To buy for {mass(plan.asked_kg)} of {tgt}"
                      + (f" ({mass(plan.target_kg)} with the overage)"
                         if overage else "") + ":")
         for key, need in s.to_buy:

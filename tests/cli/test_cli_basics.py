@@ -35,7 +35,7 @@ def test_import_pulls_in_nothing_heavy():
 
 
 def test_help_is_fast():
-    # a loose guard (the ratio to a bare "import click" is measured in bench/startup_bench.py):
+    # a loose guard (the ratio to a bare "import click" is measured in bench/engine_bench.py):
     # in-process, importing the command line and printing the help costs a small multiple of
     # importing click itself, measured side by side so that a loaded machine slows both
     code = ("import time; t=time.perf_counter(); from routeplan.cli import cli; "
