@@ -306,6 +306,8 @@ def scheme_layout(plan: "Plan") -> Scheme:
     """
     import networkx as nx
 
+    from routeplan.route.graph import topological_order
+
     g = _scheme_graph(plan)
     position = {f"s:{sp.id}": i for i, sp in enumerate(plan.steps)}
 
@@ -313,7 +315,7 @@ def scheme_layout(plan: "Plan") -> Scheme:
         d = g.nodes[n]
         return (position.get(f"s:{d.get('step')}", 0), n)
 
-    order = list(nx.lexicographical_topological_sort(g, key=rank))
+    order = topological_order(g, rank)
     layer = _layers(g, order)
 
     # long arrows bend through a lane in every layer they cross
