@@ -75,8 +75,9 @@ def _legend(plan: "Plan") -> str:
     """What the columns and marks of the step tables mean: only the marks the plan uses."""
     charges = [c for sp in plan.steps for c in sp.charges]
     parts = ["n: amount of the compound, m: mass and V: volume as charged"]
-    if any(c.intermediate for c in charges):
-        parts.append("(S1) after a material: made in step S1")
+    made = [plan.route.maker[c.material] for c in charges if c.intermediate and c.material in plan.route.maker]
+    if made:  # the mark explained with a step of this route
+        parts.append(f"({made[0]}) after a material: made in step {made[0]}")
     if any(c.carried_from is not None for c in charges):
         parts.append("in solution: V is the reaction mixture carried in")
     if any(c.leaves for c in charges):

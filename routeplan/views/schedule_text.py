@@ -172,7 +172,8 @@ def schedule_parts(plan: "Plan", *, width: int = 64) -> tuple[str, list[str], li
     per_col = s.campaign_h / width
     names = [lane_name(v.vessel, v.steps) for v in s.vessels]
     pad = max(len(n) for n in names)
-    head = ("Schedule (one lane per vessel; |S1 marks the start of a batch of S1, "
+    first = next(sp.id for sp in plan.steps if sp.runs)  # the mark explained with a step of this route
+    head = (f"Schedule (one lane per vessel; |{first} marks the start of a batch of {first}, "
             f". the vessel idle; 1 column = {per_col:.3g} h)")
     lanes = []
 

@@ -153,3 +153,13 @@ def test_the_legend_explains_only_the_marks_the_plan_uses(routes):
     assert "(separated)" not in linear  # no wash leaves in the demo
     washed = plan_route(load_route_text(route_text("telescoped-wash.yaml"), "w.yaml"))
     assert "(separated): run off right after it is charged" in plan_blocks(washed)[1].text
+
+
+def test_the_marks_are_explained_with_a_step_of_the_route(routes):
+    # a newcomer reads "(B1) after a material" in a route whose steps are B1..B3, not S1
+    from routeplan.views.schedule_text import schedule_parts
+
+    plan = plan_route(routes["convergent"])
+    assert "(B1) after a material: made in step B1" in plan_blocks(plan)[1].text
+    head = schedule_parts(plan)[0]
+    assert "|B1 marks the start of a batch of B1" in head and "S1" not in head
