@@ -511,7 +511,9 @@ def _safety_facts(plan: "Plan") -> list[tuple[str, str, str, float | None]]:
                      else "no step screened (no thermal data)")
     out = []
     if running:
-        out.append(("heat screening", "; ".join(parts) + " (screening estimates)", "max_criticality_class",
+        screened = len(unscreened) < len(running)  # figures to qualify as screening estimates
+        out.append(("heat screening", "; ".join(parts) + (" (screening estimates)" if screened else ""),
+                    "max_criticality_class",
                     None if top is None else float(top)))
     n = len(plan.warnings)
     out.append(("warnings", f"{n}, listed below" if n else "none", "warnings", float(n)))

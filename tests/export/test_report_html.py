@@ -327,3 +327,4 @@ def test_no_step_screened_is_said_in_the_summary(tmp_path):
     plan = routeplan.plan_route(routeplan.load_route(write_route(tmp_path, text)))
     facts = {a["data-key"]: t for a, t in parse(plan_html(plan)).cells if "fact" in a.get("class", "")}
     assert "no step screened (no thermal data)" in facts["max_criticality_class"]
+    assert "screening estimates" not in facts["max_criticality_class"]  # no figures to qualify
