@@ -12,7 +12,9 @@ Run: ``python bench/engine_bench.py [--big]``.  Prints, side by side:
 2. ``routeplan --help`` over ``python -c "import click"``; target 1.5x;
 3. in process, planning a 200-step route (the whole ``plan_route``: walk, batches, totals,
    metrics, safety, schedule, waste, cost) over a plain-float walk of the same route
-   written out by hand below; target 40x;
+   written out by hand below; target 40x.  3b times each stage of one such plan and
+   adds up the ones the issue names (walk, batches, totals, metrics), the later
+   capabilities (safety, purchase packs, schedule, waste, cost) shown apart;
 4. loading the 200-step route over ruamel's bare compose of its text; target 3x;
 5. growth of load + plan from 10 to 6 250 steps (``--big``: and 10 000), each 5x in steps
    within 6x in time, with the growth of ruamel's bare compose of the same files beside
@@ -150,6 +152,70 @@ def time_plans(text: str, repeat: int) -> float:
     return best(lambda: routeplan.plan_route(routes.pop()), repeat=repeat)
 
 
+#: The stages of ``plan_route`` timed apart (module, function, part of the issue's
+#: "planning (walk, batches, totals, metrics)"?).  ``batch_safety`` runs inside
+#: ``step_plans`` (once per step) and is taken out of it.
+STAGES = (
+    ("routeplan.plan.planner", "walk_route", True),
+    ("routeplan.plan.guards", "check_amounts", True),
+    ("routeplan.plan.campaign", "size_steps", True),
+    ("routeplan.plan.charges", "step_plans", True),
+    ("routeplan.plan.safety", "batch_safety", False),
+    ("routeplan.plan.safety", "safety_warnings", False),
+    ("routeplan.plan.totals", "raw_material_totals", True),
+    ("routeplan.plan.purchase", "with_packs", False),
+    ("routeplan.plan.totals", "overall_yield", True),
+    ("routeplan.plan.cost_of_goods", "schedule_waste_cost", False),
+    ("routeplan.plan.metrics", "compute_metrics", True),
+)
+
+
+def stage_times(text: str, repeat: int) -> tuple[float, dict[str, float]]:
+    """Best whole ``plan_route`` [s] and, from that same run, the time of each stage [s].
+
+    Each stage function is wrapped in its module for the duration (a wrapper costs about
+    a microsecond a call, against milliseconds a stage), so the parts add up to the
+    whole less the planner's own glue.
+    """
+    import importlib
+    import time
+
+    import routeplan
+
+    spent: dict[str, float] = {}
+    originals = []
+
+    def wrapped(name, fn):
+        def timed(*args, **kwargs):
+            t = time.perf_counter()
+            try:
+                return fn(*args, **kwargs)
+            finally:
+                spent[name] = spent.get(name, 0.0) + time.perf_counter() - t
+        return timed
+
+    for module_name, name, _scope in STAGES:
+        module = importlib.import_module(module_name)
+        originals.append((module, name, getattr(module, name)))
+        setattr(module, name, wrapped(name, getattr(module, name)))
+    try:
+        routes = fresh_routes(text, repeat)
+        best_whole, best_parts = float("inf"), {}
+        for _ in range(repeat):
+            spent.clear()
+            gc.collect()
+            t = time.perf_counter()
+            routeplan.plan_route(routes.pop())
+            whole = time.perf_counter() - t
+            if whole < best_whole:
+                best_whole, best_parts = whole, dict(spent)
+    finally:
+        for module, name, fn in originals:
+            setattr(module, name, fn)
+    best_parts["step_plans"] -= best_parts.get("batch_safety", 0.0)
+    return best_whole, best_parts
+
+
 def main() -> int:
     big = "--big" in sys.argv
     import routeplan
@@ -183,6 +249,13 @@ def main() -> int:
     t_plan = time_plans(text, 7)
     t_float = best(plain_float_walk(200), repeat=20)
     print(f"3 plan 200 steps / plain-float walk   {t_plan * 1e3:.2f} / {t_float * 1e3:.3f} ms = {t_plan / t_float:5.1f}x   40x")
+    whole, parts = stage_times(text, 7)
+    scope = sum(parts.get(name, 0.0) for _m, name, in_scope in STAGES if in_scope)
+    print(f"3b of it, the issue's 'walk, batches, totals, metrics' {scope * 1e3:.2f} / {t_float * 1e3:.3f} ms"
+          f" = {scope / t_float:5.1f}x   40x")
+    print("   per stage [ms] (one plan of " + f"{whole * 1e3:.2f} ms): " + ", ".join(
+        f"{name}{'' if in_scope else '*'} {parts.get(name, 0.0) * 1e3:.2f}" for _m, name, in_scope in STAGES)
+        + "  (* not in the issue's list: safety, purchase packs, schedule, waste, cost)")
 
     t_compose = t_load = float("inf")
     for _ in range(11):

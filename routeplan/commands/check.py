@@ -38,7 +38,7 @@ def planned_warnings(route) -> tuple:
     return tuple(plan_route(route).warnings)
 
 
-def summary(route, n_warnings: int | None = None) -> list[str]:
+def summary(route, n_warnings: int | None = None, strict: bool = False) -> list[str]:
     """Lines that summarise a checked route: steps in execution order, materials, sequence.
 
     Parameters
@@ -47,6 +47,8 @@ def summary(route, n_warnings: int | None = None) -> list[str]:
         A loaded route.
     n_warnings : int, optional
         Warnings found (route and plan); default the route's own.
+    strict : bool
+        Checked with ``--strict``: a route with warnings is then not called valid.
 
     Returns
     -------
@@ -56,7 +58,9 @@ def summary(route, n_warnings: int | None = None) -> list[str]:
 
     t = route.target
     amount = t.amount.to("kg").magnitude
-    lines = [f"{route.source.path if route.source else '<route>'}: valid: {route.name}",
+    count = len(route.warnings) if n_warnings is None else n_warnings
+    verdict = "not valid under --strict" if strict and count else "valid"
+    lines = [f"{route.source.path if route.source else '<route>'}: {verdict}: {route.name}",
              f"  target: {amount:g} kg of {t.material}" + (f" (+{_pct(t.overage)} overage)" if t.overage else "")]
     order = execution_order(route)
     lines.append("  steps in execution order:")
@@ -89,9 +93,8 @@ def summary(route, n_warnings: int | None = None) -> list[str]:
         lines.append("  defined but not used: " + ", ".join(unused))
     lls = longest_linear_sequence(route)
     lines.append(f"  longest linear sequence: {' -> '.join(lls)} ({len(lls)} step{'s' if len(lls) != 1 else ''})")
-    n = len(route.warnings) if n_warnings is None else n_warnings
-    if n:
-        lines.append(f"  warnings: {n} (on standard error)")
+    if count:
+        lines.append(f"  warnings: {count} (on standard error)")
     return lines
 
 
@@ -144,7 +147,7 @@ def check_cmd(ctx: click.Context, routes: tuple[str, ...], strict: bool) -> None
             failed += 1
             continue
         valid += 1
-        _print_lines(summary(route, len(warnings)))
+        _print_lines(summary(route, len(warnings), strict))
         echo_warnings(warnings, strict=strict)
         if strict and warnings:
             n = len(warnings)

@@ -14,6 +14,7 @@ from __future__ import annotations
 import functools
 from typing import TYPE_CHECKING, Mapping
 
+from routeplan.collector import paused
 from routeplan.errors import Location, PlanError, Problem
 from routeplan.frozen import frozen
 from routeplan.plan.walk import YIELD_BASES, walk_route
@@ -81,6 +82,7 @@ def _amount_kg(route: "Route", target) -> float:
     return value
 
 
+@paused()
 def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, stock=None,
                yields: str = "expected", confidence: float | None = None, draws: int | None = None,
                seed: int | None = None, record=None, record_yields: str = "expected",

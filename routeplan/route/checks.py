@@ -182,6 +182,8 @@ class _Checker:
                 self.facts.molar_masses[key] = m.molar_mass.to(unit("g/mol"))
             if m.density is not None:
                 self.found(plausible.density_findings(here + ("density",), m.density))
+            if m.assay is not None:
+                self.found(plausible.assay_findings(here + ("assay",), m.assay))
             if m.solution is not None:
                 self.solution(key, m)
         self.found(checks_safety.gas_findings(self.parts.materials))

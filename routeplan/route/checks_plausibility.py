@@ -10,8 +10,9 @@ here catch what such values betray, usually a unit or a decimal point gone wrong
   times the molar mass, or a ``mass_fraction`` of 100 %);
 - an equation whose products do not weigh what its reactants weigh (Σν·M), where the atom
   balance cannot run because a species has no formula;
-- a charge line, a step yield or an overage outside the usual range of its basis and role
-  (:data:`CHARGE_RANGES`, :data:`LOWEST_USUAL_YIELD`, :data:`HIGHEST_USUAL_OVERAGE`): a
+- a charge line, a step yield, an assay or an overage outside the usual range of its basis and role
+  (:data:`CHARGE_RANGES`, :data:`LOWEST_USUAL_YIELD`, :data:`LOWEST_USUAL_ASSAY`,
+  :data:`HIGHEST_USUAL_OVERAGE`): a
   warning that says what is usual (an error under ``--strict``); a ``mol_percent`` above
   100 is an error, since it is more than one equivalent.
 
@@ -30,7 +31,8 @@ from routeplan.units import unit
 from routeplan.vocab import Severity
 
 __all__ = ["Finding", "DENSITY_RANGE", "MASS_BALANCE_TOLERANCE", "MOLAR_MASS_TOLERANCE", "CHARGE_RANGES",
-           "LOWEST_USUAL_YIELD", "HIGHEST_USUAL_OVERAGE", "charge_findings", "yield_findings", "overage_findings", "density_findings", "molar_mass_findings",
+           "LOWEST_USUAL_YIELD", "LOWEST_USUAL_ASSAY", "HIGHEST_USUAL_OVERAGE", "charge_findings", "yield_findings",
+           "assay_findings", "overage_findings", "density_findings", "molar_mass_findings",
            "solution_findings", "mass_balance_finding", "vessel_volume_findings",
            "SMALL_VESSEL_L", "LARGE_TARGET_KG"]
 
@@ -88,6 +90,11 @@ CHARGE_RANGES = {
 #: Lowest usual step yield [-]: a step below 10 % is a percent typed as a fraction or a
 #: step no campaign would run (common practice, no source).
 LOWEST_USUAL_YIELD = 0.10
+
+#: Lowest usual assay of a material [-]: below 10 % the material would be mostly something
+#: else; most often a fraction typed with a percent sign (``0.985 %`` for 98.5 %) (common
+#: practice, no source).
+LOWEST_USUAL_ASSAY = 0.10
 
 #: Highest usual target overage [-]: a margin above 100 % plans twice the target
 #: (common practice, no source).
@@ -368,6 +375,14 @@ def charge_findings(path: tuple, material: str, basis: str, value: float, role: 
                                      f"(more than {_g(limit)}) for a {role}", hint)]
 
 
+def _percent_slip(value: float) -> str:
+    """The hint for a percentage below 1 % that reads like a fraction typed with ``%``
+    (``0.9 %`` where the fraction 0.9, 90 %, was meant), or an empty string."""
+    if 1e-4 <= value < 0.01:
+        return f"; was the fraction {value * 100:.4g} ({value * 1e4:.4g} %) meant?"
+    return ""
+
+
 def yield_findings(path: tuple, step_id: str, which: str, value: float) -> list[Finding]:
     """A warning when a step yield (``which``: expected, low or high) is below
     :data:`LOWEST_USUAL_YIELD`.
@@ -381,11 +396,30 @@ def yield_findings(path: tuple, step_id: str, which: str, value: float) -> list[
         return []
     shown = f"{value * 100:.4g} %"
     what = "a yield" if which == "expected" else f"a {which} yield"
-    hint = "a step usually yields 10 to 100 %"
-    if 1e-4 <= value < 0.01:  # '0.9 %' where the fraction 0.9 (90 %) was meant
-        hint += f"; was the fraction {value * 100:.4g} ({value * 1e4:.4g} %) meant?"
+    hint = "a step usually yields 10 to 100 %" + _percent_slip(value)
     return [Finding(Severity.WARNING, path, f"step {step_id}: {what} of {shown} is below the usual range "
                                      f"(less than {LOWEST_USUAL_YIELD * 100:g} %)", hint)]
+
+
+def assay_findings(path: tuple, value: float) -> list[Finding]:
+    """A warning when a material's assay is below :data:`LOWEST_USUAL_ASSAY`.
+
+    An assay that low makes every mass of the material (as charged, or as isolated for an
+    intermediate) tens or hundreds of times too large.
+
+    Examples
+    --------
+    >>> f = assay_findings(("materials", "ester", "assay"), 0.00985)[0]
+    >>> f.message
+    'an assay of 0.985 % is below the usual range (less than 10 %)'
+    >>> f.hint
+    'a material is usually supplied or isolated at 10 to 100 %; was the fraction 0.985 (98.5 %) meant?'
+    """
+    if value >= LOWEST_USUAL_ASSAY:
+        return []
+    return [Finding(Severity.WARNING, path, f"an assay of {value * 100:.4g} % is below the usual range "
+                                     f"(less than {LOWEST_USUAL_ASSAY * 100:g} %)",
+                    "a material is usually supplied or isolated at 10 to 100 %" + _percent_slip(value))]
 
 
 def overage_findings(path: tuple, overage: float) -> list[Finding]:

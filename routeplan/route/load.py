@@ -24,6 +24,7 @@ from typing import Annotated, Any
 
 from pydantic import TypeAdapter, ValidationError
 
+from routeplan.collector import paused
 from routeplan.errors import Location, Problem, RouteError, not_a_regular_file
 from routeplan.route.checks import Facts, Parts, _default_role, check_parts
 from routeplan.route.model import (DEFAULT_CHARGE_TOLERANCE, Charge, Conditions, Control, Dosing, Material, Route,
@@ -118,6 +119,7 @@ def _one(file: str, message: str, hint: str | None = None) -> RouteError:
     return RouteError([Problem(Severity.ERROR, message, Location(file), hint=hint)], file=file)
 
 
+@paused()
 def _load_bytes(data: bytes, file: str) -> Route:
     sha = hashlib.sha256(data).hexdigest()
     if data.startswith((b"\xff\xfe", b"\xfe\xff")):

@@ -102,8 +102,12 @@ def test_strict_fails_on_a_warning_but_still_summarises(tmp_path, good_text):
     path = write_route(tmp_path, change(good_text, [("currency: EUR\n", "")]))
     result = run_cli("check", "--strict", path)
     assert result.exit_code == 2
-    assert f"{path}: valid" in result.stdout
+    # exit 2, so the summary must not call it valid
+    assert f"{path}: not valid under --strict:" in result.stdout
+    assert f"{path}: valid" not in result.stdout
     assert "no cost will be computed" in result.stderr
+    # without --strict, the same route is valid
+    assert f"{path}: valid:" in run_cli("check", path).stdout
 
 
 def test_no_route_given_is_a_usage_error():
