@@ -323,12 +323,8 @@ def _gas_keys(route: "Route") -> frozenset[str]:
     return frozenset(k for k, m in route.materials.items() if m.phase == "gas")
 
 
-def _gases(route: "Route", step: "Step", side: str):
-    """(key, coefficient) of the gases on ``side`` (reactants or products), in equation order."""
-    gas = _gas_keys(route)
-    if not gas:
-        return []
-    terms = step.equation.products if side == "products" else step.equation.reactants
+def _gases(gas: frozenset[str], terms) -> list[tuple[str, float]]:
+    """(key, coefficient) of the gases (keys in ``gas``) among equation ``terms``, in their order."""
     return [(t.key, t.coefficient) for t in terms if t.key in gas]
 
 
@@ -373,19 +369,25 @@ def batch_safety(route: "Route", step_id: str, runs: bool, b: "BatchPlan | None"
     if not runs or b is None or b.batches == 0:
         return StepSafety(dosed=None if dosing is None else dosing.material, dosing_time_min=dosing_min, runs=False)
     n_lim_mol = b.per_batch(b.limiting_n_mol)
-    nu_lim = step.equation.coefficient(step.limiting)
-    T_K, p_Pa = _conditions(step)
+    gas = _gas_keys(route)
+    t = step.thermal
+    evolving = _gases(gas, step.equation.products) if gas else ()
+    T_K = p_Pa = None
+    if evolving or (t is not None and t.process_temperature is None):  # only then are the conditions read
+        T_K, p_Pa = _conditions(step)
 
     evolved = []
-    for key, nu in _gases(route, step, "products"):
-        n_mol = gas_evolved_mol(nu, nu_lim, n_lim_mol)
-        V_L = ideal_gas_volume_L(n_mol, T_K, p_Pa)
-        evolved.append(GasEvolved(material=key, mol_per_batch=n_mol, volume_L_per_batch=V_L,
-                                  temperature_C=T_K - ZERO_CELSIUS_K, pressure_bar=p_Pa / 1e5,
-                                  rate_L_per_min=None if dosing_min is None else V_L / dosing_min,
-                                  vent=_vent(route.materials[key].hazards)))
+    if evolving:
+        nu_lim = step.equation.coefficient(step.limiting)
+        for key, nu in evolving:
+            n_mol = gas_evolved_mol(nu, nu_lim, n_lim_mol)
+            V_L = ideal_gas_volume_L(n_mol, T_K, p_Pa)
+            evolved.append(GasEvolved(material=key, mol_per_batch=n_mol, volume_L_per_batch=V_L,
+                                      temperature_C=T_K - ZERO_CELSIUS_K, pressure_bar=p_Pa / 1e5,
+                                      rate_L_per_min=None if dosing_min is None else V_L / dosing_min,
+                                      vent=_vent(route.materials[key].hazards)))
     taken = []
-    for key, _nu in _gases(route, step, "reactants"):
+    for key, _nu in (_gases(gas, step.equation.reactants) if gas else ()):
         n_mol = sum(c.n_mol_batch for c in charges if c.material == key and c.n_mol_batch is not None)
         taken.append(GasTakenUp(material=key, mol_per_batch=n_mol, normal_volume_L_per_batch=normal_volume_L(n_mol),
                                 vent=_vent(route.materials[key].hazards)))
@@ -396,7 +398,6 @@ def batch_safety(route: "Route", step_id: str, runs: bool, b: "BatchPlan | None"
         free_L = nominal - b.batch_V_L
 
     thermal = None
-    t = step.thermal
     if t is not None:
         m_kg = b.per_batch(b.reaction_m_kg)
         dT = delta_T_ad_K(float(t.reaction_enthalpy.m_as(unit("kJ/mol"))), n_lim_mol, m_kg,
