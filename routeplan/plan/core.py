@@ -498,18 +498,19 @@ def contents(core: CoreRoute, steps: Mapping[str, WalkStep]) -> dict[str, Conten
                 m = src.transfer_m * share  # [kg] * [-]
             lines_V.append(V)
             lines_m.append(m)
+            # the sums start from the first term (no unitless zero to add to): _plus, written out
             if V is not None:
-                held = _plus(held, V)  # [L]
+                held = V if held is None else held + V  # [L]
             if c.leaves:
                 if V is not None:  # the vessel is fullest just before a charge leaves, or at the end
                     fullest = _larger(fullest, held)
                     held = held - V  # separated right after it is charged [L]
                 continue
             if V is not None:
-                stays_V = _plus(stays_V, V)  # [L]
-            stays_m = _plus(stays_m, m)  # [kg]
+                stays_V = V if stays_V is None else stays_V + V  # [L]
+            stays_m = m if stays_m is None else stays_m + m  # [kg]
             if not c.workup:
-                m_rxn = _plus(m_rxn, m)  # [kg]
+                m_rxn = m if m_rxn is None else m_rxn + m  # [kg]
         gas = None
         for ratio, M in s.gases:
             gas = _plus(gas, ratio * w.n_lim * M)  # [-] * [mol] * [kg/mol] = [kg]
