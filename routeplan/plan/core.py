@@ -78,10 +78,12 @@ def _molar_mass(mat: "Material", quantity: Callable) -> Number:
     return quantity(magnitude(mat.molar_mass, "kg/mol"), "kg/mol", ("molar_mass", mat))
 
 
-def material_form(mat: "Material", quantity: Callable = _plain) -> Form:
+def material_form(mat: "Material", quantity: Callable = _plain, molar_mass_kg: float | None = None) -> Form:
     """The :class:`Form` of ``mat``, its numbers built by ``quantity(value, unit, what)``.
 
     ``M`` [g/mol] is read in kg/mol, densities [g/mL] in kg/L, molarities in mol/L.
+    ``molar_mass_kg``, the molar mass already read in kg/mol [kg/mol] (:func:`molar_masses`),
+    spares reading it again for the plan's own numbers (``quantity`` the default).
     """
     from routeplan.units import magnitude
 
@@ -95,7 +97,8 @@ def material_form(mat: "Material", quantity: Callable = _plain) -> Form:
     elif mat.molar_mass is not None:
         fraction = (quantity(sol.mass_fraction, "", ("mass_fraction", mat)) if sol is not None
                     else quantity(mat.assay, "", ("assay", mat)))
-        kg_per_mol = _molar_mass(mat, quantity) / fraction  # [kg/mol] / [-]
+        M = molar_mass_kg if molar_mass_kg is not None and quantity is _plain else _molar_mass(mat, quantity)
+        kg_per_mol = M / fraction  # [kg/mol] / [-]
     L_per_kg = None
     if density is not None:
         kind = "solution_density" if sol is not None else "density"
@@ -200,18 +203,23 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
         cache = route.__dict__.setdefault("_core_cache", {})
         if yields in cache:
             return cache[yields]
+    materials = route.materials
+    known_M = molar_masses(route) if quantity is _plain else {}  # [kg/mol], shared with the metrics
     forms: dict[str, Form] = {}
 
     def form(key: str) -> Form:
-        if key not in forms:
-            forms[key] = material_form(route.materials[key], quantity)
-        return forms[key]
+        f = forms.get(key)
+        if f is None:
+            f = forms[key] = material_form(materials[key], quantity, known_M.get(key))
+        return f
 
     steps = []
     maker = route.maker  # intermediate -> the step that makes it
+    carried = {s.product: s.id for s in route.steps if not s.isolated}  # telescoped product -> its step
+    by_id = {s.id: s for s in route.steps}
     case = str(yields)
     for sid in execution_order(route):
-        step = route.step(sid)
+        step = by_id[sid]
         chosen = getattr(step.yield_, case)
         y = step.yield_.expected if chosen is None else chosen
         if not y > 0:
@@ -225,21 +233,23 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
                 factor = quantity(c.value, "kg/kg", ("mass_ratio", step, c))
             else:
                 factor = quantity(c.equiv, "", ("equiv", step, c))
-            src = maker.get(c.material)  # None for a bought material
-            charges.append(CoreCharge(c.material, str(basis), factor, form(c.material), src is not None,
-                                      src if src is not None and not route.step(src).isolated else None,
+            key = c.material
+            charges.append(CoreCharge(key, str(basis), factor, form(key), key in maker, carried.get(key),
                                       c.leaves, c.role == "workup"))
         eq = step.equation
-        nu_lim = eq.coefficient(step.limiting)
+        nu: dict[str, float] = {}  # coefficient [-] of each key: its first term, as Equation.coefficient finds it
+        for t in eq.reactants + eq.products:
+            nu.setdefault(t.key, t.coefficient)
+        nu_lim = nu[step.limiting]
         gases = []
         for t in eq.products:
-            mat = route.materials[t.key]
+            mat = materials[t.key]
             if mat.phase == "gas" and mat.molar_mass is not None:
                 gases.append((quantity(t.coefficient / nu_lim, "", ("gas_ratio", step, t.key)),
                               _molar_mass(mat, quantity)))
         steps.append(CoreStep(
             id=sid, product=step.product, limiting=step.limiting,
-            nu_ratio=quantity(eq.coefficient(step.product) / nu_lim, "", ("nu_ratio", step)),
+            nu_ratio=quantity(nu[step.product] / nu_lim, "", ("nu_ratio", step)),
             yield_=quantity(y, "", ("yield", step, case if chosen is not None else "expected")),
             product_form=form(step.product), limiting_form=form(step.limiting),
             charges=tuple(charges), gases=tuple(gases)))
