@@ -247,12 +247,10 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
             if mat.phase == "gas" and mat.molar_mass is not None:
                 gases.append((quantity(t.coefficient / nu_lim, "", ("gas_ratio", step, t.key)),
                               _molar_mass(mat, quantity)))
-        steps.append(CoreStep(
-            id=sid, product=step.product, limiting=step.limiting,
-            nu_ratio=quantity(nu[step.product] / nu_lim, "", ("nu_ratio", step)),
-            yield_=quantity(y, "", ("yield", step, case if chosen is not None else "expected")),
-            product_form=form(step.product), limiting_form=form(step.limiting),
-            charges=tuple(charges), gases=tuple(gases)))
+        steps.append(CoreStep(  # id, product, limiting, nu_ratio, yield_, product_form, limiting_form, charges, gases
+            sid, step.product, step.limiting, quantity(nu[step.product] / nu_lim, "", ("nu_ratio", step)),
+            quantity(y, "", ("yield", step, case if chosen is not None else "expected")),
+            form(step.product), form(step.limiting), tuple(charges), tuple(gases)))
     tgt = route.materials[route.target.material]
     if tgt.molar_mass is None:  # the loader forbids this; kept as a guard
         raise PlanError(f"target '{tgt.key}' has no molar mass")
@@ -377,11 +375,13 @@ def walk(core: CoreRoute, n_target_mol: Number, shelf_mol: Mapping[str, Number] 
             n_p = n_p - taken
         n_lim = limiting_amount(n_p, s.yield_, s.nu_ratio)
         m_lim = n_lim * s.limiting_form.kg_per_mol  # [mol] * [kg/mol] = [kg]
-        lines = tuple(charge_amounts(c, n_lim, m_lim) for c in s.charges)
-        for c, (n, _m, _V) in zip(s.charges, lines):
-            if c.intermediate and n is not None:
-                demand[c.material] = demand.get(c.material, zero) + n
-        out[s.id] = WalkStep(s, n_p, taken, n_lim, m_lim, lines)
+        lines = []
+        for c in s.charges:
+            amounts = charge_amounts(c, n_lim, m_lim)
+            lines.append(amounts)
+            if c.intermediate and amounts[0] is not None:
+                demand[c.material] = demand.get(c.material, zero) + amounts[0]
+        out[s.id] = WalkStep(s, n_p, taken, n_lim, m_lim, tuple(lines))
     return {s.id: out[s.id] for s in core.steps}
 
 
@@ -498,18 +498,19 @@ def contents(core: CoreRoute, steps: Mapping[str, WalkStep]) -> dict[str, Conten
                 m = src.transfer_m * share  # [kg] * [-]
             lines_V.append(V)
             lines_m.append(m)
+            # the sums start from the first term (no unitless zero to add to): _plus, written out
             if V is not None:
-                held = _plus(held, V)  # [L]
+                held = V if held is None else held + V  # [L]
             if c.leaves:
                 if V is not None:  # the vessel is fullest just before a charge leaves, or at the end
                     fullest = _larger(fullest, held)
                     held = held - V  # separated right after it is charged [L]
                 continue
             if V is not None:
-                stays_V = _plus(stays_V, V)  # [L]
-            stays_m = _plus(stays_m, m)  # [kg]
+                stays_V = V if stays_V is None else stays_V + V  # [L]
+            stays_m = m if stays_m is None else stays_m + m  # [kg]
             if not c.workup:
-                m_rxn = _plus(m_rxn, m)  # [kg]
+                m_rxn = m if m_rxn is None else m_rxn + m  # [kg]
         gas = None
         for ratio, M in s.gases:
             gas = _plus(gas, ratio * w.n_lim * M)  # [-] * [mol] * [kg/mol] = [kg]
