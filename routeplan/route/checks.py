@@ -89,6 +89,11 @@ class Facts:
         Material key -> molar mass [g/mol] (pint Quantity).
     formulas : dict
         Material key -> formula (as given, or derived from the SMILES).
+    step_links : StepLinks or None
+        Who feeds whom among the steps (:func:`routeplan.route.graph.step_links`), as the
+        cycle check found it: the same links the built steps have (their charges are the
+        lines and the reactants checked here, and no step charges its own product), kept
+        on the Route so that the planner does not build them again.
     """
 
     equations: dict[int, Any] = field(default_factory=dict)
@@ -96,6 +101,7 @@ class Facts:
     product: dict[int, str] = field(default_factory=dict)
     molar_masses: dict[str, Any] = field(default_factory=dict)
     formulas: dict[str, str] = field(default_factory=dict)
+    step_links: Any = None
 
 
 def suggest(name: str, choices, *, formulas: dict[str, str] | None = None) -> str | None:
@@ -539,17 +545,19 @@ class _Checker:
             used = [u for u in used if u != self.facts.product[i]]
             stand_ins.append(SimpleNamespace(id=s.id, product=self.facts.product[i],
                                              charges=[SimpleNamespace(material=u) for u in used]))
-        cycle = find_step_cycle(stand_ins)
+        links = step_links(stand_ins)
+        cycle = find_step_cycle(stand_ins, links)
         if cycle:
             i = next(k for k, s in enumerate(steps) if s.id == cycle[0])
             self.add(Severity.ERROR, ("steps", i, "id"), "the steps form a cycle: " + " -> ".join(cycle),
                      "a step cannot use, directly or through other steps, what it makes itself", step=cycle[0])
             return
+        self.facts.step_links = links
         t = self.parts.target
         if t is None or t.material is None or t.material not in made_by:
             return
         final = steps[made_by[t.material]].id
-        keep = upstream(step_links(stand_ins), final) | {final}
+        keep = upstream(links, final) | {final}
         for i, s in enumerate(steps):
             if s.id not in keep:
                 self.add(Severity.WARNING, ("steps", i, "id"),

@@ -120,8 +120,8 @@ def step_links(steps) -> StepLinks:
 
 
 def route_step_links(route: "Route") -> StepLinks:
-    """:func:`step_links` of ``route.steps``, built once per route (a Route is frozen);
-    read it, never change it."""
+    """:func:`step_links` of ``route.steps``, built once per route (a Route is frozen; the
+    loader keeps those its cycle check built); read them, never change them."""
     return _route_cache(route, "_step_links", lambda: step_links(route.steps))
 
 
@@ -158,16 +158,17 @@ def _reaching_a_cycle(g) -> list:
     return [n for n in g.pred if out_degree[n] > 0]
 
 
-def find_step_cycle(steps) -> list[str] | None:
+def find_step_cycle(steps, links: StepLinks | None = None) -> list[str] | None:
     """Return one cycle of steps as ``[S3, S5, S3]``, or None when there is none.
 
     Steps that cannot reach a cycle are set aside first, in linear time and on plain
     dicts, so a long route without a cycle costs one pass; only a route with a cycle
     gets its networkx graph, and the cycle reported is the one a depth-first search from
-    the first remaining step (in file order) meets.
+    the first remaining step (in file order) meets.  ``links``: the steps'
+    :func:`step_links`, when the caller has them already.
     """
     steps = list(steps)
-    left = _reaching_a_cycle(step_links(steps))
+    left = _reaching_a_cycle(step_links(steps) if links is None else links)
     if not left:
         return None
     import networkx as nx

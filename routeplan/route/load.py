@@ -262,9 +262,12 @@ def _build(model: RouteFile, facts: Facts, pos: Positions, source: Source, warni
     tolerance = model.charge_tolerance if model.charge_tolerance is not None else DEFAULT_CHARGE_TOLERANCE
     wp = model.waste_prices
     waste_prices = None if wp is None else WastePrices(wp.aqueous, wp.organic, wp.halogenated)
-    return Route(name=model.route, target=target, materials=materials, steps=steps, equipment=equipment,
-                 currency=model.currency, format=model.format, source=source, warnings=warnings,
-                 waste_prices=waste_prices, charge_tolerance=tolerance)
+    route = Route(name=model.route, target=target, materials=materials, steps=steps, equipment=equipment,
+                  currency=model.currency, format=model.format, source=source, warnings=warnings,
+                  waste_prices=waste_prices, charge_tolerance=tolerance)
+    if facts.step_links is not None:  # who feeds whom, as the cycle check found it (graph.route_step_links)
+        route.__dict__["_step_links"] = facts.step_links
+    return route
 
 
 def _material(key: str, m: MaterialModel, facts: Facts, pos: Positions) -> Material:

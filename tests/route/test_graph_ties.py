@@ -16,9 +16,11 @@ import sys
 from pathlib import Path
 from types import SimpleNamespace as NS
 
+import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from conftest import DATA, ROOT
 from routeplan.export.json import plan_to_dict
 from routeplan.plan.planner import plan_route
 from routeplan.route import graph
@@ -132,6 +134,25 @@ def test_step_links_are_the_networkx_graph_without_networkx(steps):
     assert (cycle is None) == nx.is_directed_acyclic_graph(g)
     if cycle is not None:
         assert cycle[0] == cycle[-1] and all(g.has_edge(a, b) for a, b in zip(cycle, cycle[1:]))
+
+
+def _edges(links):
+    return [(n, sorted(into)) for n, into in links.pred.items()], {n: sorted(out) for n, out in links.succ.items()}
+
+
+@pytest.mark.parametrize("path", sorted((DATA / "routes").glob("*.yaml")) + sorted((ROOT / "demo_routes").glob("hx17-*.yaml"))
+                         + [None], ids=lambda p: "bench-convergent" if p is None else p.name)
+def test_the_links_the_loader_keeps_are_those_of_the_built_steps(path):
+    # the loader's cycle check works on the file's lines and equations; the Route keeps its
+    # links, so they must be the links of the built steps (implicit lines included)
+    if str(ROOT / "bench") not in sys.path:
+        sys.path.insert(0, str(ROOT / "bench"))
+    import plan_bench
+
+    text = plan_bench.convergent_route(12) if path is None else path.read_text(encoding="utf-8")
+    route = load_route_text(text, "r.yaml")
+    kept = route.__dict__["_step_links"]
+    assert _edges(kept) == _edges(graph.step_links(route.steps))
 
 
 def test_equal_yields_fall_back_to_step_ids():
