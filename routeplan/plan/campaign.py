@@ -168,8 +168,8 @@ def _vessel_warnings(step, vessel, nominal: float, batches: int, fill: float) ->
     if 0 < fill < MIN_FILL:
         out.append(Problem(
             "warning",
-            f"step {step.id}: each batch fills {fill:.0%} of vessel {vessel.key} "
-            f"({nominal:g} L), below {MIN_FILL:.0%}: too little to stir",
+            f"step {step.id}: each batch fills {fill * 100:.3g} % of vessel {vessel.key} "
+            f"({nominal:g} L), below {MIN_FILL * 100:g} %: too little to stir",
             location=step.location, step=step.id,
             hint="use a smaller vessel or a larger target"))
     return out
