@@ -145,10 +145,10 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
             per_batch = w.m_lim / batches
             shown = float(step.demonstrated_batch.m_as(unit("kg")))
             if shown > 0 and per_batch > MAX_SCALE_UP * shown:
-                warnings.append(Problem(
+                warnings.append(Problem.with_amounts(
                     "warning",
-                    f"step {sid}: a batch charges {per_batch:.4g} kg of {step.limiting}, "
-                    f"{per_batch / shown:.3g} times the largest batch run so far ({shown:.4g} kg)",
+                    (f"step {sid}: a batch charges ", (per_batch, "mass"), f" of {step.limiting}, "
+                     f"{per_batch / shown:.3g} times the largest batch run so far (", (shown, "mass"), ")"),
                     location=step.location, step=sid,
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
         out[sid] = Sized(V_total, h.lines_V, batches, fill, **parts)
