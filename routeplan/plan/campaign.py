@@ -117,12 +117,12 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
         step = route.step(sid)
         h = held[sid]
         V_total = 0.0 if h.fullest_V is None else h.fullest_V
-        telescoped = not step.isolated
-        parts = dict(reaction_m_kg=h.reaction_m,
-                     transfer_V_L=h.transfer_V if telescoped else None,
-                     transfer_m_kg=h.transfer_m if telescoped else None)
+        if step.isolated:
+            transfer_V = transfer_m = None
+        else:
+            transfer_V, transfer_m = h.transfer_V, h.transfer_m
         if sid in walked.not_run:
-            out[sid] = Sized(V_total, h.lines_V, 0, None, **parts)
+            out[sid] = Sized(V_total, h.lines_V, 0, None, h.reaction_m, transfer_V, transfer_m)
             continue
         vessel = route.equipment.get(step.vessel) if step.vessel else None
         if vessel is None:
@@ -151,7 +151,7 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
                      f"{per_batch / shown:.3g} times the largest batch run so far (", (shown, "mass"), ")"),
                     location=step.location, step=sid,
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
-        out[sid] = Sized(V_total, h.lines_V, batches, fill, **parts)
+        out[sid] = Sized(V_total, h.lines_V, batches, fill, h.reaction_m, transfer_V, transfer_m)
     return out, warnings
 
 

@@ -45,28 +45,27 @@ def step_plans(route: "Route", walked: "Walked", sized: Mapping[str, "Sized"],
         z = sized[sid]
         batches = z.batches
         lines = []
-        for i, (c, cc, (n, m, _V), V) in enumerate(zip(step.charges, w.step.charges, w.charges, z.lines_V)):
-            lines.append(ChargePlan(
-                order=i + 1, material=c.material, name=materials[c.material].name, role=c.role,
-                basis=c.basis, basis_value=c.value, equiv=c.equiv, n_mol=n, m_kg=m,
-                V_L=V,  # a line carried in solution: the volume of mixture carried in
-                intermediate=cc.intermediate, implicit=c.implicit,
-                carried_from=cc.carried_from, batches=batches, leaves=c.leaves))
+        for order, (c, cc, (n, m, _V), V) in enumerate(zip(step.charges, w.step.charges, w.charges, z.lines_V), 1):
+            key = c.material
+            # every field in ChargePlan's order (a 15-field keyword call binds at a third of the cost again):
+            # order, material, name, role, basis, basis_value, equiv, n_mol, m_kg, V_L (a line carried in
+            # solution: the volume of mixture carried in), intermediate, implicit, carried_from, batches, leaves
+            lines.append(ChargePlan(order, key, materials[key].name, c.role, c.basis, c.value, c.equiv, n, m, V,
+                                    cc.intermediate, c.implicit, cc.carried_from, batches, c.leaves))
         m_prod = w.n_product * w.step.product_form.kg_per_mol  # as isolated, at its assay [kg]
-        batch = BatchPlan(batches=batches, step_V_L=z.V_L, fill_fraction=z.fill, vessel=step.vessel,
-                          limiting_n_mol=w.n_lim, limiting_m_kg=w.m_lim,
-                          product_n_mol=w.n_product, product_m_kg=m_prod, reaction_m_kg=z.reaction_m_kg,
-                          transfer_V_L=z.transfer_V_L, transfer_m_kg=z.transfer_m_kg)
+        # BatchPlan's fields in order: batches, step_V_L, fill_fraction, vessel, limiting_n_mol,
+        # limiting_m_kg, product_n_mol, product_m_kg, reaction_m_kg, transfer_V_L, transfer_m_kg
+        batch = BatchPlan(batches, z.V_L, z.fill, step.vessel, w.n_lim, w.m_lim, w.n_product, m_prod,
+                          z.reaction_m_kg, z.transfer_V_L, z.transfer_m_kg)
         stock_n = w.n_taken
         not_run = walked.not_run.get(sid)
         lines = tuple(lines)
+        # StepPlan's fields in order: id, name, equation, limiting, limiting_n_mol, limiting_m_kg, product,
+        # product_n_mol, product_m_kg, yield_, isolated, charges, batch, vessel, notes, stock_n_mol,
+        # stock_m_kg, not_run, safety
         out.append(StepPlan(
-            id=sid, name=step.name, equation=step.equation_text, limiting=step.limiting,
-            limiting_n_mol=w.n_lim, limiting_m_kg=w.m_lim, product=step.product,
-            product_n_mol=w.n_product, product_m_kg=m_prod, yield_=w.step.yield_,
-            isolated=step.isolated, charges=lines, batch=batch, vessel=step.vessel,
-            notes=step.notes, stock_n_mol=stock_n,
-            stock_m_kg=None if stock_n is None else stock_n * w.step.product_form.kg_per_mol,
-            not_run=not_run,
-            safety=None if safety is None else safety(sid, not_run is None, batch, lines)))
+            sid, step.name, step.equation_text, step.limiting, w.n_lim, w.m_lim, step.product,
+            w.n_product, m_prod, w.step.yield_, step.isolated, lines, batch, step.vessel, step.notes, stock_n,
+            None if stock_n is None else stock_n * w.step.product_form.kg_per_mol, not_run,
+            None if safety is None else safety(sid, not_run is None, batch, lines)))
     return tuple(out)

@@ -78,10 +78,12 @@ def _molar_mass(mat: "Material", quantity: Callable) -> Number:
     return quantity(magnitude(mat.molar_mass, "kg/mol"), "kg/mol", ("molar_mass", mat))
 
 
-def material_form(mat: "Material", quantity: Callable = _plain) -> Form:
+def material_form(mat: "Material", quantity: Callable = _plain, molar_mass_kg: float | None = None) -> Form:
     """The :class:`Form` of ``mat``, its numbers built by ``quantity(value, unit, what)``.
 
     ``M`` [g/mol] is read in kg/mol, densities [g/mL] in kg/L, molarities in mol/L.
+    ``molar_mass_kg``, the molar mass already read in kg/mol [kg/mol] (:func:`molar_masses`),
+    spares reading it again for the plan's own numbers (``quantity`` the default).
     """
     from routeplan.units import magnitude
 
@@ -95,7 +97,8 @@ def material_form(mat: "Material", quantity: Callable = _plain) -> Form:
     elif mat.molar_mass is not None:
         fraction = (quantity(sol.mass_fraction, "", ("mass_fraction", mat)) if sol is not None
                     else quantity(mat.assay, "", ("assay", mat)))
-        kg_per_mol = _molar_mass(mat, quantity) / fraction  # [kg/mol] / [-]
+        M = molar_mass_kg if molar_mass_kg is not None and quantity is _plain else _molar_mass(mat, quantity)
+        kg_per_mol = M / fraction  # [kg/mol] / [-]
     L_per_kg = None
     if density is not None:
         kind = "solution_density" if sol is not None else "density"
@@ -200,18 +203,23 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
         cache = route.__dict__.setdefault("_core_cache", {})
         if yields in cache:
             return cache[yields]
+    materials = route.materials
+    known_M = molar_masses(route) if quantity is _plain else {}  # [kg/mol], shared with the metrics
     forms: dict[str, Form] = {}
 
     def form(key: str) -> Form:
-        if key not in forms:
-            forms[key] = material_form(route.materials[key], quantity)
-        return forms[key]
+        f = forms.get(key)
+        if f is None:
+            f = forms[key] = material_form(materials[key], quantity, known_M.get(key))
+        return f
 
     steps = []
     maker = route.maker  # intermediate -> the step that makes it
+    carried = {s.product: s.id for s in route.steps if not s.isolated}  # telescoped product -> its step
+    by_id = {s.id: s for s in route.steps}
     case = str(yields)
     for sid in execution_order(route):
-        step = route.step(sid)
+        step = by_id[sid]
         chosen = getattr(step.yield_, case)
         y = step.yield_.expected if chosen is None else chosen
         if not y > 0:
@@ -225,24 +233,24 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
                 factor = quantity(c.value, "kg/kg", ("mass_ratio", step, c))
             else:
                 factor = quantity(c.equiv, "", ("equiv", step, c))
-            src = maker.get(c.material)  # None for a bought material
-            charges.append(CoreCharge(c.material, str(basis), factor, form(c.material), src is not None,
-                                      src if src is not None and not route.step(src).isolated else None,
+            key = c.material
+            charges.append(CoreCharge(key, str(basis), factor, form(key), key in maker, carried.get(key),
                                       c.leaves, c.role == "workup"))
         eq = step.equation
-        nu_lim = eq.coefficient(step.limiting)
+        nu: dict[str, float] = {}  # coefficient [-] of each key: its first term, as Equation.coefficient finds it
+        for t in eq.reactants + eq.products:
+            nu.setdefault(t.key, t.coefficient)
+        nu_lim = nu[step.limiting]
         gases = []
         for t in eq.products:
-            mat = route.materials[t.key]
+            mat = materials[t.key]
             if mat.phase == "gas" and mat.molar_mass is not None:
                 gases.append((quantity(t.coefficient / nu_lim, "", ("gas_ratio", step, t.key)),
                               _molar_mass(mat, quantity)))
-        steps.append(CoreStep(
-            id=sid, product=step.product, limiting=step.limiting,
-            nu_ratio=quantity(eq.coefficient(step.product) / nu_lim, "", ("nu_ratio", step)),
-            yield_=quantity(y, "", ("yield", step, case if chosen is not None else "expected")),
-            product_form=form(step.product), limiting_form=form(step.limiting),
-            charges=tuple(charges), gases=tuple(gases)))
+        steps.append(CoreStep(  # id, product, limiting, nu_ratio, yield_, product_form, limiting_form, charges, gases
+            sid, step.product, step.limiting, quantity(nu[step.product] / nu_lim, "", ("nu_ratio", step)),
+            quantity(y, "", ("yield", step, case if chosen is not None else "expected")),
+            form(step.product), form(step.limiting), tuple(charges), tuple(gases)))
     tgt = route.materials[route.target.material]
     if tgt.molar_mass is None:  # the loader forbids this; kept as a guard
         raise PlanError(f"target '{tgt.key}' has no molar mass")
@@ -367,11 +375,13 @@ def walk(core: CoreRoute, n_target_mol: Number, shelf_mol: Mapping[str, Number] 
             n_p = n_p - taken
         n_lim = limiting_amount(n_p, s.yield_, s.nu_ratio)
         m_lim = n_lim * s.limiting_form.kg_per_mol  # [mol] * [kg/mol] = [kg]
-        lines = tuple(charge_amounts(c, n_lim, m_lim) for c in s.charges)
-        for c, (n, _m, _V) in zip(s.charges, lines):
-            if c.intermediate and n is not None:
-                demand[c.material] = demand.get(c.material, zero) + n
-        out[s.id] = WalkStep(s, n_p, taken, n_lim, m_lim, lines)
+        lines = []
+        for c in s.charges:
+            amounts = charge_amounts(c, n_lim, m_lim)
+            lines.append(amounts)
+            if c.intermediate and amounts[0] is not None:
+                demand[c.material] = demand.get(c.material, zero) + amounts[0]
+        out[s.id] = WalkStep(s, n_p, taken, n_lim, m_lim, tuple(lines))
     return {s.id: out[s.id] for s in core.steps}
 
 
@@ -488,18 +498,19 @@ def contents(core: CoreRoute, steps: Mapping[str, WalkStep]) -> dict[str, Conten
                 m = src.transfer_m * share  # [kg] * [-]
             lines_V.append(V)
             lines_m.append(m)
+            # the sums start from the first term (no unitless zero to add to): _plus, written out
             if V is not None:
-                held = _plus(held, V)  # [L]
+                held = V if held is None else held + V  # [L]
             if c.leaves:
                 if V is not None:  # the vessel is fullest just before a charge leaves, or at the end
                     fullest = _larger(fullest, held)
                     held = held - V  # separated right after it is charged [L]
                 continue
             if V is not None:
-                stays_V = _plus(stays_V, V)  # [L]
-            stays_m = _plus(stays_m, m)  # [kg]
+                stays_V = V if stays_V is None else stays_V + V  # [L]
+            stays_m = m if stays_m is None else stays_m + m  # [kg]
             if not c.workup:
-                m_rxn = _plus(m_rxn, m)  # [kg]
+                m_rxn = m if m_rxn is None else m_rxn + m  # [kg]
         gas = None
         for ratio, M in s.gases:
             gas = _plus(gas, ratio * w.n_lim * M)  # [-] * [mol] * [kg/mol] = [kg]

@@ -28,7 +28,7 @@ from typing import TYPE_CHECKING
 
 from routeplan.frozen import frozen
 from routeplan.route.model import STREAMS
-from routeplan.units import unit
+from routeplan.units import magnitude
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -138,7 +138,7 @@ def plant_part(plan: "Plan") -> CostPart:
             if vessel.key not in unpriced:
                 unpriced.append(vessel.key)
         else:
-            amounts.append(sp.batches * float(step.cycle_time.m_as(unit("h"))) * vessel.rate)
+            amounts.append(sp.batches * magnitude(step.cycle_time, "h") * vessel.rate)
     return _part(amounts, unpriced)
 
 

@@ -106,22 +106,44 @@ def check_amounts(route: "Route", walked: "Walked") -> None:
         above :data:`MAX_MOL`, a volume above :data:`MAX_VOLUME_L`, or a value that is not
         finite; the hint names the route's values that can cause it.
     """
-    limits = (("amount", "mol", MAX_MOL), ("mass", "kg", MAX_MASS_KG), ("volume", "L", MAX_VOLUME_L))
     for sid, ws in walked.steps.items():
-        step = route.step(sid)
-        for j, numbers in enumerate(ws.charges):
-            for (what, unit, limit), x in zip(limits, numbers):
-                if x is not None and _bad(float(x), limit):
-                    c = step.charges[j] if j < len(step.charges) else None
-                    raise PlanError(f"step {sid}: the {what} of {c.material if c else 'a charge'} to charge would be "
-                                    f"{float(x):.4g} {unit}, beyond any campaign (more than {limit:.0e} {unit})",
-                                    location=(c.location if c else None) or step.location, step=sid,
-                                    hint=_hint(route, sid))
-        for what, x, unit, limit in (("limiting reagent", ws.m_lim, "kg", MAX_MASS_KG),
-                                     ("product", ws.n_product, "mol", MAX_MOL)):
-            if _bad(float(x), limit):
-                raise PlanError(f"step {sid}: the {what} would be {float(x):.4g} {unit}, beyond any campaign",
-                                location=step.location, step=sid, hint=_hint(route, sid))
+        if not _within(ws):
+            _refuse(route, sid, ws)
+
+
+def _within(ws) -> bool:
+    """True when every amount of the walked step ``ws`` is finite and within the limits.
+
+    One comparison a number (``abs(x) <= limit`` is False for ``inf`` and ``nan``), so
+    the common case costs no call a number; :func:`_refuse` finds the first one that is not.
+    """
+    if not (abs(ws.m_lim) <= MAX_MASS_KG and abs(ws.n_product) <= MAX_MOL):
+        return False
+    for n, m, V in ws.charges:
+        if not (abs(m) <= MAX_MASS_KG and (n is None or abs(n) <= MAX_MOL)
+                and (V is None or abs(V) <= MAX_VOLUME_L)):
+            return False
+    return True
+
+
+def _refuse(route: "Route", sid: str, ws) -> None:
+    """Raise the PlanError of the first amount of step ``sid`` out of its limit (in the
+    order of the charge lines, then the limiting reagent and the product)."""
+    limits = (("amount", "mol", MAX_MOL), ("mass", "kg", MAX_MASS_KG), ("volume", "L", MAX_VOLUME_L))
+    step = route.step(sid)
+    for j, numbers in enumerate(ws.charges):
+        for (what, unit, limit), x in zip(limits, numbers):
+            if x is not None and _bad(float(x), limit):
+                c = step.charges[j] if j < len(step.charges) else None
+                raise PlanError(f"step {sid}: the {what} of {c.material if c else 'a charge'} to charge would be "
+                                f"{float(x):.4g} {unit}, beyond any campaign (more than {limit:.0e} {unit})",
+                                location=(c.location if c else None) or step.location, step=sid,
+                                hint=_hint(route, sid))
+    for what, x, unit, limit in (("limiting reagent", ws.m_lim, "kg", MAX_MASS_KG),
+                                 ("product", ws.n_product, "mol", MAX_MOL)):
+        if _bad(float(x), limit):
+            raise PlanError(f"step {sid}: the {what} would be {float(x):.4g} {unit}, beyond any campaign",
+                            location=step.location, step=sid, hint=_hint(route, sid))
 
 
 def steps_without_range(route: "Route", yields: str) -> tuple[str, ...]:

@@ -25,11 +25,12 @@ from typing import TYPE_CHECKING, Any, Mapping
 
 from routeplan.chemistry.formula import CACHE_SIZE
 from routeplan.frozen import frozen
+from routeplan.plan.core import molar_masses
 
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import ChargePlan, Plan, StepPlan
-    from routeplan.route.model import Material, Route
+    from routeplan.route.model import Material, Route, Step
 
 __all__ = [
     "SOLVENT_ROLES",
@@ -238,9 +239,13 @@ def is_solvent_charge(material: "Material", c: "ChargePlan") -> bool:
     (:func:`is_water`) whatever its role.  A work-up reagent charged by mass or by
     moles (a filter aid, charcoal, a quench salt) is not a solvent and stays in.
     """
-    if is_water(material) or c.role == "solvent":
-        return True
-    return c.role == "workup" and c.basis == "volumes"
+    return is_water(material) or _is_solvent_role(c)
+
+
+def _is_solvent_role(c: "ChargePlan") -> bool:
+    """True for a charge of role ``solvent`` or a work-up charge by ``volumes`` (whatever its material)."""
+    role = c.role
+    return role == "solvent" or (role == "workup" and c.basis == "volumes")
 
 
 def simple_e_factor(plan: "Plan") -> float:
@@ -262,11 +267,18 @@ def simple_e_factor(plan: "Plan") -> float:
         sEF [kg/kg].
     """
     materials = plan.route.materials
+    water: dict[str, bool] = {}  # material key -> is_water, worked out once per material
     kept = 0.0
     for sp in plan.steps:
         for c in sp.charges:
-            mat = materials[c.material]
-            if c.intermediate or is_solvent_charge(mat, c):
+            if c.intermediate:
+                continue
+            key = c.material
+            mat = materials[key]
+            wet = water.get(key)
+            if wet is None:
+                wet = water[key] = is_water(mat)
+            if wet or _is_solvent_role(c):
                 continue
             kept += solution_split(mat, c)[0]
     shelf = stock_input_kg(plan)
@@ -293,10 +305,11 @@ def atom_economy(route: "Route", step_id: str) -> float | None:
     float or None
         AE [-]; None when a molar mass is missing.
     """
-    from routeplan.plan.core import molar_masses
+    return _atom_economy(route.step(step_id), molar_masses(route))
 
-    step = route.step(step_id)
-    M = molar_masses(route)  # [kg/mol]
+
+def _atom_economy(step: "Step", M: Mapping[str, float | None]) -> float | None:
+    """:func:`atom_economy` of ``step`` with the route's molar masses ``M`` [kg/mol] at hand."""
     prod = M[step.product]
     if prod is None:
         return None
@@ -330,10 +343,12 @@ def reaction_mass_efficiency(route: "Route", sp: "StepPlan") -> float | None:
     float or None
         RME [-]; None when a molar mass is missing or the step makes nothing.
     """
-    from routeplan.plan.core import molar_masses
+    return _reaction_mass_efficiency(route.step(sp.id), sp, molar_masses(route))
 
-    step = route.step(sp.id)
-    M = molar_masses(route)  # [kg/mol]
+
+def _reaction_mass_efficiency(step: "Step", sp: "StepPlan", M: Mapping[str, float | None]) -> float | None:
+    """:func:`reaction_mass_efficiency` of ``sp`` (the plan of ``step``) with the route's
+    molar masses ``M`` [kg/mol] at hand."""
     prod = M[sp.product]
     if prod is None:
         return None
@@ -379,10 +394,6 @@ def raw_material_cost(plan: "Plan") -> tuple[float | None, tuple[str, ...]]:
 
 
 # --------------------------------------------------------------------- Metrics
-
-
-def _frozen(d: Mapping) -> Mapping:
-    return MappingProxyType(dict(d))
 
 
 @frozen(eq=False)
@@ -501,29 +512,40 @@ def compute_metrics(plan: "Plan") -> Metrics:
     if plan.raw_materials:
         big = max(plan.raw_materials, key=lambda r: r.m_kg)
         largest = (big.material, big.m_kg)
-    runs = {sp.id for sp in plan.steps if sp.not_run is None}
-
-    def ran(values: Mapping) -> Mapping:
-        # a step that does not run has no step metrics
-        return _frozen({k: (v if k in runs else None) for k, v in values.items()})
+    # the step metrics, one pass over the steps; a step that does not run has none
+    cumulative = cumulative_pmi(plan)
+    M = molar_masses(route)  # [kg/mol]
+    by_step: dict[str, float | None] = {}
+    cum_by_step: dict[str, float | None] = {}
+    ae_by_step: dict[str, float | None] = {}
+    rme_by_step: dict[str, float | None] = {}
+    for sp in plan.steps:
+        sid = sp.id
+        if sp.not_run is None:
+            step = route.step(sid)
+            by_step[sid] = step_pmi(sp)
+            cum_by_step[sid] = cumulative[sid]
+            ae_by_step[sid] = _atom_economy(step, M)
+            rme_by_step[sid] = _reaction_mass_efficiency(step, sp, M)
+        else:
+            by_step[sid] = cum_by_step[sid] = ae_by_step[sid] = rme_by_step[sid] = None
 
     return Metrics(
         target_mass_kg=target,
         pmi=pmi,
-        pmi_by_step=ran({sp.id: step_pmi(sp) for sp in plan.steps}),
-        pmi_cumulative_by_step=ran(cumulative_pmi(plan)),
+        pmi_by_step=MappingProxyType(by_step),
+        pmi_cumulative_by_step=MappingProxyType(cum_by_step),
         # cEF = PMI - 1 (Roschangar, Sheldon and Senanayake, Green Chem. 2015, 17, 752)
         e_factor_complete=pmi - 1.0,
         e_factor_simple=simple_e_factor(plan),
-        atom_economy_by_step=ran({sp.id: atom_economy(route, sp.id) for sp in plan.steps}),
-        reaction_mass_efficiency_by_step=ran(
-            {sp.id: reaction_mass_efficiency(route, sp) for sp in plan.steps}),
+        atom_economy_by_step=MappingProxyType(ae_by_step),
+        reaction_mass_efficiency_by_step=MappingProxyType(rme_by_step),
         cost_per_kg=cost,
         currency=route.currency,
         unpriced=unpriced,
-        mass_per_kg_target=_frozen({r.material: r.m_kg / target for r in plan.raw_materials}),
+        mass_per_kg_target=MappingProxyType({r.material: r.m_kg / target for r in plan.raw_materials}),
         largest_raw_material=largest,
         step_count=len(plan.steps),
         longest_linear_sequence=tuple(plan.overall_yield.longest_linear_sequence),
-        from_stock_per_kg_target=_frozen({k: v / target for k, v in stock_input_kg(plan).items()}),
+        from_stock_per_kg_target=MappingProxyType({k: v / target for k, v in stock_input_kg(plan).items()}),
     )

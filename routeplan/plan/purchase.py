@@ -86,17 +86,21 @@ def with_packs(route: "Route", raws: "tuple[RawMaterialTotal, ...]",
         ``buy_m_kg`` or ``buy_V_L`` (need less stock); ``packs`` is None without a pack
         size or for a material not bought.
     """
+    from routeplan.units import magnitude
+
     out = []
     for r in raws:
         mat = route.materials[r.material]
         have = None if on_hand_kg is None else on_hand_kg.get(r.material)
         r = replace(r, bought=mat.bought, stock_m_kg=None if have is None else min(have, r.m_kg))
-        size, unit_, packs = None, None, None
-        if mat.pack is not None:
-            unit_ = "kg" if mat.pack.check("[mass]") else "L"
-            size = float(mat.pack.m_as(unit_))
-            need = r.buy_m_kg if unit_ == "kg" else r.buy_V_L
-            if mat.bought and need is not None:
-                packs = packs_to_order(need, size)
+        if mat.pack is None:
+            if r.pack_size is not None or r.pack_unit is not None or r.packs is not None:
+                r = replace(r, pack_size=None, pack_unit=None, packs=None)
+            out.append(r)  # no pack: nothing more to set
+            continue
+        unit_ = "kg" if mat.pack.check("[mass]") else "L"
+        size = magnitude(mat.pack, unit_)
+        need = r.buy_m_kg if unit_ == "kg" else r.buy_V_L
+        packs = packs_to_order(need, size) if mat.bought and need is not None else None
         out.append(replace(r, pack_size=size, pack_unit=unit_, packs=packs))
     return tuple(out)

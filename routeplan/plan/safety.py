@@ -36,7 +36,7 @@ from typing import TYPE_CHECKING
 from routeplan.errors import Problem
 from routeplan.frozen import frozen
 from routeplan.route.checks_safety import DEFAULT_PRESSURE_BAR, DEFAULT_TEMPERATURE_C
-from routeplan.units import unit
+from routeplan.units import magnitude
 from routeplan.vocab import Severity
 
 if TYPE_CHECKING:  # pragma: no cover
@@ -323,12 +323,8 @@ def _gas_keys(route: "Route") -> frozenset[str]:
     return frozenset(k for k, m in route.materials.items() if m.phase == "gas")
 
 
-def _gases(route: "Route", step: "Step", side: str):
-    """(key, coefficient) of the gases on ``side`` (reactants or products), in equation order."""
-    gas = _gas_keys(route)
-    if not gas:
-        return []
-    terms = step.equation.products if side == "products" else step.equation.reactants
+def _gases(gas: frozenset[str], terms) -> list[tuple[str, float]]:
+    """(key, coefficient) of the gases (keys in ``gas``) among equation ``terms``, in their order."""
     return [(t.key, t.coefficient) for t in terms if t.key in gas]
 
 
@@ -337,9 +333,9 @@ def _gases(route: "Route", step: "Step", side: str):
 def _conditions(step: "Step") -> tuple[float, float]:
     """Temperature [K] and absolute pressure [Pa] of the step (defaults 20 degC, 1.01325 bar)."""
     c = step.conditions
-    T_K = c.temperature.m_as(unit("K")) if c is not None and c.temperature is not None else \
+    T_K = magnitude(c.temperature, "K") if c is not None and c.temperature is not None else \
         DEFAULT_TEMPERATURE_C + ZERO_CELSIUS_K
-    p_Pa = c.pressure.m_as(unit("Pa")) if c is not None and c.pressure is not None else DEFAULT_PRESSURE_BAR * 1e5
+    p_Pa = magnitude(c.pressure, "Pa") if c is not None and c.pressure is not None else DEFAULT_PRESSURE_BAR * 1e5
     return float(T_K), float(p_Pa)
 
 
@@ -369,44 +365,49 @@ def batch_safety(route: "Route", step_id: str, runs: bool, b: "BatchPlan | None"
     """
     step = route.step(step_id)
     dosing = step.dosing
-    dosing_min = None if dosing is None else float(dosing.time.m_as(unit("min")))
+    dosing_min = None if dosing is None else magnitude(dosing.time, "min")
     if not runs or b is None or b.batches == 0:
         return StepSafety(dosed=None if dosing is None else dosing.material, dosing_time_min=dosing_min, runs=False)
     n_lim_mol = b.per_batch(b.limiting_n_mol)
-    nu_lim = step.equation.coefficient(step.limiting)
-    T_K, p_Pa = _conditions(step)
+    gas = _gas_keys(route)
+    t = step.thermal
+    evolving = _gases(gas, step.equation.products) if gas else ()
+    T_K = p_Pa = None
+    if evolving or (t is not None and t.process_temperature is None):  # only then are the conditions read
+        T_K, p_Pa = _conditions(step)
 
     evolved = []
-    for key, nu in _gases(route, step, "products"):
-        n_mol = gas_evolved_mol(nu, nu_lim, n_lim_mol)
-        V_L = ideal_gas_volume_L(n_mol, T_K, p_Pa)
-        evolved.append(GasEvolved(material=key, mol_per_batch=n_mol, volume_L_per_batch=V_L,
-                                  temperature_C=T_K - ZERO_CELSIUS_K, pressure_bar=p_Pa / 1e5,
-                                  rate_L_per_min=None if dosing_min is None else V_L / dosing_min,
-                                  vent=_vent(route.materials[key].hazards)))
+    if evolving:
+        nu_lim = step.equation.coefficient(step.limiting)
+        for key, nu in evolving:
+            n_mol = gas_evolved_mol(nu, nu_lim, n_lim_mol)
+            V_L = ideal_gas_volume_L(n_mol, T_K, p_Pa)
+            evolved.append(GasEvolved(material=key, mol_per_batch=n_mol, volume_L_per_batch=V_L,
+                                      temperature_C=T_K - ZERO_CELSIUS_K, pressure_bar=p_Pa / 1e5,
+                                      rate_L_per_min=None if dosing_min is None else V_L / dosing_min,
+                                      vent=_vent(route.materials[key].hazards)))
     taken = []
-    for key, _nu in _gases(route, step, "reactants"):
+    for key, _nu in (_gases(gas, step.equation.reactants) if gas else ()):
         n_mol = sum(c.n_mol_batch for c in charges if c.material == key and c.n_mol_batch is not None)
         taken.append(GasTakenUp(material=key, mol_per_batch=n_mol, normal_volume_L_per_batch=normal_volume_L(n_mol),
                                 vent=_vent(route.materials[key].hazards)))
 
     free_L = None
     if b.vessel in route.equipment:
-        nominal = nominal_L[b.vessel] if nominal_L else float(route.equipment[b.vessel].volume.m_as(unit("L")))
+        nominal = nominal_L[b.vessel] if nominal_L else magnitude(route.equipment[b.vessel].volume, "L")
         free_L = nominal - b.batch_V_L
 
     thermal = None
-    t = step.thermal
     if t is not None:
         m_kg = b.per_batch(b.reaction_m_kg)
-        dT = delta_T_ad_K(float(t.reaction_enthalpy.m_as(unit("kJ/mol"))), n_lim_mol, m_kg,
-                          float(t.heat_capacity.m_as(unit("kJ/(kg*K)"))))
-        Tp_K = float(t.process_temperature.m_as(unit("K"))) if t.process_temperature is not None else T_K
+        dT = delta_T_ad_K(magnitude(t.reaction_enthalpy, "kJ/mol"), n_lim_mol, m_kg,
+                          magnitude(t.heat_capacity, "kJ/(kg*K)"))
+        Tp_K = magnitude(t.process_temperature, "K") if t.process_temperature is not None else T_K
         acc = (1.0 if t.accumulation is None else t.accumulation) if dosing is not None else None
         mtsr = mtsr_K(Tp_K, dT, 1.0 if acc is None else acc)
-        mtt = None if t.max_technical_temperature is None else float(t.max_technical_temperature.m_as(unit("K")))
+        mtt = None if t.max_technical_temperature is None else magnitude(t.max_technical_temperature, "K")
         td24 = None if t.decomposition_temperature_24h is None else \
-            float(t.decomposition_temperature_24h.m_as(unit("K")))
+            magnitude(t.decomposition_temperature_24h, "K")
         thermal = ThermalScreen(
             reaction_mass_kg_per_batch=m_kg, delta_T_ad_K=dT, process_temperature_C=Tp_K - ZERO_CELSIUS_K,
             mtsr_C=mtsr - ZERO_CELSIUS_K, mtt_C=None if mtt is None else mtt - ZERO_CELSIUS_K,

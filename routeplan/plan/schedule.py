@@ -225,13 +225,16 @@ def schedule_order(timings: Sequence[StepTiming]) -> list[str]:
     return topological_order(g, str)
 
 
-def place_steps(timings: Sequence[StepTiming]) -> Schedule:
+def place_steps(timings: Sequence[StepTiming], order: Sequence[str] | None = None) -> Schedule:
     """Place every batch of every step on its vessel by the module's rules.
 
     Parameters
     ----------
     timings : sequence of StepTiming
         Every step, in any order; ``feeds_from`` must name steps of the sequence.
+    order : sequence of str, optional
+        The step ids in schedule order (:func:`schedule_order` of ``timings``), where
+        the caller has it already; worked out from ``timings`` when left out.
 
     Returns
     -------
@@ -248,7 +251,7 @@ def place_steps(timings: Sequence[StepTiming]) -> Schedule:
     (25.0, 20.0, 'S1')
     """
     by_id = {t.id: t for t in timings}
-    order = schedule_order(timings)
+    order = schedule_order(timings) if order is None else list(order)
     free: dict[str, tuple[float, str]] = {}  # vessel -> (next free time [h], step that last used it)
     slots: dict[str, StepSlot] = {}
     for sid in order:
@@ -277,7 +280,8 @@ def place_steps(timings: Sequence[StepTiming]) -> Schedule:
     chain = _critical_chain(slots, running)
     pace = None
     if chain:
-        pace = max(chain, key=lambda sid: (slots[sid].busy_h, -order.index(sid)))
+        place = {sid: k for k, sid in enumerate(order)}
+        pace = max(chain, key=lambda sid: (slots[sid].busy_h, -place[sid]))
     return Schedule(campaign_h=campaign, steps=steps, vessels=_vessel_uses(running), pace_step=pace,
                     critical_chain=tuple(chain))
 
@@ -336,12 +340,16 @@ def schedule_plan(route: "Route", steps: "Sequence[StepPlan]") -> Schedule | Non
     """
     if steps_without_cycle_time(route):
         return None
-    from routeplan.route.graph import route_step_graph
-    from routeplan.units import unit
+    from routeplan.route.graph import route_step_graph, topological_order
+    from routeplan.units import magnitude
 
     g = route_step_graph(route)  # the steps planned are the route's
+    pred = g.pred
     timings = [StepTiming(id=sp.id, vessel=sp.vessel, batches=sp.batches if sp.runs else 0,
-                          cycle_time_h=float(route.step(sp.id).cycle_time.m_as(unit("h"))),
-                          feeds_from=tuple(sorted(g.predecessors(sp.id))))
+                          cycle_time_h=magnitude(route.step(sp.id).cycle_time, "h"),
+                          feeds_from=tuple(sorted(pred[sp.id])))
                for sp in steps]
-    return place_steps(timings)
+    # with every step of the route planned, the route's step graph is the graph that
+    # schedule_order would build from the timings: its order is theirs
+    whole = len(timings) == len(pred)
+    return place_steps(timings, order=topological_order(g, str) if whole else None)

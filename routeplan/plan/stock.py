@@ -23,7 +23,7 @@ from __future__ import annotations
 from pathlib import Path
 from typing import TYPE_CHECKING, Mapping
 
-from routeplan.units import unit
+from routeplan.units import magnitude, unit
 
 if TYPE_CHECKING:  # pragma: no cover
     import pint
@@ -77,7 +77,7 @@ def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]", 
 
     # what is left to buy after the stock has one home: with_packs (the plan's own raw
     # materials carry it already when planned with this stock; a plan made without it too)
-    raws = with_packs(plan.route, plan.raw_materials, {k: float(v.m_as(unit("kg"))) for k, v in on_hand.items()})
+    raws = with_packs(plan.route, plan.raw_materials, {k: magnitude(v, "kg") for k, v in on_hand.items()})
     for r in raws:
         need = r.mass
         have = on_hand.get(r.material)

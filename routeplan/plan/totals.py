@@ -134,7 +134,6 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: float
     sum_inv_f: dict[str, float] = {}
     n_t = n_target
     for sp in steps:
-        step = route.step(sp.id)
         for c in sp.charges:
             if c.intermediate or c.material not in starting or c.n_mol is None:
                 continue

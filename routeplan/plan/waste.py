@@ -313,39 +313,7 @@ def gas_evolved_kg(items: tuple[ByProduct, ...]) -> float:
     return sum((b.mass_kg for b in items if b.gas and b.mass_kg is not None), 0.0)
 
 
-def _charge_streams(route: "Route", charges) -> list[str | None]:
-    """The stream each charge goes to, None for one that goes to none (see the module text)."""
-    mats = route.materials
-    out: list[str | None] = []
-    for c in charges:
-        mat = None if c.intermediate else mats[c.material]
-        if mat is None or (c.role not in STREAM_ROLES and mat.stream is None):
-            out.append(None)
-        else:
-            out.append(stream_of(mat))
-    return out
-
-
-def _streams(charges, masses, streams: list[str | None]) -> tuple[StreamMasses, dict[str, list[str]]]:
-    """Stream masses of ``charges``, the mass of each given in ``masses`` [kg] and its
-    stream in ``streams`` (:func:`_charge_streams`)."""
-    kg = {s: 0.0 for s in STREAMS}
-    names: dict[str, list[str]] = {s: [] for s in STREAMS}
-    for c, m, s in zip(charges, masses, streams):
-        if s is None:
-            continue
-        kg[s] += m
-        if c.material not in names[s]:
-            names[s].append(c.material)
-    return StreamMasses(kg["aqueous"], kg["organic"], kg["halogenated"]), names
-
-
-def _with_residue(streams: StreamMasses, waste: float) -> StreamMasses:
-    rest = waste - (streams.aqueous_kg + streams.organic_kg + streams.halogenated_kg)
-    return StreamMasses(streams.aqueous_kg, streams.organic_kg, streams.halogenated_kg, rest)
-
-
-def step_waste(route: "Route", sp: "StepPlan") -> StepWaste:
+def step_waste(route: "Route", sp: "StepPlan", memo: dict | None = None) -> StepWaste:
     """The waste of one planned step (see the module text).
 
     Parameters
@@ -353,36 +321,79 @@ def step_waste(route: "Route", sp: "StepPlan") -> StepWaste:
     route : Route
     sp : StepPlan
         The planned step, with its batches sized.
+    memo : dict, optional
+        Material key -> (stream, names a stream), shared by the steps of one plan
+        (:func:`route_waste`); filled as the charges are read.
 
     Returns
     -------
     StepWaste
     """
-    masses = [c.m_kg for c in sp.charges]
-    inputs = sum(masses)
+    if memo is None:
+        memo = {}
+    mats = route.materials
     product = sp.product_m_kg
-    where = _charge_streams(route, sp.charges)
-    streams, names = _streams(sp.charges, masses, where)
+    batch = sp.batch
+    runs = sp.not_run is None  # StepPlan.runs
+    by_batch = runs and batch is not None and batch.batches > 0
+    kg = dict.fromkeys(STREAMS, 0.0)  # campaign [kg], each added in order of addition
+    b_kg = dict.fromkeys(STREAMS, 0.0)  # one batch [kg]
+    names: dict[str, dict[str, None]] = {}  # stream -> its materials, in order of addition
+    masses, b_masses, raw, left = [], [], [], []
+    for c in sp.charges:
+        m = c.m_kg
+        masses.append(m)
+        if by_batch:
+            n = c.batches
+            mb = None if n == 0 else m / n  # ChargePlan.m_kg_batch
+            b_masses.append(mb)
+        if c.leaves:
+            left.append(c)
+        if c.intermediate:
+            continue  # the compound, taken on: in no stream
+        raw.append(m)
+        key = c.material
+        known = memo.get(key)
+        if known is None:
+            mat = mats[key]
+            known = memo[key] = (stream_of(mat), mat.stream is not None)
+        s = known[0] if known[1] or c.role in STREAM_ROLES else None
+        if s is None:
+            continue
+        kg[s] += m
+        if by_batch:
+            b_kg[s] += mb
+        seen = names.get(s)
+        if seen is None:
+            names[s] = {key: None}
+        else:
+            seen[key] = None  # a key seen before keeps its place
+    inputs = sum(masses)
     per_batch = None
-    if sp.runs and sp.batch is not None and sp.batches > 0:
-        b_masses = [c.m_kg_batch for c in sp.charges]
-        b_streams, _ = _streams(sp.charges, b_masses, where)
-        per_batch = _with_residue(b_streams, sum(b_masses) - sp.batch.per_batch(sp.batch.product_m_kg))
+    if by_batch:
+        per_batch = _with_residue(b_kg, sum(b_masses) - batch.per_batch(batch.product_m_kg))
     items = by_products(route, sp.id, sp.product_n_mol)
-    raw = sum(m for c, m in zip(sp.charges, masses) if not c.intermediate)
-    left = [c for c in sp.charges if c.leaves]
-    return StepWaste(step=sp.id, batches=sp.batches if sp.runs else 0, inputs_kg=inputs, product_kg=product,
-                     raw_kg=raw, separated_kg=sum((c.m_kg for c in left), 0.0),
-                     separated_materials=tuple(dict.fromkeys(c.material for c in left)),
-                     campaign=_with_residue(streams, inputs - product), per_batch=per_batch, by_products=items,
-                     stream_materials={k: tuple(v) for k, v in names.items() if v},
+    separated_kg, separated = 0.0, ()
+    if left:
+        separated_kg = sum((c.m_kg for c in left), 0.0)
+        separated = tuple(dict.fromkeys(c.material for c in left))
+    return StepWaste(step=sp.id, batches=batch.batches if runs else 0, inputs_kg=inputs, product_kg=product,
+                     raw_kg=sum(raw), separated_kg=separated_kg, separated_materials=separated,
+                     campaign=_with_residue(kg, inputs - product), per_batch=per_batch, by_products=items,
+                     stream_materials={k: tuple(names[k]) for k in STREAMS if k in names},
                      gas_kg=gas_evolved_kg(items))
+
+
+def _with_residue(kg: dict[str, float], waste: float) -> StreamMasses:
+    """The stream masses ``kg`` [kg] (stream -> mass) with the rest of ``waste`` [kg] as residue."""
+    aq, org, hal = kg["aqueous"], kg["organic"], kg["halogenated"]
+    return StreamMasses(aq, org, hal, waste - (aq + org + hal))
 
 
 def _warnings(route: "Route", sw: StepWaste) -> list[Problem]:
     out = []
-    step = route.step(sw.step)
     if sw.by_products_kg > sw.waste_kg * (1 + _SLACK) + 1e-12:
+        step = route.step(sw.step)
         out.append(Problem.with_amounts(
             "warning",
             (f"step {sw.step}: the by-products from its equation (", (sw.by_products_kg, "mass"),
@@ -390,6 +401,7 @@ def _warnings(route: "Route", sw: StepWaste) -> list[Problem]:
             location=step.location, step=sw.step,
             hint="check the equation's coefficients and the step's yield"))
     if sw.campaign.residue_kg < -_SLACK * max(sw.inputs_kg, 1e-12):
+        step = route.step(sw.step)
         out.append(Problem.with_amounts(
             "warning",
             (f"step {sw.step}: its solvent and work-up charges (", (sw.waste_kg - sw.campaign.residue_kg, "mass"),
@@ -414,14 +426,19 @@ def route_waste(plan: "Plan") -> Waste:
         from stock, ``product_kg`` the target delivered.
     """
     route = plan.route
-    steps = tuple(step_waste(route, sp) for sp in plan.steps)
-    total = StreamMasses()
+    memo: dict = {}
+    steps = tuple(step_waste(route, sp, memo) for sp in plan.steps)
+    aq = org = hal = res = 0.0  # the campaign's streams [kg], summed step by step
     warnings: list[Problem] = []
     for sw in steps:
-        total = total.plus(sw.campaign)
+        w = sw.campaign
+        aq += w.aqueous_kg
+        org += w.organic_kg
+        hal += w.halogenated_kg
+        res += w.residue_kg
         if sw.batches:
             warnings += _warnings(route, sw)
     inputs = sum(sw.raw_kg for sw in steps)
     inputs += sum(sp.stock_m_kg for sp in plan.steps if sp.stock_m_kg is not None)
-    return Waste(steps=steps, total=total, inputs_kg=inputs, product_kg=plan.target_kg,
+    return Waste(steps=steps, total=StreamMasses(aq, org, hal, res), inputs_kg=inputs, product_kg=plan.target_kg,
                  gas_kg=sum((sw.gas_kg for sw in steps), 0.0), warnings=tuple(warnings))

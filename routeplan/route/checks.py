@@ -529,7 +529,7 @@ class _Checker:
         self.graph(steps, made_by)
 
     def graph(self, steps: list[StepModel], made_by: dict[str, int]) -> None:
-        from routeplan.route.graph import find_step_cycle, step_graph
+        from routeplan.route.graph import find_step_cycle, step_links, upstream
 
         stand_ins = []
         for i, s in enumerate(steps):
@@ -548,11 +548,8 @@ class _Checker:
         t = self.parts.target
         if t is None or t.material is None or t.material not in made_by:
             return
-        import networkx as nx
-
-        g = step_graph(stand_ins)
         final = steps[made_by[t.material]].id
-        keep = nx.ancestors(g, final) | {final}
+        keep = upstream(step_links(stand_ins), final) | {final}
         for i, s in enumerate(steps):
             if s.id not in keep:
                 self.add(Severity.WARNING, ("steps", i, "id"),

@@ -6,7 +6,11 @@ step -> material for the step's main product (attribute ``product=True``) and ea
 by-product (``product=False``).  Step nodes carry ``step`` (the :class:`Step`);
 material nodes carry ``material`` (the :class:`Material`).
 
-networkx is imported inside the functions, never at module top.
+networkx is imported inside the functions, never at module top.  The planner's own
+questions (the execution order, the longest linear sequence, the steps upstream of a
+step, whether the steps form a cycle) need only who feeds whom, which
+:class:`StepLinks` holds in two plain dicts: building a networkx graph for them cost
+more than answering them.
 """
 
 from __future__ import annotations
@@ -22,6 +26,10 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = [
     "build_graph",
     "step_graph",
+    "StepLinks",
+    "step_links",
+    "route_step_links",
+    "upstream",
     "find_step_cycle",
     "execution_order",
     "route_step_graph",
@@ -73,37 +81,98 @@ def step_graph(steps) -> "nx.DiGraph":
     return g
 
 
-def _reaching_a_cycle(g: "nx.DiGraph") -> list:
-    """Nodes of ``g`` from which a cycle can be reached, in ``g``'s node order.
+class StepLinks:
+    """Who feeds whom among the steps, as :func:`step_graph` has it, in two plain dicts.
+
+    ``pred[B]`` and ``succ[A]`` hold an entry ``A`` and ``B`` when B charges A's main
+    product (the value is the material).  Both dicts have every step, in the order
+    given; each inner dict is in the order the edges were met, as networkx keeps them,
+    so :func:`topological_order` reads it as it reads a ``DiGraph``.
+    """
+
+    __slots__ = ("succ", "pred")
+
+    def __init__(self, succ: dict, pred: dict) -> None:
+        self.succ, self.pred = succ, pred
+
+
+def step_links(steps) -> StepLinks:
+    """:class:`StepLinks` of ``steps``: the edges of :func:`step_graph`, without networkx.
+
+    Parameters
+    ----------
+    steps : iterable
+        Objects with ``id``, ``product`` and ``charges`` (each with ``material``).
+    """
+    steps = list(steps)
+    made_by: dict[str, str] = {}
+    for s in steps:
+        made_by.setdefault(s.product, s.id)
+    succ: dict[str, dict] = {s.id: {} for s in steps}
+    pred: dict[str, dict] = {s.id: {} for s in steps}
+    for s in steps:
+        sid, into = s.id, pred[s.id]
+        for c in s.charges:
+            src = made_by.get(c.material)
+            if src is not None:
+                succ[src][sid] = into[src] = c.material
+    return StepLinks(succ, pred)
+
+
+def route_step_links(route: "Route") -> StepLinks:
+    """:func:`step_links` of ``route.steps``, built once per route (a Route is frozen);
+    read it, never change it."""
+    return _route_cache(route, "_step_links", lambda: step_links(route.steps))
+
+
+def upstream(links: StepLinks, step_id: str) -> set[str]:
+    """Ids of the steps upstream of ``step_id`` (``networkx.ancestors``), without it."""
+    pred = links.pred
+    seen: set[str] = set()
+    todo = [step_id]
+    while todo:
+        for p in pred[todo.pop()]:
+            if p not in seen:
+                seen.add(p)
+                todo.append(p)
+    seen.discard(step_id)  # on a cycle through it, as networkx: a node is not its own ancestor
+    return seen
+
+
+def _reaching_a_cycle(g) -> list:
+    """Nodes of ``g`` (a :class:`StepLinks` or a ``DiGraph``) from which a cycle can be
+    reached, in ``g``'s node order.
 
     Peels off, one pass and no recursion, every node whose successors are all peeled
     (a DAG peels off completely).
     """
-    out_degree = dict(g.out_degree())
+    out_degree = {n: len(s) for n, s in g.succ.items()}
+    pred = g.pred
     todo = [n for n, d in out_degree.items() if d == 0]
     while todo:
         n = todo.pop()
-        for p in g.predecessors(n):
+        for p in pred[n]:
             out_degree[p] -= 1
             if out_degree[p] == 0:
                 todo.append(p)
-    return [n for n in g if out_degree[n] > 0]
+    return [n for n in g.pred if out_degree[n] > 0]
 
 
 def find_step_cycle(steps) -> list[str] | None:
     """Return one cycle of steps as ``[S3, S5, S3]``, or None when there is none.
 
-    Steps that cannot reach a cycle are set aside first, in linear time, so a long route
-    without a cycle costs one pass; the cycle reported is the one a depth-first search
-    from the first remaining step (in file order) meets.
+    Steps that cannot reach a cycle are set aside first, in linear time and on plain
+    dicts, so a long route without a cycle costs one pass; only a route with a cycle
+    gets its networkx graph, and the cycle reported is the one a depth-first search from
+    the first remaining step (in file order) meets.
     """
-    import networkx as nx
-
-    g = step_graph(steps)
-    left = _reaching_a_cycle(g)
+    steps = list(steps)
+    left = _reaching_a_cycle(step_links(steps))
     if not left:
         return None
-    cycle = nx.find_cycle(g.subgraph(left))
+    import networkx as nx
+
+    cycle = nx.find_cycle(step_graph(steps).subgraph(left))
     nodes = [u for u, _v in cycle]
     return nodes + [nodes[0]]
 
@@ -115,14 +184,14 @@ def execution_order(route: "Route") -> list[str]:
     Worked out once per route (a Route is frozen).
     """
     order = _route_cache(route, "_execution_order", lambda: tuple(
-        topological_order(route_step_graph(route), {s.id: i for i, s in enumerate(route.steps)}.__getitem__)))
+        topological_order(route_step_links(route), {s.id: i for i, s in enumerate(route.steps)}.__getitem__)))
     return list(order)
 
 
 def route_step_graph(route: "Route") -> "nx.DiGraph":
-    """:func:`step_graph` of ``route.steps``, built once per route (a Route is frozen) and
-    shared by the execution order, the longest linear sequence, the steps upstream of a
-    step and the schedule; read it, never change it."""
+    """:func:`step_graph` of ``route.steps``, built once per route (a Route is frozen),
+    for a caller that needs networkx's graph (the schedule); read it, never change it.
+    Who feeds whom alone is :func:`route_step_links`."""
     return _route_cache(route, "_step_graph", lambda: step_graph(route.steps))
 
 
@@ -138,7 +207,7 @@ def _route_cache(route, name: str, make):
     return value
 
 
-def topological_order(g: "nx.DiGraph", key) -> list:
+def topological_order(g: "nx.DiGraph | StepLinks", key) -> list:
     """The nodes of ``g`` in topological order, ties to the smallest ``key(node)``.
 
     Kahn's algorithm with the ready nodes in a heap: the order
@@ -166,10 +235,7 @@ def topological_order(g: "nx.DiGraph", key) -> list:
 
 def steps_leading_to(route: "Route", step_id: str) -> set[str]:
     """Ids of ``step_id`` and every step upstream of it."""
-    import networkx as nx
-
-    g = route_step_graph(route)
-    return set(nx.ancestors(g, step_id)) | {step_id}
+    return upstream(route_step_links(route), step_id) | {step_id}
 
 
 def longest_linear_sequence(route: "Route") -> list[str]:
@@ -211,11 +277,9 @@ def longest_linear_sequence(route: "Route") -> list[str]:
     >>> longest_linear_sequence(NS(steps=steps, target=NS(material="p")))
     ['A1', 'A2', 'S5']
     """
-    import networkx as nx
-
-    g = route_step_graph(route)
+    links = route_step_links(route)
     final = next(s.id for s in route.steps if s.product == route.target.material)
-    keep = set(nx.ancestors(g, final)) | {final}
+    keep = upstream(links, final) | {final}
     expected = {s.id: s.yield_.expected for s in route.steps}
     length: dict[str, int] = {}
     overall: dict[str, float] = {}  # product of expected yields along the chosen chain [-]
@@ -237,7 +301,7 @@ def longest_linear_sequence(route: "Route") -> list[str]:
         if sid not in keep:
             continue
         best = None
-        for p in g.predecessors(sid):
+        for p in links.pred[sid]:
             if p not in keep:
                 continue
             if (best is None or length[p] > length[best]

@@ -53,6 +53,10 @@ BASES: tuple[Basis, ...] = tuple(Basis)
 #: gives no ``charge_tolerance`` [-] (common practice, no source).
 DEFAULT_CHARGE_TOLERANCE = 0.01
 
+# the molar bases as module names: reading a member off its class (Basis.EQUIV) costs an
+# enum lookup each time, and Charge.equiv is read for every charge of every plan
+_EQUIV, _STOICHIOMETRIC, _MOL_PERCENT = Basis.EQUIV, Basis.STOICHIOMETRIC, Basis.MOL_PERCENT
+
 #: Roles a charge line may have: the members of :class:`routeplan.vocab.Role`.
 ROLES: tuple[Role, ...] = tuple(Role)
 
@@ -215,9 +219,10 @@ class Charge:
     @property
     def equiv(self) -> float | None:
         """Moles per mole of limiting reagent [-], for the molar bases; else None."""
-        if self.basis in (Basis.EQUIV, Basis.STOICHIOMETRIC):
+        basis = self.basis  # always a member (__post_init__): compared by identity, to the module's names
+        if basis is _EQUIV or basis is _STOICHIOMETRIC:
             return self.value
-        if self.basis is Basis.MOL_PERCENT:
+        if basis is _MOL_PERCENT:
             return self.value / 100.0
         return None
 

@@ -105,6 +105,35 @@ def test_execution_order_is_networkx_lexicographic_order_by_file_position(case):
         assert execution_order(_route(order, steps[-1].product)) == expected
 
 
+@st.composite
+def step_webs(draw):
+    """Small random sets of steps, any step fed by any other (cycles and self-feeding included)."""
+    n = draw(st.integers(1, 7))
+    names = draw(st.permutations([f"S{k}" for k in range(n)]))
+    return [_step(names[k], f"m{k}", [f"m{j}" for j in draw(st.lists(st.integers(0, n - 1), max_size=4))]
+                  + [f"raw{k}"]) for k in range(n)]
+
+
+@settings(max_examples=300, deadline=None)
+@given(step_webs())
+def test_step_links_are_the_networkx_graph_without_networkx(steps):
+    # reference: the networkx DiGraph of step_graph (edges and their order), nx.ancestors,
+    # nx.is_directed_acyclic_graph
+    import networkx as nx
+
+    g = graph.step_graph(steps)
+    links = graph.step_links(steps)
+    assert {n: list(d) for n, d in links.succ.items()} == {n: list(d) for n, d in g.succ.items()}
+    assert {n: list(d) for n, d in links.pred.items()} == {n: list(d) for n, d in g.pred.items()}
+    assert list(links.pred) == list(g)
+    for s in steps:
+        assert graph.upstream(links, s.id) == nx.ancestors(g, s.id)
+    cycle = find_step_cycle(steps)
+    assert (cycle is None) == nx.is_directed_acyclic_graph(g)
+    if cycle is not None:
+        assert cycle[0] == cycle[-1] and all(g.has_edge(a, b) for a, b in zip(cycle, cycle[1:]))
+
+
 def test_equal_yields_fall_back_to_step_ids():
     # two branches of two steps with equal overall yields (0.9 * 0.8 = 0.8 * 0.9): ids decide
     steps = [_step("B1", "b1", ["rb"], 0.8), _step("B2", "b2", ["b1"], 0.9),
