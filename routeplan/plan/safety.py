@@ -460,6 +460,8 @@ def safety_warnings(route: "Route", steps: "tuple[StepPlan, ...]") -> list[Probl
     batch, and gas evolved in a step with no dosing."""
     warnings: list[Problem] = []
     for sp in steps:
-        if sp.safety is not None and sp.safety.runs:
-            warnings.extend(_warnings(route, sp, sp.safety))
+        s = sp.safety
+        # every warning is about the heat or a gas evolved: a step with neither has none
+        if s is not None and s.runs and (s.thermal is not None or s.gas_evolved):
+            warnings.extend(_warnings(route, sp, s))
     return warnings

@@ -295,16 +295,28 @@ def by_products(route: "Route", step_id: str, product_mol: float) -> tuple[ByPro
     tuple of ByProduct
         In the order of the equation.
     """
-    step = route.step(step_id)
-    nu_p = step.equation.coefficient(step.product)
+    return _by_products(route, route.step(step_id), product_mol, {})
+
+
+def _by_products(route: "Route", step, product_mol: float, memo: dict) -> tuple[ByProduct, ...]:
+    """:func:`by_products` of route step ``step``; ``memo`` keeps, per material key, its
+    molar mass [g/mol] (None without one) and whether it is a gas, read once per plan."""
+    eq = step.equation
+    main = step.product
+    nu_p = eq.coefficient(main)
     out = []
-    for t in step.equation.products:
-        if t.key == step.product:
+    for t in eq.products:
+        key = t.key
+        if key == main:
             continue
-        mat = route.materials[t.key]
+        known = memo.get(key)
+        if known is None:
+            mat = route.materials[key]
+            known = memo[key] = (magnitude(mat.molar_mass, "g/mol"), _is_gas(mat))
+        M_g, gas = known
         n = t.coefficient / nu_p * product_mol
-        mass = None if mat.molar_mass is None else n * magnitude(mat.molar_mass, "g/mol") / 1000.0  # g -> kg
-        out.append(ByProduct(t.key, n, mass, _is_gas(mat)))
+        mass = None if M_g is None else n * M_g / 1000.0  # g -> kg
+        out.append(ByProduct(key, n, mass, gas))
     return tuple(out)
 
 
@@ -322,8 +334,9 @@ def step_waste(route: "Route", sp: "StepPlan", memo: dict | None = None) -> Step
     sp : StepPlan
         The planned step, with its batches sized.
     memo : dict, optional
-        Material key -> (stream, names a stream), shared by the steps of one plan
-        (:func:`route_waste`); filled as the charges are read.
+        What is read of each material once per plan, shared by its steps
+        (:func:`route_waste`): under ``"streams"``, key -> (stream, names a stream);
+        under ``"by_products"``, key -> (molar mass [g/mol], is a gas).
 
     Returns
     -------
@@ -331,6 +344,7 @@ def step_waste(route: "Route", sp: "StepPlan", memo: dict | None = None) -> Step
     """
     if memo is None:
         memo = {}
+    streams, by_memo = memo.setdefault("streams", {}), memo.setdefault("by_products", {})
     mats = route.materials
     product = sp.product_m_kg
     batch = sp.batch
@@ -353,10 +367,10 @@ def step_waste(route: "Route", sp: "StepPlan", memo: dict | None = None) -> Step
             continue  # the compound, taken on: in no stream
         raw.append(m)
         key = c.material
-        known = memo.get(key)
+        known = streams.get(key)
         if known is None:
             mat = mats[key]
-            known = memo[key] = (stream_of(mat), mat.stream is not None)
+            known = streams[key] = (stream_of(mat), mat.stream is not None)
         s = known[0] if known[1] or c.role in STREAM_ROLES else None
         if s is None:
             continue
@@ -372,7 +386,7 @@ def step_waste(route: "Route", sp: "StepPlan", memo: dict | None = None) -> Step
     per_batch = None
     if by_batch:
         per_batch = _with_residue(b_kg, sum(b_masses) - batch.per_batch(batch.product_m_kg))
-    items = by_products(route, sp.id, sp.product_n_mol)
+    items = _by_products(route, route.step(sp.id), sp.product_n_mol, by_memo)
     separated_kg, separated = 0.0, ()
     if left:
         separated_kg = sum((c.m_kg for c in left), 0.0)
