@@ -16,6 +16,7 @@ second plan of the same route starts from numbers.
 
 from __future__ import annotations
 
+import functools
 from typing import TYPE_CHECKING, Any, Callable, Mapping
 
 from routeplan.errors import PlanError
@@ -158,11 +159,13 @@ class CoreRoute:
     target_kg_per_mol_pure: Number
     overage: Number
 
+    @functools.cached_property
+    def _steps_by_id(self) -> Mapping[str, CoreStep]:
+        return {s.id: s for s in self.steps}
+
     def step(self, step_id: str) -> CoreStep:
-        for s in self.steps:
-            if s.id == step_id:
-                return s
-        raise KeyError(step_id)
+        """The step with id ``step_id`` (a dict built on first use: no search a call)."""
+        return self._steps_by_id[step_id]
 
 
 def molar_masses(route: "Route") -> Mapping[str, float | None]:

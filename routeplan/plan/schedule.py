@@ -340,16 +340,16 @@ def schedule_plan(route: "Route", steps: "Sequence[StepPlan]") -> Schedule | Non
     """
     if steps_without_cycle_time(route):
         return None
-    from routeplan.route.graph import route_step_graph, topological_order
+    from routeplan.route.graph import route_step_links, topological_order
     from routeplan.units import magnitude
 
-    g = route_step_graph(route)  # the steps planned are the route's
-    pred = g.pred
+    links = route_step_links(route)  # the steps planned are the route's; built once per route
+    pred = links.pred
     timings = [StepTiming(id=sp.id, vessel=sp.vessel, batches=sp.batches if sp.runs else 0,
                           cycle_time_h=magnitude(route.step(sp.id).cycle_time, "h"),
                           feeds_from=tuple(sorted(pred[sp.id])))
                for sp in steps]
-    # with every step of the route planned, the route's step graph is the graph that
-    # schedule_order would build from the timings: its order is theirs
+    # with every step of the route planned, the route's step links are the graph that
+    # schedule_order would build from the timings: their order is theirs
     whole = len(timings) == len(pred)
-    return place_steps(timings, order=topological_order(g, str) if whole else None)
+    return place_steps(timings, order=topological_order(links, str) if whole else None)

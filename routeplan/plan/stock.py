@@ -86,7 +86,7 @@ def stock_plan(plan: "Plan", stock: "str | Path | Mapping[str, pint.Quantity]", 
                 to_buy.append((r.material, need))
             continue
         if need.magnitude > 0:
-            ratio = (have / need).m_as("")
+            ratio = magnitude(have / need, "")  # [-]: as m_as(""), by the cached factor
             if best_ratio is None or ratio < best_ratio:
                 best_ratio, limited_by = ratio, r.material
         if r.bought and r.buy_m_kg > 0:  # need less stock (routeplan.plan.purchase.with_packs)

@@ -27,7 +27,9 @@ def raw_material_totals(route: "Route", steps: "tuple[StepPlan, ...]") -> "tuple
         for c in sp.charges:
             if c.intermediate:
                 continue
-            a = acc.setdefault(c.material, [0.0, None, None, {}])  # steps as an ordered set
+            a = acc.get(c.material)
+            if a is None:  # mass [kg], volume [L], moles [mol], steps as an ordered set
+                a = acc[c.material] = [0.0, None, None, {}]
             a[0] += c.m_kg
             if c.V_L is not None:
                 a[1] = c.V_L if a[1] is None else a[1] + c.V_L
@@ -54,14 +56,18 @@ def downstream_factors(route: "Route") -> dict[str, float]:
     """
     from routeplan.route.graph import execution_order
 
-    out: dict[str, float] = {route.target.material: 1.0}
+    target = route.target.material
+    consumers = route.consumers
+    out: dict[str, float] = {target: 1.0}
     for sid in reversed(execution_order(route)):
         product = route.step(sid).product
-        if product == route.target.material:
+        if product == target:
             continue
         best = 0.0
-        for user in route.consumers.get(product, ()):
-            best = max(best, stoichiometric_factor(route, user, product, out))
+        for user in consumers.get(product, ()):
+            f = stoichiometric_factor(route, user, product, out)
+            if f > best:
+                best = f
         out[product] = best
     return out
 
@@ -89,7 +95,8 @@ def starting_materials(route: "Route") -> frozenset[str]:
     marked in the route file with ``starting_material: true``.
     """
     marked = {k for k, m in route.materials.items() if m.starting_material}
-    return frozenset(s.limiting for s in route.steps if not route.is_intermediate(s.limiting)) | marked
+    made = route.intermediates
+    return frozenset(s.limiting for s in route.steps if s.limiting not in made) | marked
 
 
 def linear_sequence(route: "Route") -> tuple[str, ...]:

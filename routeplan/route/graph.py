@@ -181,11 +181,18 @@ def execution_order(route: "Route") -> list[str]:
     """Step ids in an order in which every step runs after the steps feeding it.
 
     Ties are broken by the order of the steps in the file, so the order is stable.
-    Worked out once per route (a Route is frozen).
+    Worked out once per route (a Route is frozen).  A file that already lists every
+    step after the steps feeding it (the usual way of writing a route) is its own
+    order: the sort would give it back, so one pass over the links checks it instead.
     """
-    order = _route_cache(route, "_execution_order", lambda: tuple(
-        topological_order(route_step_links(route), {s.id: i for i, s in enumerate(route.steps)}.__getitem__)))
-    return list(order)
+    def make() -> tuple[str, ...]:
+        pred = route_step_links(route).pred
+        position = {s.id: i for i, s in enumerate(route.steps)}
+        if all(position[p] < i for i, into in enumerate(pred.values()) for p in into):
+            return tuple(position)
+        return tuple(topological_order(route_step_links(route), position.__getitem__))
+
+    return list(_route_cache(route, "_execution_order", make))
 
 
 def route_step_graph(route: "Route") -> "nx.DiGraph":
