@@ -1,6 +1,6 @@
 """The engine's speed targets, each measured as a ratio of two timings taken in one run.
 
-Run: ``python bench/engine_bench.py [--big]``.  Prints, side by side:
+Run: ``python bench/engine_bench.py``.  Prints, side by side:
 
 1. ``routeplan plan demo --json`` (whole process, user + system CPU seconds of the child
    from ``wait4``) over the import floor of the packages it loads
@@ -16,7 +16,7 @@ Run: ``python bench/engine_bench.py [--big]``.  Prints, side by side:
    adds up the ones the issue names (walk, batches, totals, metrics), the later
    capabilities (safety, purchase packs, schedule, waste, cost) shown apart;
 4. loading the 200-step route over ruamel's bare compose of its text; target 3x;
-5. growth of load + plan from 10 to 6 250 steps (``--big``: and 10 000), each 5x in steps
+5. growth of load + plan from 10 to 10 000 steps (x5 up to 6 250, then x1.6), each 5x in steps
    within 6x in time, with the growth of ruamel's bare compose of the same files beside
    it (at thousands of steps CPython's memory makes even that grow faster than the steps);
 6. the terminal output of a 200-step plan, in process (plain text, 120 columns), also as a
@@ -217,7 +217,6 @@ def stage_times(text: str, repeat: int) -> tuple[float, dict[str, float]]:
 
 
 def main() -> int:
-    big = "--big" in sys.argv
     import routeplan
     from routeplan.route.load import load_route_text
 
@@ -263,7 +262,7 @@ def main() -> int:
         t_load = min(t_load, best(lambda: load_route_text(text, "b200.yaml"), repeat=1, before=cold_caches))
     print(f"4 load 200 steps / ruamel compose     {t_load * 1e3:.1f} / {t_compose * 1e3:.1f} ms = {t_load / t_compose:5.2f}x   3x")
 
-    sizes = (10, 50, 250, 1250, 6250, 10000) if big else (10, 50, 250, 1250, 6250)
+    sizes = (10, 50, 250, 1250, 6250, 10000)
     previous = None
     print("  (beside it, ruamel's bare compose of the same files: how this machine and Python grow alone)")
     for n in sizes:

@@ -26,7 +26,7 @@ True
 
 from __future__ import annotations
 
-from typing import Any, ClassVar
+from typing import Any, Callable, ClassVar
 
 from routeplan.frozen import frozen
 from routeplan.vocab import Severity
@@ -248,6 +248,13 @@ class Problem:
     ``severity`` is a :class:`routeplan.vocab.Severity` (given as the member or its word,
     ``"error"`` or ``"warning"``; another word raises ``ValueError``).
 
+    A finding that names amounts (a mass, a volume, moles) may keep them apart in
+    ``parts``: its words as strings and each amount as ``(value, kind)``, the value in the
+    plan's fixed units (``kind`` ``"mass"`` [kg], ``"volume"`` [L] or ``"amount"`` [mol]).
+    ``message`` then reads them in those units (:meth:`with_amounts`), and a view that
+    shows the plan in other units words them in its own (:meth:`render` with
+    ``amount_text``).
+
     >>> p = Problem("warning", "price missing", Location("r.yaml", 3, 5, "materials.nacl"))
     >>> p.severity is Severity.WARNING, p.severity == "warning", p.key
     (True, True, 'materials.nacl')
@@ -258,6 +265,7 @@ class Problem:
     location: Location | None = None
     step: str | None = None
     hint: str | None = None
+    parts: tuple = ()
 
     def __post_init__(self) -> None:
         if not isinstance(self.severity, Severity):
@@ -268,11 +276,39 @@ class Problem:
         """Key path of the finding (the key of its location), or None."""
         return self.location.key if self.location is not None else None
 
-    def render(self) -> str:
-        text = (self.location.prefix() if self.location else "") + self.message
+    @classmethod
+    def with_amounts(cls, severity, parts: tuple, **kw) -> "Problem":
+        """A finding whose message is ``parts`` (strings, and ``(value, kind)`` amounts)
+        read in the plan's fixed units, 4 significant figures: ``'33.67 kg'``.
+
+        >>> p = Problem.with_amounts("warning", ("a batch charges ", (33.671, "mass"), " of SM"))
+        >>> p.message, p.render(lambda value, kind: f"{value * 1000:g} g")
+        ('a batch charges 33.67 kg of SM', 'a batch charges 33671 g of SM')
+        """
+        return cls(severity, _joined(parts, _fixed_units), parts=tuple(parts), **kw)
+
+    def render(self, amount_text: "Callable[[float, str], str] | None" = None) -> str:
+        """``file:line:col: key: message (hint)``; with ``amount_text(value, kind)``, the
+        amounts of ``parts`` worded by it (a view's units) instead of as in ``message``."""
+        message = self.message if amount_text is None or not self.parts else _joined(self.parts, amount_text)
+        text = (self.location.prefix() if self.location else "") + message
         if self.hint:
             text += f" ({self.hint})"
         return text
+
+
+#: The plan's fixed unit of each kind of amount (the units of the JSON plan).
+_FIXED_UNITS = {"mass": "kg", "volume": "L", "amount": "mol"}
+
+
+def _fixed_units(value: float, kind: str) -> str:
+    """An amount [kg, L or mol by ``kind``] to 4 significant figures with its unit."""
+    return f"{value:.4g} {_FIXED_UNITS[kind]}"
+
+
+def _joined(parts: tuple, amount_text: "Callable[[float, str], str]") -> str:
+    """The words of ``parts`` with each ``(value, kind)`` amount worded by ``amount_text``."""
+    return "".join(p if isinstance(p, str) else amount_text(*p) for p in parts)
 
 
 class RouteError(RouteplanError, ValueError):

@@ -23,11 +23,13 @@ def echo_err(text: str) -> None:
     click.echo(text, err=True)
 
 
-def echo_warnings(problems, *, strict: bool = False) -> None:
+def echo_warnings(problems, *, strict: bool = False, units=None) -> None:
     """Print warnings to standard error, each once, in the order found.
 
     On a terminal a long warning is folded to its width with a hanging indent; otherwise
     each stays on one line (``file:line:column: ...``), as editors and ``grep`` read them.
+    With ``units`` (a :class:`routeplan.views.display_units.DisplayUnits`), the amounts a
+    plan's warning names are in the plan's units, as its tables are.
     """
     import sys
 
@@ -37,7 +39,7 @@ def echo_warnings(problems, *, strict: bool = False) -> None:
     width = output_width(sys.stderr) if fold else 0
     seen: set[str] = set()
     for p in problems:
-        text = f"{Severity.ERROR if strict else Severity.WARNING}: {p.render()}"
+        text = f"{Severity.ERROR if strict else Severity.WARNING}: {p.render(None if units is None else units.text)}"
         if text in seen:
             continue
         seen.add(text)

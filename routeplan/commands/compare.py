@@ -60,11 +60,17 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
     loaded = [load_route(path) for path in routes]
     plans, notes = plan_for_comparison(loaded, amount, yields=YieldCase(yields), confidence=level, draws=draws, seed=seed)
     cmp = compare_plans(plans, notes)
+    from dataclasses import replace
+
+    from routeplan.views.display_units import choose_units
+
+    shown = choose_units(cmp.amount, units)
     for label, plan in zip(cmp.labels, plans):
         # a warning without a file in its location would not say which route it is about
         echo_warnings([p if p.location is not None and p.location.file
-                       else p.__class__(p.severity, f"{label}: {p.message}", p.location, p.step, p.hint)
-                       for p in plan.warnings])
+                       else replace(p, message=f"{label}: {p.message}",
+                                    parts=(f"{label}: ", *p.parts) if p.parts else ())
+                       for p in plan.warnings], units=shown)
     with output_set() as out:  # every output complete before any is moved into place
         if json_out is not None:
             from routeplan.export.compare_out import comparison_to_json
@@ -83,9 +89,8 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
         echo_caution(err=True)
     else:
         from routeplan.export.compare_out import print_comparison
-        from routeplan.views.display_units import choose_units
 
-        print_comparison(cmp, units=choose_units(cmp.amount, units))
+        print_comparison(cmp, units=shown)
 
 
 def register(cli: click.Group) -> None:

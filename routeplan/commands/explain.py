@@ -59,7 +59,7 @@ def explain_cmd(route: str, what: tuple[str, ...], target: str | None, stock_fil
 
     # each line of the chain folded to the width, its continuation indented under it
     print_blocks([Para(line, hang=3) for line in lines])
-    echo_warnings(plan.warnings)
+    echo_warnings(plan.warnings, units=shown)
     echo_caution()
 
 

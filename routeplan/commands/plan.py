@@ -83,8 +83,11 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
         from dataclasses import replace
 
         bare = replace(plan, derivation=None)
+    from routeplan.views.display_units import plan_units
+
+    shown = plan_units(plan, units)  # the warnings name amounts in the units of the tables
     if strict and plan.warnings:
-        echo_warnings(plan.warnings, strict=True)
+        echo_warnings(plan.warnings, strict=True, units=shown)
         n = len(plan.warnings)
         echo_err(f"{route}: {n} warning{'s' if n != 1 else ''}, counted as errors under --strict; nothing written")
         raise click.exceptions.Exit(2)
@@ -107,14 +110,13 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
             write_csv(bare, out.folder(csv_dir))
     finish_outputs(out)
     if json_out == "-" or quiet:
-        echo_warnings(plan.warnings)
+        echo_warnings(plan.warnings, units=shown)
         echo_caution(err=True)
     else:
         from routeplan.export.terminal import print_plan
-        from routeplan.views.display_units import plan_units
 
-        print_plan(plan, units=plan_units(plan, units), caution=False)
-        echo_warnings(plan.warnings)  # after the tables, where the reader is
+        print_plan(plan, units=shown, caution=False)
+        echo_warnings(plan.warnings, units=shown)  # after the tables, where the reader is
         echo_caution()
 
 

@@ -347,10 +347,12 @@ def write_summary(ws, st: Styles, plan: "Plan", written: str, context: dict[str,
     out["safety"] = r + 1
     for row in safety_summary_rows(plan):
         r += 1
-        put(ws, r, 0, row["step"], st.cell_text)
-        ws.merge_range(r, 1, r, last, "", st.note)
-        ws.write_string(r, 1, row["text"], st.note)
-        sh.fit_row(r, {1: row["text"]}, {1: last})
+        first = 1 if row["step"] else 0  # the closing row (steps not screened) spans the line
+        if first:
+            put(ws, r, 0, row["step"], st.cell_text)
+        ws.merge_range(r, first, r, last, "", st.note)
+        ws.write_string(r, first, row["text"], st.note)
+        sh.fit_row(r, {first: row["text"]}, {first: last})
 
     out["record"] = -1
     if plan.record is not None:

@@ -145,10 +145,10 @@ def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list
             per_batch = w.m_lim / batches
             shown = float(step.demonstrated_batch.m_as(unit("kg")))
             if shown > 0 and per_batch > MAX_SCALE_UP * shown:
-                warnings.append(Problem(
+                warnings.append(Problem.with_amounts(
                     "warning",
-                    f"step {sid}: a batch charges {per_batch:.4g} kg of {step.limiting}, "
-                    f"{per_batch / shown:.3g} times the largest batch run so far ({shown:.4g} kg)",
+                    (f"step {sid}: a batch charges ", (per_batch, "mass"), f" of {step.limiting}, "
+                     f"{per_batch / shown:.3g} times the largest batch run so far (", (shown, "mass"), ")"),
                     location=step.location, step=sid,
                     hint=f"scale up in stages of at most {MAX_SCALE_UP:g} times"))
         out[sid] = Sized(V_total, h.lines_V, batches, fill, h.reaction_m, transfer_V, transfer_m)
@@ -168,8 +168,8 @@ def _vessel_warnings(step, vessel, nominal: float, batches: int, fill: float) ->
     if 0 < fill < MIN_FILL:
         out.append(Problem(
             "warning",
-            f"step {step.id}: each batch fills {fill:.0%} of vessel {vessel.key} "
-            f"({nominal:g} L), below {MIN_FILL:.0%}: too little to stir",
+            f"step {step.id}: each batch fills {fill * 100:.3g} % of vessel {vessel.key} "
+            f"({nominal:g} L), below {MIN_FILL * 100:g} %: too little to stir",
             location=step.location, step=step.id,
             hint="use a smaller vessel or a larger target"))
     return out

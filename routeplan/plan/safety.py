@@ -423,9 +423,10 @@ def _warnings(route: "Route", sp: "StepPlan", s: StepSafety) -> list[Problem]:
     step = route.step(sp.id)
     out = []
 
-    def warn(message: str, hint: str) -> None:
-        out.append(Problem(Severity.WARNING, f"step {sp.id}: {message}; {SCREENING}", location=step.location,
-                           step=sp.id, hint=hint))
+    def warn(message: "str | tuple", hint: str) -> None:
+        parts = (message,) if isinstance(message, str) else message  # words, and (value, kind) amounts
+        out.append(Problem.with_amounts(Severity.WARNING, (f"step {sp.id}: ", *parts, f"; {SCREENING}"),
+                                        location=step.location, step=sp.id, hint=hint))
 
     t = s.thermal
     if t is not None and t.criticality_class is not None and t.criticality_class >= 3:
@@ -441,14 +442,14 @@ def _warnings(route: "Route", sp: "StepPlan", s: StepSafety) -> list[Problem]:
                 times = "" if s.free_volume_L <= 0 else f", {g.volume_L_per_batch / s.free_volume_L:.3g} times"
                 rate = "" if g.rate_L_per_min is None else \
                     f"; mean rate {g.rate_L_per_min:.4g} L/min over the {s.dosing_time_min:.4g} min of dosing"
-                warn(f"the volume of {g.material} evolved, {g.volume_L_per_batch:.4g} L per batch, is "
-                     f"{GAS_FREE_VOLUME_RATIO:g} or more times the free volume of vessel {sp.vessel} "
-                     f"({max(s.free_volume_L, 0):.4g} L{times}){rate}",
+                warn((f"the volume of {g.material} evolved, ", (g.volume_L_per_batch, "volume"), " per batch, is "
+                      f"{GAS_FREE_VOLUME_RATIO:g} or more times the free volume of vessel {sp.vessel} (",
+                      (max(s.free_volume_L, 0), "volume"), f"{times}){rate}"),
                      "size the vent and the off-gas line for it")
     if s.dosed is None:
         for g in s.gas_evolved:
-            warn(f"{g.volume_L_per_batch:.4g} L of {g.material} per batch is evolved with everything charged at "
-                 "once (no dosing): the gas comes as fast as the reaction runs",
+            warn(((g.volume_L_per_batch, "volume"), f" of {g.material} per batch is evolved with everything charged "
+                  "at once (no dosing): the gas comes as fast as the reaction runs"),
                  "dose a reagent ('dosing: {material: KEY, time: 2 h}') to control the gas")
     return out
 

@@ -408,18 +408,18 @@ def _warnings(route: "Route", sw: StepWaste) -> list[Problem]:
     out = []
     if sw.by_products_kg > sw.waste_kg * (1 + _SLACK) + 1e-12:
         step = route.step(sw.step)
-        out.append(Problem(
+        out.append(Problem.with_amounts(
             "warning",
-            f"step {sw.step}: the by-products from its equation ({sw.by_products_kg:.4g} kg) exceed its waste "
-            f"({sw.waste_kg:.4g} kg, everything charged less the product taken on)",
+            (f"step {sw.step}: the by-products from its equation (", (sw.by_products_kg, "mass"),
+             ") exceed its waste (", (sw.waste_kg, "mass"), ", everything charged less the product taken on)"),
             location=step.location, step=sw.step,
             hint="check the equation's coefficients and the step's yield"))
     if sw.campaign.residue_kg < -_SLACK * max(sw.inputs_kg, 1e-12):
         step = route.step(sw.step)
-        out.append(Problem(
+        out.append(Problem.with_amounts(
             "warning",
-            f"step {sw.step}: its solvent and work-up charges ({sw.waste_kg - sw.campaign.residue_kg:.4g} kg) "
-            f"exceed its waste ({sw.waste_kg:.4g} kg), so the residue is negative",
+            (f"step {sw.step}: its solvent and work-up charges (", (sw.waste_kg - sw.campaign.residue_kg, "mass"),
+             ") exceed its waste (", (sw.waste_kg, "mass"), "), so the residue is negative"),
             location=step.location, step=sw.step,
             hint="a material charged as solvent or work-up is also taken up in the product; check its role"))
     return out

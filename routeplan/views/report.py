@@ -12,6 +12,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 from routeplan.frozen import frozen
+from routeplan.views.numbers import pct
 from routeplan.views.tables import (charge_label, column_unit, display_quantity, fmt, raw_material_rows,
                                     step_charge_rows)
 
@@ -282,7 +283,7 @@ def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
             if b.vessel is not None:
                 text += f" in {b.vessel}"
                 if b.fill_fraction is not None:
-                    text += f", fill {b.fill_fraction:.0%} of nominal volume"
+                    text += f", fill {pct(b.fill_fraction)} of nominal volume"
             facts.append(("batches", text))
             limiting_kg = b.per_batch(b.limiting_m_kg)
             if limiting_kg is not None and n > 1:

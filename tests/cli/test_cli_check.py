@@ -28,7 +28,7 @@ def test_summary_of_a_valid_route():
     assert result.exit_code == 0, result.output
     # check plans the route at its target (issue 19), so the plan's fill warnings of this
     # 10 kg route in 250 L and 630 L vessels show here as they do under plan; no others
-    assert all("below 20%: too little to stir" in line for line in result.stderr.splitlines()), result.stderr
+    assert all("below 20 %: too little to stir" in line for line in result.stderr.splitlines()), result.stderr
     out = words(result.stdout)  # long lines are folded to the width (issue 19)
     assert out.startswith(f"{GOOD_ROUTE}: valid: test route (acid via the ethyl ester) ")
     for line in ("target: 10 kg of acid (+2 % overage)",

@@ -89,7 +89,7 @@ def test_small_fill_is_warned():
     plan = plan_route(load_route_text(text, "big.yaml"))
     # 50 L in a 1000 L vessel fills 5 %, below 20 % (common practice, no source)
     assert math.isclose(plan.step("S1").batch.fill_fraction, 0.05)
-    assert any("5%" in w.message and "too little to stir" in w.message for w in plan.warnings)
+    assert any("fills 5 % of vessel" in w.message and "too little to stir" in w.message for w in plan.warnings)
 
 
 def test_step_without_vessel_is_one_batch():
