@@ -14,7 +14,12 @@ Run: ``python bench/engine_bench.py``.  Prints, side by side:
    metrics, safety, schedule, waste, cost) over a plain-float walk of the same route
    written out by hand below; target 40x.  3b times each stage of one such plan and
    adds up the ones the issue names (walk, batches, totals, metrics), the later
-   capabilities (safety, purchase packs, schedule, waste, cost) shown apart;
+   capabilities (safety, purchase packs, schedule, waste, cost) shown apart.  3c and 3d
+   put the same plan over a plain-float reference that computes the numbers the plan's
+   walk, batches and totals give, line by line (:func:`plain_float_lines`; the
+   issue measured "the same walk, batches and totals in plain floats" at 0.5 ms, and
+   ``tests/test_speed.py`` checks that this reference gives the plan's numbers to
+   1e-12), where the hand-folded walk of row 3 works out five numbers a step;
 4. loading the 200-step route over ruamel's bare compose of its text; target 3x;
 5. growth of load + plan from 10 to 10 000 steps (x5 up to 6 250, then x1.6), each 5x in steps
    within 6x in time, with the growth of ruamel's bare compose of the same files beside
@@ -41,6 +46,7 @@ from __future__ import annotations
 import functools
 import gc
 import io
+import math
 import os
 import subprocess
 import sys
@@ -133,6 +139,71 @@ def plain_float_walk(text_steps: int):
             rows.append((n_lim, m_lim, V, m, batches))
             n_p = n_lim
         return sum(r[3] for r in rows)
+
+    return run
+
+
+def plain_float_lines(text_steps: int):
+    """The walk, batches and totals of the linear bench route in plain floats, line by line.
+
+    Where :func:`plain_float_walk` folds each step into two expressions, this computes
+    every number the plan's walk, batch sizing and totals give, from the route as plain
+    data (one tuple per charge line, made before the timer): per step the limiting
+    reagent, ``n``, ``m`` and ``V`` of each charge line by its basis, the demand on the
+    intermediate it charges, the volume, the batches and the fill, every line per batch,
+    and the campaign total of each bought material (mass and volume).  No objects, no
+    units: what planning costs in Python floats alone.
+    """
+    C, H, B, O = 0.012011, 0.001008, 0.01081, 0.015999  # CIAAW 2021 abridged (B conventional) [kg/mol]
+    M_meoh, M_cat = C + 4 * H + O, 3 * H + B + 3 * O
+    nominal_L, usable_L = 630.0, 630.0 * 0.8
+    steps = []  # execution order: (product, yield, kg_per_mol of limiting, lines)
+    for k in range(1, text_steps + 1):
+        kg_per_mol_lim = (C * (5 + k) + H * (4 + 2 * k) + O) / 0.99  # M / assay
+        lines = (  # (material, basis, factor, kg_per_mol or None, L_per_kg or None, intermediate)
+            (f"I{k - 1}", "equiv", 1.0, kg_per_mol_lim, None, k > 1),
+            ("THF", "volumes", 5.0, C * 4 + H * 8 + O, 1 / 0.889, False),
+            ("cat", "equiv", 0.05, M_cat, None, False),
+            ("MeOH", "equiv", 1.2, M_meoh, 1 / 0.792, False),
+            ("H2O", "volumes", 2.0, 2 * H + O, 1 / 1.0, False),
+        )
+        steps.append((f"I{k}", 0.97, kg_per_mol_lim, lines))
+    kg_per_mol_target = (C * (6 + text_steps) + H * (6 + 2 * text_steps) + O) / 0.99
+
+    def run():
+        demand = {f"I{text_steps}": 25.0 / kg_per_mol_target}
+        walked = []
+        for product, y, kg_per_mol_lim, lines in reversed(steps):
+            n_lim = demand.get(product, 0.0) / y
+            m_lim = n_lim * kg_per_mol_lim
+            amounts = []
+            for material, basis, factor, kg_per_mol, L_per_kg, intermediate in lines:
+                if basis == "volumes":
+                    V = factor * m_lim
+                    m = V / L_per_kg
+                    n = m / kg_per_mol
+                else:
+                    n = factor * n_lim
+                    m = n * kg_per_mol
+                    V = None if L_per_kg is None else m * L_per_kg
+                if intermediate:
+                    demand[material] = demand.get(material, 0.0) + n
+                amounts.append((n, m, V))
+            walked.append((lines, n_lim, m_lim, amounts))
+        totals: dict[str, list[float]] = {}
+        sized = []
+        for lines, n_lim, m_lim, amounts in reversed(walked):
+            V_total = sum(V for _n, _m, V in amounts if V is not None)
+            batches = max(1, math.ceil(V_total / usable_L - 1e-9))
+            fill = V_total / batches / nominal_L
+            per_batch = [(n / batches, m / batches, None if V is None else V / batches) for n, m, V in amounts]
+            sized.append((n_lim / batches, m_lim / batches, batches, fill, per_batch))
+            for line, (_n, m, V) in zip(lines, amounts):
+                if not line[5]:
+                    total = totals.setdefault(line[0], [0.0, 0.0])
+                    total[0] += m
+                    total[1] += 0.0 if V is None else V
+        return totals, sized
 
     return run
 
@@ -248,10 +319,15 @@ def main() -> int:
     t_plan = time_plans(text, 7)
     t_float = best(plain_float_walk(200), repeat=20)
     print(f"3 plan 200 steps / plain-float walk   {t_plan * 1e3:.2f} / {t_float * 1e3:.3f} ms = {t_plan / t_float:5.1f}x   40x")
+    t_lines = best(plain_float_lines(200), repeat=20)
     whole, parts = stage_times(text, 7)
     scope = sum(parts.get(name, 0.0) for _m, name, in_scope in STAGES if in_scope)
     print(f"3b of it, the issue's 'walk, batches, totals, metrics' {scope * 1e3:.2f} / {t_float * 1e3:.3f} ms"
           f" = {scope / t_float:5.1f}x   40x")
+    print(f"3c plan 200 steps / plain floats line by line  {t_plan * 1e3:.2f} / {t_lines * 1e3:.3f} ms"
+          f" = {t_plan / t_lines:5.1f}x   (the walk's numbers for every line, batches, totals by material)")
+    print(f"3d the issue's stages / the same               {scope * 1e3:.2f} / {t_lines * 1e3:.3f} ms"
+          f" = {scope / t_lines:5.1f}x   40x")
     print("   per stage [ms] (one plan of " + f"{whole * 1e3:.2f} ms): " + ", ".join(
         f"{name}{'' if in_scope else '*'} {parts.get(name, 0.0) * 1e3:.2f}" for _m, name, in_scope in STAGES)
         + "  (* not in the issue's list: safety, purchase packs, schedule, waste, cost)")

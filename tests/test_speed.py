@@ -56,3 +56,28 @@ def test_a_plan_costs_a_bounded_multiple_of_the_bare_arithmetic():
         t_plan = min(t_plan, _timed(lambda: routeplan.plan_route(route)))
         t_walk = min(t_walk, min(_timed(walk) for _ in range(10)))
     assert t_plan < 800 * t_walk, f"plan {t_plan * 1e3:.2f} ms, plain-float walk {t_walk * 1e3:.3f} ms"
+
+
+def test_the_plain_float_reference_computes_the_plans_numbers():
+    """The bench's line-by-line float reference (row 3c of ``bench/engine_bench.py``) must
+    compute what the plan computes, or its ratio says nothing: every bought material's
+    campaign mass and volume, and each step's batches, fill and amounts per batch."""
+    import math
+
+    from engine_bench import plain_float_lines
+
+    n = 30
+    plan = routeplan.plan_route(load_route_text(linear_route(n), "l.yaml"))
+    totals, sized = plain_float_lines(n)()
+    bought = {rm.material: rm for rm in plan.raw_materials}
+    assert set(totals) == set(bought)
+    for key, (m_kg, V_L) in totals.items():
+        assert math.isclose(bought[key].m_kg, m_kg, rel_tol=1e-12)
+        assert math.isclose(bought[key].V_L or 0.0, V_L, rel_tol=1e-12)
+    for sp, (n_lim_batch, m_lim_batch, batches, fill, per_batch) in zip(plan.steps, sized):
+        assert sp.batch.batches == batches and math.isclose(sp.batch.fill_fraction, fill, rel_tol=1e-12)
+        assert math.isclose(sp.batch.limiting_n_mol / batches, n_lim_batch, rel_tol=1e-12)
+        for c, (n_b, m_b, V_b) in zip(sp.charges, per_batch):
+            assert math.isclose(c.n_mol / batches, n_b, rel_tol=1e-12)
+            assert math.isclose(c.m_kg / batches, m_b, rel_tol=1e-12)
+            assert (c.V_L is None) == (V_b is None) and (V_b is None or math.isclose(c.V_L / batches, V_b, rel_tol=1e-12))
