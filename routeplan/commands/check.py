@@ -5,11 +5,10 @@ from __future__ import annotations
 import click
 
 from routeplan.commands.common import echo_caution, echo_err, echo_warnings
+from routeplan.views.numbers import given_pct
 from routeplan.vocab import Severity
 
 
-def _pct(x: float) -> str:
-    return f"{x * 100:.4g} %"
 
 
 def planned_warnings(route) -> tuple:
@@ -61,13 +60,13 @@ def summary(route, n_warnings: int | None = None, strict: bool = False) -> list[
     count = len(route.warnings) if n_warnings is None else n_warnings
     verdict = "not valid under --strict" if strict and count else "valid"
     lines = [f"{route.source.path if route.source else '<route>'}: {verdict}: {route.name}",
-             f"  target: {amount:g} kg of {t.material}" + (f" (+{_pct(t.overage)} overage)" if t.overage else "")]
+             f"  target: {amount:g} kg of {t.material}" + (f" (+{given_pct(t.overage)} overage)" if t.overage else "")]
     order = execution_order(route)
     lines.append("  steps in execution order:")
     width = max(len(s) for s in order)
     for n, sid in enumerate(order, 1):
         s = route.step(sid)
-        extra = [f"yield {_pct(s.yield_.expected)}"]
+        extra = [f"yield {given_pct(s.yield_.expected)}"]
         if not s.isolated:
             extra.append("telescoped")
         if s.vessel:

@@ -83,7 +83,7 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
         if html_out is not None:
             from routeplan.export.html import write_compare_html
 
-            write_compare_html(cmp, out.file(html_out, suffix=".html"))
+            write_compare_html(cmp, out.file(html_out, suffix=".html"), shown)
     finish_outputs(out)
     if json_out == "-":
         echo_caution(err=True)

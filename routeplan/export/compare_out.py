@@ -13,7 +13,6 @@ from typing import TYPE_CHECKING, Any
 
 from routeplan.views.compare_text import tradeoff
 from routeplan.views.compare_words import note_texts, shown_rows
-from routeplan.views.tables import display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.compare import Comparison
@@ -22,7 +21,6 @@ if TYPE_CHECKING:  # pragma: no cover
 
 __all__ = [
     "COMPARE_FORMAT",
-    "format_value",
     "comparison_to_dict",
     "comparison_to_json",
     "print_comparison",
@@ -33,38 +31,6 @@ __all__ = [
 COMPARE_FORMAT = "routeplan-compare/1"
 
 _SHOWN_UNIT = {"fraction": "%"}
-
-
-def format_value(value: Any, kind: str) -> str:
-    """A value of a comparison row as text.
-
-    Parameters
-    ----------
-    value : float, int or None
-        In the row's unit: a count [-], a fraction [-], a ratio [kg/kg], money
-        [currency/kg] or a mass [kg].
-    kind : str
-        ``"count"``, ``"fraction"``, ``"ratio"``, ``"money"`` or ``"mass"``.
-
-    Examples
-    --------
-    >>> format_value(0.5236, "fraction")
-    '52.4 %'
-    >>> format_value(23.75, "ratio")
-    '23.8'
-    """
-    if value is None:
-        return "–"
-    if kind == "count":
-        return f"{int(value)}"
-    if kind == "fraction":
-        return f"{100 * value:.1f} %"
-    if kind == "money":
-        return f"{value:,.2f}"
-    if kind == "mass":
-        return display_quantity(value, "mass")
-    text = f"{value:.3g}"
-    return f"{value:.0f}" if "e" in text else text
 
 
 def _shown_unit(row: "ShownRow") -> str:

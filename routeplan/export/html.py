@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING, Any
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.compare import Comparison
     from routeplan.plan.model import Plan
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = ["plan_html", "compare_html", "write_plan_html", "write_compare_html", "NotebookReport",
            "notebook_report", "PLOTS_MISSING"]
@@ -101,22 +102,29 @@ def plan_html(plan: "Plan", *, fragment: bool = False) -> str:
         source=None if src is None else {"path": src.path, "sha256": src.sha256}, **_common())
 
 
-def compare_html(cmp: "Comparison") -> str:
-    """The comparison of routes as one HTML page: schemes side by side, the measures, the trade-off."""
-    from routeplan.export.compare_out import format_value
-    from routeplan.views.compare_text import tradeoff
+def compare_html(cmp: "Comparison", units: "DisplayUnits | None" = None) -> str:
+    """The comparison of routes as one HTML page: schemes side by side, the measures, the trade-off.
+
+    Values are written as the terminal's comparison writes them
+    (:func:`routeplan.views.compare_text.value_text`), masses in ``units`` (default:
+    chosen by the target's mass, as ``compare`` does without ``--units``).
+    """
+    from routeplan.views.compare_text import row_unit, tradeoff, value_text
     from routeplan.views.compare_words import note_texts, shown_rows
+    from routeplan.views.display_units import choose_units
     from routeplan.views.report import plan_report
+
+    units = choose_units(cmp.amount) if units is None else units
 
     routes = []
     for label, plan in zip(cmp.labels, cmp.plans):
         routes.append({"label": label, "report": plan_report(plan), "scheme": _scheme(plan)})
     rows = []
     for row in shown_rows(cmp):
-        unit = "%" if row.kind == "fraction" else row.unit
+        unit = row_unit(row, units)
         cells = []
         for i, v in enumerate(row.values):
-            text = format_value(v, row.kind)
+            text = value_text(v, row.kind, units)
             if row.labels and i < len(row.labels) and row.labels[i]:
                 text += f" ({row.labels[i]})"
             cells.append({"text": text, "value": v if isinstance(v, (int, float)) else None, "best": i in row.best})
@@ -133,11 +141,11 @@ def write_plan_html(plan: "Plan", path) -> None:
     write_text_atomic(path, plan_html(plan))
 
 
-def write_compare_html(cmp: "Comparison", path) -> None:
-    """Write the comparison page to ``path`` atomically (UTF-8)."""
+def write_compare_html(cmp: "Comparison", path, units: "DisplayUnits | None" = None) -> None:
+    """Write the comparison page to ``path`` atomically (UTF-8), masses in ``units``."""
     from routeplan.export.atomic import write_text_atomic
 
-    write_text_atomic(path, compare_html(cmp))
+    write_text_atomic(path, compare_html(cmp, units))
 
 
 class NotebookReport:

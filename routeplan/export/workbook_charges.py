@@ -37,6 +37,7 @@ from routeplan.export.workbook_records import (protect, step_warnings, write_rec
                                                write_warnings)
 from routeplan.export.workbook_styles import (Styles, escape_header, fit_widths, lines_height, put, sheet_title,
                                               wrapped_lines)
+from routeplan.views.numbers import given_pct, pct
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
@@ -110,10 +111,10 @@ def _vessel_text(plan: "Plan", sp: "StepPlan", k: int | None) -> str:
     vessel = plan.route.equipment.get(sp.vessel)
     if vessel is None:
         return sp.vessel
-    text = f"{sp.vessel}: {vessel.volume.m_as('L'):g} L nominal, fill at most {vessel.max_fill:.1%}"
+    text = f"{sp.vessel}: {vessel.volume.m_as('L'):g} L nominal, fill at most {given_pct(vessel.max_fill)}"
     if sp.batch is not None and sp.batch.fill_fraction is not None:
         which = "each batch" if k is None else "this batch"
-        text += f"; {which} fills {sp.batch.fill_fraction:.1%}"
+        text += f"; {which} fills {pct(sp.batch.fill_fraction)}"
     return text
 
 

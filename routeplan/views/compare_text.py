@@ -16,7 +16,7 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.views.display_units import DisplayUnits
     from routeplan.views.text_blocks import Block
 
-__all__ = ["tradeoff_sentence", "tradeoff", "BEST_MARK", "value_text", "comparison_blocks"]
+__all__ = ["tradeoff_sentence", "tradeoff", "BEST_MARK", "value_text", "row_unit", "comparison_blocks"]
 
 #: Mark put after the best value of a row.
 BEST_MARK = "*"
@@ -93,7 +93,9 @@ def value_text(value: Any, kind: str, units: "DisplayUnits") -> str:
     return share(value)
 
 
-def _unit(row: "ShownRow", units: "DisplayUnits") -> str:
+def row_unit(row: "ShownRow", units: "DisplayUnits") -> str:
+    """The unit of a comparison row's values: ``%`` for fractions, ``units``' mass unit
+    for masses, else the row's own (``kg/kg``, the currency per kg, ``-``)."""
     if row.kind == "fraction":
         return "%"
     if row.kind == "mass":
@@ -116,7 +118,7 @@ def comparison_blocks(cmp: "Comparison", units: "DisplayUnits") -> "list[Block]"
     shown = shown_rows(cmp)
     rows, strong = [], set()
     for r, row in enumerate(shown):
-        cells = [row.heading, _unit(row, units)]
+        cells = [row.heading, row_unit(row, units)]
         for i, v in enumerate(row.values):
             text = value_text(v, row.kind, units) + (f" {BEST_MARK}" if i in row.best else "")
             if i in row.best:

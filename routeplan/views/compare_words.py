@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING, Any
 from routeplan.frozen import frozen
 from routeplan.plan.compare import (OveragesDiffer, StepsWithoutYield, TargetFromFirst, YieldsDrawn,
                                     YieldsPlanned, who)
+from routeplan.views.numbers import given_pct
 from routeplan.views.text_blocks import join_words
 from routeplan.vocab import UnrankedReason, ValueQualifier
 
@@ -180,7 +181,7 @@ def note_text(note: "CompareNote", cmp: "Comparison") -> str:
         return (f"every route is planned for {note.amount_kg:.6g} kg, the target amount of the first route "
                 f"{route(0)}; the others ask for other amounts ({asked})")
     if isinstance(note, OveragesDiffer):
-        each = ", ".join(f"{route(i)} {x:.1%}" for i, x in enumerate(note.overages))
+        each = ", ".join(f"{route(i)} {given_pct(x)}" for i, x in enumerate(note.overages))
         return (f"the routes plan different overages ({each}), so the masses planned differ; "
                 "ratios per kg of target are still comparable")
     if isinstance(note, YieldsPlanned):

@@ -27,7 +27,7 @@ from __future__ import annotations
 import math
 
 
-__all__ = ["sig", "share", "pct", "money", "grouped", "QUANTITY_FIGURES", "SHARE_FIGURES"]
+__all__ = ["sig", "share", "pct", "given_pct", "money", "grouped", "QUANTITY_FIGURES", "SHARE_FIGURES"]
 
 #: Significant figures of a quantity with a unit [-].
 QUANTITY_FIGURES = 4
@@ -107,6 +107,19 @@ def pct(fraction: float | None) -> str:
     if fraction is None:
         return "–"
     return f"{sig(100 * fraction, SHARE_FIGURES)} %"
+
+
+def given_pct(fraction: float | None) -> str:
+    """A fraction the route file gives [-] (an overage, a vessel's largest fill, a yield as
+    typed) as a percentage as the file would write it: up to 4 significant figures, no
+    trailing zeros, a space before ``%``.
+
+    >>> [given_pct(x) for x in (0.02, 0.8, 0.925, 0.12345, None)]
+    ['2 %', '80 %', '92.5 %', '12.35 %', '–']
+    """
+    if fraction is None:
+        return "–"
+    return f"{fraction * 100:.4g} %"
 
 
 def money(value: float | None) -> str:

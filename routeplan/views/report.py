@@ -545,8 +545,8 @@ def plan_report(plan: "Plan") -> Report:
         ("amount", f"{fmt(plan.target_n_mol)} mol", "target_mol", plan.target_n_mol),
         ("steps", f"{len(plan.steps)}; longest linear sequence {len(oy.longest_linear_sequence)} "
                   f"({' → '.join(oy.longest_linear_sequence)})", "steps", float(len(plan.steps))),
-        ("overall yield", f"{oy.yield_:.1%}"
-         + (f" (from {oy.low:.1%} to {oy.high:.1%} with the steps' low and high yields)"
+        ("overall yield", f"{pct(oy.yield_)}"
+         + (f" (from {pct(oy.low)} to {pct(oy.high)} with the steps' low and high yields)"
             if oy.low is not None and (oy.low, oy.high) != (oy.yield_, oy.yield_) else ""),
          "overall_yield", oy.yield_),
     ]

@@ -123,7 +123,7 @@ def test_notes_name_the_routes_by_file(drawn):
     assert note_texts(cmp) == (
         f"every route is planned for 25 kg, the target amount of the first route {WHO_A}; the others ask for "
         f"other amounts ({WHO_B} 30 kg)",
-        f"the routes plan different overages ({WHO_A} 2.0%, {WHO_B} 5.0%), so the masses planned differ; "
+        f"the routes plan different overages ({WHO_A} 2 %, {WHO_B} 5 %), so the masses planned differ; "
         "ratios per kg of target are still comparable",
         "every route is planned at its steps' low yields",
         f"{WHO_A}: steps S2, S3 have no low yield and are planned at the expected yield; the rows that depend "
