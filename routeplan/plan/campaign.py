@@ -93,10 +93,15 @@ class Sized:
 
 
 def nominal_volumes_L(route: "Route") -> dict[str, float]:
-    """Vessel key -> nominal volume [L], converted once for all steps."""
-    from routeplan.units import unit
+    """Vessel key -> nominal volume [L], converted once per route (kept on the frozen
+    Route, read by the batch sizing and the safety screening alike); read it, never
+    change it."""
+    cached = route.__dict__.get("_nominal_L")
+    if cached is None:
+        from routeplan.units import magnitude
 
-    return {k: float(v.volume.m_as(unit("L"))) for k, v in route.equipment.items()}
+        cached = route.__dict__["_nominal_L"] = {k: magnitude(v.volume, "L") for k, v in route.equipment.items()}
+    return cached
 
 
 def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list[Problem]]:

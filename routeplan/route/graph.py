@@ -32,7 +32,6 @@ __all__ = [
     "upstream",
     "find_step_cycle",
     "execution_order",
-    "route_step_graph",
     "topological_order",
     "longest_linear_sequence",
     "steps_leading_to",
@@ -194,13 +193,6 @@ def execution_order(route: "Route") -> list[str]:
         return tuple(topological_order(route_step_links(route), position.__getitem__))
 
     return list(_route_cache(route, "_execution_order", make))
-
-
-def route_step_graph(route: "Route") -> "nx.DiGraph":
-    """:func:`step_graph` of ``route.steps``, built once per route (a Route is frozen),
-    for a caller that needs networkx's graph (the schedule); read it, never change it.
-    Who feeds whom alone is :func:`route_step_links`."""
-    return _route_cache(route, "_step_graph", lambda: step_graph(route.steps))
 
 
 def _route_cache(route, name: str, make):
