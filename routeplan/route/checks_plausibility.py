@@ -356,8 +356,11 @@ def charge_findings(path: tuple, material: str, basis: str, value: float, role: 
     --------
     >>> charge_findings(("equiv",), "Ac2O", "equiv", 1.1, "reagent")
     []
-    >>> charge_findings(("equiv",), "Ac2O", "equiv", 11, "reagent")[0].message
+    >>> f = charge_findings(("equiv",), "Ac2O", "equiv", 11, "reagent")[0]
+    >>> f.message
     'Ac2O is charged at equiv: 11, above the usual range (more than 10) for a reagent'
+    >>> f.hint
+    "a material is usually charged at up to 10 equiv; was 'equiv: 1.1' meant?"
     """
     limit, usual = CHARGE_RANGES.get((basis, role), CHARGE_RANGES.get((basis, None), (None, "")))
     if limit is None or value <= limit:
@@ -371,6 +374,8 @@ def charge_findings(path: tuple, material: str, basis: str, value: float, role: 
         hint += f"; was 'mass_ratio: {_g(value / 10)}' meant (a loading typed ten times too big)?"
     elif basis == "mass_ratio" and role == "catalyst" and value <= 100:
         hint += f"; for {_g(value)} wt % write 'mass_ratio: {_g(value / 100)}'"
+    elif value / 10 <= limit:  # a decimal point one place off: 11 for 1.1, 40 for 4
+        hint += f"; was '{basis}: {_g(value / 10)}' meant?"
     return [Finding(Severity.WARNING, path, f"{material} is charged at {basis}: {_g(value)}, above the usual range "
                                      f"(more than {_g(limit)}) for a {role}", hint)]
 
