@@ -139,7 +139,7 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
         When the route cannot be planned (e.g. a non-positive target).
     """
     from routeplan.plan import guards
-    from routeplan.plan.campaign import nominal_volumes_L, size_steps
+    from routeplan.plan.campaign import size_steps
     from routeplan.plan.charges import step_plans
     from routeplan.plan.metrics import compute_metrics
     from routeplan.plan.safety import batch_safety
@@ -182,9 +182,8 @@ def plan_route(route: "Route", target: "pint.Quantity | str | None" = None, *, s
     guards.check_amounts(route, walked)
     no_range = guards.steps_without_range(route, yields)
     sized, batch_warnings = size_steps(route, walked)
-    nominal_L = nominal_volumes_L(route)
     steps = step_plans(route, walked, sized,
-                       safety=lambda sid, runs, batch, lines: batch_safety(route, sid, runs, batch, lines, nominal_L))
+                       safety=lambda sid, runs, batch, lines: batch_safety(route, sid, runs, batch, lines))
     safety_warnings = safety_warnings_of(route, steps)
     draft = Draft(route=route, target_material=route.target.material,
                   target_kg=amount_kg * (1 + route.target.overage), target_n_mol=walked.n_target_mol,

@@ -35,6 +35,7 @@ from typing import TYPE_CHECKING
 
 from routeplan.errors import Problem
 from routeplan.frozen import frozen
+from routeplan.plan.campaign import nominal_volumes_L
 from routeplan.route.checks_safety import DEFAULT_PRESSURE_BAR, DEFAULT_TEMPERATURE_C
 from routeplan.units import magnitude
 from routeplan.vocab import Severity
@@ -340,7 +341,7 @@ def _conditions(step: "Step") -> tuple[float, float]:
 
 
 def batch_safety(route: "Route", step_id: str, runs: bool, b: "BatchPlan | None",
-                 charges: "Sequence[ChargePlan]", nominal_L: "dict[str, float] | None" = None) -> StepSafety:
+                 charges: "Sequence[ChargePlan]") -> StepSafety:
     """Heat and gas of one batch of step ``step_id`` (its batches sized), from the parts
     of its StepPlan before that is built (the planner builds each StepPlan once, with its
     safety).
@@ -355,9 +356,6 @@ def batch_safety(route: "Route", step_id: str, runs: bool, b: "BatchPlan | None"
         The step's batches.
     charges : sequence of ChargePlan
         The step's charges (the gases taken up are read from them).
-    nominal_L : dict, optional
-        Vessel key -> nominal volume [L] (:func:`routeplan.plan.campaign.nominal_volumes_L`),
-        converted once for all steps.
 
     Returns
     -------
@@ -394,8 +392,7 @@ def batch_safety(route: "Route", step_id: str, runs: bool, b: "BatchPlan | None"
 
     free_L = None
     if b.vessel in route.equipment:
-        nominal = nominal_L[b.vessel] if nominal_L else magnitude(route.equipment[b.vessel].volume, "L")
-        free_L = nominal - b.batch_V_L
+        free_L = nominal_volumes_L(route)[b.vessel] - b.batch_V_L  # [L], converted once per route
 
     thermal = None
     if t is not None:
