@@ -219,10 +219,9 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
     steps = []
     maker = route.maker  # intermediate -> the step that makes it
     carried = {s.product: s.id for s in route.steps if not s.isolated}  # telescoped product -> its step
-    by_id = {s.id: s for s in route.steps}
     case = str(yields)
     for sid in execution_order(route):
-        step = by_id[sid]
+        step = route.step(sid)
         chosen = getattr(step.yield_, case)
         y = step.yield_.expected if chosen is None else chosen
         if not y > 0:
@@ -240,10 +239,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
             charges.append(CoreCharge(key, str(basis), factor, form(key), key in maker, carried.get(key),
                                       c.leaves, c.role == "workup"))
         eq = step.equation
-        nu: dict[str, float] = {}  # coefficient [-] of each key: its first term, as Equation.coefficient finds it
-        for t in eq.reactants + eq.products:
-            nu.setdefault(t.key, t.coefficient)
-        nu_lim = nu[step.limiting]
+        nu_lim = eq.coefficient(step.limiting)
         gases = []
         for t in eq.products:
             mat = materials[t.key]
@@ -251,7 +247,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
                 gases.append((quantity(t.coefficient / nu_lim, "", ("gas_ratio", step, t.key)),
                               _molar_mass(mat, quantity)))
         steps.append(CoreStep(  # id, product, limiting, nu_ratio, yield_, product_form, limiting_form, charges, gases
-            sid, step.product, step.limiting, quantity(nu[step.product] / nu_lim, "", ("nu_ratio", step)),
+            sid, step.product, step.limiting, quantity(eq.coefficient(step.product) / nu_lim, "", ("nu_ratio", step)),
             quantity(y, "", ("yield", step, case if chosen is not None else "expected")),
             form(step.product), form(step.limiting), tuple(charges), tuple(gases)))
     tgt = route.materials[route.target.material]
