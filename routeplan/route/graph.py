@@ -186,11 +186,11 @@ def execution_order(route: "Route") -> list[str]:
     order: the sort would give it back, so one pass over the links checks it instead.
     """
     def make() -> tuple[str, ...]:
-        pred = route_step_links(route).pred
+        links = route_step_links(route)
         position = {s.id: i for i, s in enumerate(route.steps)}
-        if all(position[p] < i for i, into in enumerate(pred.values()) for p in into):
+        if all(position[p] < position[sid] for sid, into in links.pred.items() for p in into):
             return tuple(position)
-        return tuple(topological_order(route_step_links(route), position.__getitem__))
+        return tuple(topological_order(links, position.__getitem__))
 
     return list(_route_cache(route, "_execution_order", make))
 
