@@ -163,11 +163,6 @@ class StreamMasses:
         """All of it: the three streams and the residue [kg]."""
         return self.aqueous_kg + self.organic_kg + self.halogenated_kg + self.residue_kg
 
-    def plus(self, other: "StreamMasses") -> "StreamMasses":
-        """The sum of two [kg]."""
-        return StreamMasses(self.aqueous_kg + other.aqueous_kg, self.organic_kg + other.organic_kg,
-                            self.halogenated_kg + other.halogenated_kg, self.residue_kg + other.residue_kg)
-
 
 @frozen
 class StepWaste:
