@@ -29,6 +29,7 @@ __all__ = [
     "StepLinks",
     "step_links",
     "route_step_links",
+    "keep_step_links",
     "upstream",
     "find_step_cycle",
     "execution_order",
@@ -118,10 +119,21 @@ def step_links(steps) -> StepLinks:
     return StepLinks(succ, pred)
 
 
+#: Where a Route keeps its step links (in its ``__dict__``; a Route is frozen).
+_LINKS = "_step_links"
+
+
 def route_step_links(route: "Route") -> StepLinks:
     """:func:`step_links` of ``route.steps``, built once per route (a Route is frozen; the
-    loader keeps those its cycle check built); read them, never change them."""
-    return _route_cache(route, "_step_links", lambda: step_links(route.steps))
+    loader keeps those its cycle check built, :func:`keep_step_links`); read them, never
+    change them."""
+    return _route_cache(route, _LINKS, lambda: step_links(route.steps))
+
+
+def keep_step_links(route: "Route", links: StepLinks) -> None:
+    """Keep ``links`` (the step links of ``route.steps``, built before the Route was) on the
+    route, for :func:`route_step_links` to read."""
+    route.__dict__[_LINKS] = links
 
 
 def upstream(links: StepLinks, step_id: str) -> set[str]:

@@ -27,6 +27,7 @@ from pydantic import TypeAdapter, ValidationError
 from routeplan.collector import paused
 from routeplan.errors import Location, Problem, RouteError, not_a_regular_file
 from routeplan.route.checks import Facts, Parts, _default_role, check_parts
+from routeplan.route.graph import keep_step_links
 from routeplan.route.model import (DEFAULT_CHARGE_TOLERANCE, Charge, Conditions, Control, Dosing, Material, Route,
                                    Solution, Source, Step, Target, Thermal, Vessel, WastePrices, Yield)
 from routeplan.route.schema import (ChargeModel, MaterialModel, RouteFile, StepModel, TargetModel, VesselModel,
@@ -265,8 +266,8 @@ def _build(model: RouteFile, facts: Facts, pos: Positions, source: Source, warni
     route = Route(name=model.route, target=target, materials=materials, steps=steps, equipment=equipment,
                   currency=model.currency, format=model.format, source=source, warnings=warnings,
                   waste_prices=waste_prices, charge_tolerance=tolerance)
-    if facts.step_links is not None:  # who feeds whom, as the cycle check found it (graph.route_step_links)
-        route.__dict__["_step_links"] = facts.step_links
+    if facts.step_links is not None:  # who feeds whom, as the cycle check found it
+        keep_step_links(route, facts.step_links)
     return route
 
 

@@ -151,7 +151,7 @@ def test_the_links_the_loader_keeps_are_those_of_the_built_steps(path):
 
     text = plan_bench.convergent_route(12) if path is None else path.read_text(encoding="utf-8")
     route = load_route_text(text, "r.yaml")
-    kept = route.__dict__["_step_links"]
+    kept = route.__dict__[graph._LINKS]
     assert _edges(kept) == _edges(graph.step_links(route.steps))
 
 
