@@ -59,6 +59,8 @@ class _Funnel(click.Group):
             return result
         except RouteplanError as exc:
             _err(f"error: {exc.render()}")
+            for p in getattr(exc, "warnings", ()):  # found in the same pass: every finding in one run
+                _err(f"warning: {p.render()}")
             ctx.exit(EXIT_BAD_INPUT)
         except (click.exceptions.Exit, click.exceptions.Abort, click.ClickException):
             raise

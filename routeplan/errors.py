@@ -320,16 +320,21 @@ class RouteError(RouteplanError, ValueError):
         Every error found, in file order.
     file : str or None
         The route file's name as given.
+    warnings : tuple of Problem
+        The warnings found in the same pass (file order), so that one run shows every
+        finding and a fixed file brings no second round of surprises.
 
     With one problem, ``location``, ``step`` and ``hint`` are that problem's; with several,
     ``location`` names the file only.
     """
 
-    FIELDS = RouteplanError.FIELDS + ("problems", "file")
+    FIELDS = RouteplanError.FIELDS + ("problems", "file", "warnings")
 
-    def __init__(self, problems: list[Problem] | tuple[Problem, ...], *, file: str | None = None) -> None:
+    def __init__(self, problems: list[Problem] | tuple[Problem, ...], *, file: str | None = None,
+                 warnings: list[Problem] | tuple[Problem, ...] = ()) -> None:
         self.problems = tuple(problems)
         self.file = file
+        self.warnings = tuple(warnings)
         n = len(self.problems)
         head = f"{file}: " if file else ""
         if n == 1:

@@ -130,8 +130,10 @@ def check_cmd(ctx: click.Context, routes: tuple[str, ...], strict: bool) -> None
         except RouteError as exc:
             for p in exc.problems:
                 echo_err(f"{Severity.ERROR}: {p.render()}")
-            n = len(exc.problems)
-            echo_err(f"{path}: {n} error{'s' if n != 1 else ''}, not a valid route")
+            echo_warnings(exc.warnings, strict=strict)
+            n, w = len(exc.problems), len(exc.warnings)
+            also = f" and {w} warning{'s' if w != 1 else ''}" if w else ""
+            echo_err(f"{path}: {n} error{'s' if n != 1 else ''}{also}, not a valid route")
             failed += 1
             continue
         except RouteplanError as exc:

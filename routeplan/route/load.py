@@ -164,9 +164,9 @@ def _load_bytes(data: bytes, file: str) -> Route:
 
     problems += leaving_problems(parts, facts, pos)
     errors = [p for p in problems if p.severity == Severity.ERROR]
-    if errors:
-        raise RouteError(_sorted(errors), file=file)
     warnings = tuple(_sorted([p for p in problems if p.severity == Severity.WARNING]))
+    if errors:
+        raise RouteError(_sorted(errors), file=file, warnings=warnings)
     return _build(model, facts, pos, Source(file, sha), warnings)
 
 

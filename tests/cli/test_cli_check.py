@@ -191,3 +191,18 @@ def test_check_reports_the_plans_warnings(tmp_path, good_text):
     assert planned.exit_code == 2  # the plan refuses it too: check and plan agree
     # and the unchanged route checks clean and plans clean
     assert run_cli("check", "--strict", GOOD_ROUTE).exit_code == run_cli("plan", "--strict", "-q", GOOD_ROUTE).exit_code
+
+
+def test_an_invalid_route_shows_its_warnings_in_the_same_run(tmp_path, good_text):
+    # an error (an unknown unit) and a warning (a reagent ten times too much) in one file:
+    # both come in one run, so that fixing the error brings no second round of findings
+    text = change(good_text, [("amount: 10 kg", "amount: 10 kgs"),
+                              ("{material: Ac2O, equiv: 1.1}", "{material: Ac2O, equiv: 11}")])
+    path = write_route(tmp_path, text)
+    for command in ("check", "plan"):
+        result = run_cli(command, path)
+        assert result.exit_code == 2
+        lines = result.stderr.splitlines()
+        assert any(x.startswith("error: ") and "unknown unit 'kgs'" in x for x in lines), result.stderr
+        assert any(x.startswith("warning: ") and "was 'equiv: 1.1' meant?" in x for x in lines), result.stderr
+    assert f"{path}: 1 error and 1 warning, not a valid route" in run_cli("check", path).stderr
