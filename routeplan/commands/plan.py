@@ -103,7 +103,7 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
         if html_out is not None:
             from routeplan.export.html import write_plan_html
 
-            write_plan_html(plan, out.file(html_out, suffix=".html"))
+            write_plan_html(plan, out.file(html_out, suffix=".html"), shown)
         if csv_dir is not None:
             from routeplan.export.csv import write_csv
 

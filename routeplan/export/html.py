@@ -68,11 +68,11 @@ def _charts(report) -> tuple[dict[str, str], str | None]:
         return {}, PLOTS_MISSING
 
 
-def _scheme(plan: "Plan") -> dict[str, Any]:
+def _scheme(plan: "Plan", units: "DisplayUnits | None" = None) -> dict[str, Any]:
     from routeplan.export.html_scheme import structure_svgs
     from routeplan.views.scheme import FONT_PX, scheme_layout
 
-    scheme = scheme_layout(plan)
+    scheme = scheme_layout(plan, units)
     return {"layout": scheme, "structures": structure_svgs(scheme), "font_px": FONT_PX}
 
 
@@ -82,7 +82,7 @@ def _common() -> dict[str, Any]:
     return {"caution": CAUTION, "generator": f"routeplan {__version__}"}
 
 
-def plan_html(plan: "Plan", *, fragment: bool = False) -> str:
+def plan_html(plan: "Plan", *, fragment: bool = False, units: "DisplayUnits | None" = None) -> str:
     """The report of ``plan`` as one HTML page (or, with ``fragment``, a block for a notebook).
 
     Parameters
@@ -91,14 +91,20 @@ def plan_html(plan: "Plan", *, fragment: bool = False) -> str:
         A finished plan.
     fragment : bool
         True for the summary and scheme only, without ``<html>``, for Jupyter.
+    units : DisplayUnits, optional
+        The units every amount, mass and volume of the plan is shown in, as on the
+        terminal; default :func:`~routeplan.views.display_units.plan_units` (by the
+        target's mass).
     """
+    from routeplan.views.display_units import plan_units
     from routeplan.views.report import plan_report
 
-    report = plan_report(plan)
+    units = units or plan_units(plan)
+    report = plan_report(plan, units)
     charts, charts_note = ({}, None) if fragment else _charts(report)
     src = plan.route.source
     return _env().get_template("fragment.html.j2" if fragment else "report.html.j2").render(
-        r=report, scheme=_scheme(plan), charts=charts, charts_note=charts_note,
+        r=report, scheme=_scheme(plan, units), charts=charts, charts_note=charts_note,
         source=None if src is None else {"path": src.path, "sha256": src.sha256}, **_common())
 
 
@@ -118,7 +124,7 @@ def compare_html(cmp: "Comparison", units: "DisplayUnits | None" = None) -> str:
 
     routes = []
     for label, plan in zip(cmp.labels, cmp.plans):
-        routes.append({"label": label, "report": plan_report(plan), "scheme": _scheme(plan)})
+        routes.append({"label": label, "report": plan_report(plan, units), "scheme": _scheme(plan, units)})
     rows = []
     for row in shown_rows(cmp):
         unit = row_unit(row, units)
@@ -134,11 +140,12 @@ def compare_html(cmp: "Comparison", units: "DisplayUnits | None" = None) -> str:
         cmp=cmp, tradeoff=tradeoff(cmp), notes=note_texts(cmp), routes=routes, rows=rows, **_common())
 
 
-def write_plan_html(plan: "Plan", path) -> None:
-    """Write the report of ``plan`` to ``path`` atomically (UTF-8)."""
+def write_plan_html(plan: "Plan", path, units: "DisplayUnits | None" = None) -> None:
+    """Write the report of ``plan`` to ``path`` atomically (UTF-8), amounts, masses and
+    volumes in ``units`` (default: chosen by the target's mass, as ``plan`` without ``--units``)."""
     from routeplan.export.atomic import write_text_atomic
 
-    write_text_atomic(path, plan_html(plan))
+    write_text_atomic(path, plan_html(plan, units=units))
 
 
 def write_compare_html(cmp: "Comparison", path, units: "DisplayUnits | None" = None) -> None:

@@ -274,8 +274,10 @@ def charge_derivations(plan: "Plan", step: str) -> list[list[dict[str, Any]]]:
     return [derivation_rows(plan.derivation.charge(step, i)) for i in range(len(sp.charges))]
 
 
-def step_explanations(plan: "Plan"):
+def step_explanations(plan: "Plan", units: "DisplayUnits | None" = None):
     """Every charge of every running step explained within its step, and where each line is first shown.
+
+    ``units``: the plan's units, as the report's charge tables (see :func:`charge_explanation`).
 
     Returns
     -------
@@ -293,7 +295,7 @@ def step_explanations(plan: "Plan"):
         if not sp.runs:
             continue
         for ci, c in enumerate(sp.charges):
-            ex = charge_explanation(plan, sp.id, ci, within_step=True)
+            ex = charge_explanation(plan, sp.id, ci, within_step=True, units=units)
             if ex.lines:
                 for li, line in enumerate(ex.lines):
                     first.setdefault(line.origin, (len(shown), li))

@@ -1,9 +1,12 @@
 """What the HTML report shows, from a Plan: rows, sentences and chart series.
 
 Every number is read from the Plan (through :mod:`routeplan.views.tables` where the
-terminal reads it too); nothing here computes a charge, a yield or a metric.  Each cell
-keeps its number in a fixed unit (kg, L, mol, [-]) beside the text shown, so that the
-writer can put it in a ``data-value`` attribute and a test can read the report back.
+terminal reads it too); nothing here computes a charge, a yield or a metric.  Amounts,
+masses and volumes are shown as the terminal shows them: in one set of units for the
+whole plan (:mod:`routeplan.views.display_units`), by the rule of
+:mod:`routeplan.views.numbers`.  Each cell keeps its number in a fixed unit (kg, L, mol,
+[-]) beside the text shown, so that the writer can put it in a ``data-value`` attribute
+and a test can read the report back.
 :mod:`routeplan.export.html` only lays this out.
 """
 
@@ -12,9 +15,9 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 from routeplan.frozen import frozen
-from routeplan.views.numbers import pct
-from routeplan.views.tables import (charge_label, column_unit, display_quantity, fmt, raw_material_rows,
-                                    step_charge_rows)
+from routeplan.views.display_units import SETS, DisplayUnits, plan_units
+from routeplan.views.numbers import pct, share, sig
+from routeplan.views.tables import charge_label, fmt, raw_material_rows, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
@@ -183,7 +186,8 @@ class ChartData:
 
 @frozen
 class Report:
-    """Everything the report of one plan shows."""
+    """Everything the report of one plan shows; ``units`` are the units its amounts,
+    masses and volumes are shown in."""
 
     title: str
     target_material: str
@@ -196,60 +200,63 @@ class Report:
     warnings: tuple[str, ...]
     charts: ChartData
     extra: tuple[Section, ...] = ()
+    units: DisplayUnits | None = None
 
 
-def charge_table(sp: "StepPlan", route, links: dict[tuple[int, str], str] | None = None) -> Table:
-    """The charge table of one step: the terminal's rows and columns, units per column.
+def charge_table(sp: "StepPlan", route, links: dict[tuple[int, str], str] | None = None,
+                 units: DisplayUnits | None = None) -> Table:
+    """The charge table of one step: the terminal's rows, columns and units.
 
-    Columns: #, material, role, equiv [-], amount, mass and volume (in one unit each,
-    chosen for the column as on the terminal), and per batch when the step has several.
-    The numbers behind the cells are in mol, kg and L.  ``links`` maps (row, column key)
-    to the anchor of the line deriving that number.
+    Columns: #, material, role, equiv [-], amount, mass and volume (in ``units``, the
+    plan's one set; default the set for a kilo-lab campaign), and per batch when the step
+    has several.  The numbers behind the cells are in mol, kg and L.  ``links`` maps
+    (row, column key) to the anchor of the line deriving that number.
     """
+    u = units or SETS["kilo"]
     links = links or {}
     rows = step_charge_rows(sp)
-    mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
-    vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
-    nu, nf = column_unit([r["mol"] for r in rows], "amount")
     per_batch = sp.batches > 1
     keys = ["order", "material", "role", "equiv", "mol", "mass_kg", "volume_L"]
-    heads = ["#", "material", "role", "equiv", f"n [{nu}]", f"m [{mu}]", f"V [{vu}]"]
-    units = ["", "", "", "-", "mol", "kg", "L"]
+    heads = ["#", "material", "role", "equiv", u.heading("n", "amount"), u.heading("m", "mass"),
+             u.heading("V", "volume")]
+    base = ["", "", "", "-", "mol", "kg", "L"]
     if per_batch:
         keys += ["batch_mass_kg", "batch_volume_L"]
-        heads += [f"m/batch [{mu}]", f"V/batch [{vu}]"]
-        units += ["kg", "L"]
+        heads += [u.heading("m/batch", "mass"), u.heading("V/batch", "volume")]
+        base += ["kg", "L"]
 
-    def num(value: float | None, factor: float, digits: int = 4, link: str | None = None) -> Cell:
-        return Cell(fmt(None if value is None else value / factor, digits), value, True,
-                    None if value is None else link)
+    def num(value: float | None, kind: str, link: str | None = None) -> Cell:
+        return Cell(u.number(value, kind), value, True, None if value is None else link)
 
     out = []
     for i, r in enumerate(rows):
         cells = [Cell(str(r["order"]), r["order"], True), Cell(charge_label(r, route.maker)), Cell(r["role"]),
-                 num(r["equiv"], 1.0, 3), num(r["mol"], nf, link=links.get((i, "mol"))),
-                 num(r["mass_kg"], mf, link=links.get((i, "mass_kg"))),
-                 num(r["volume_L"], vf, link=links.get((i, "volume_L")))]
+                 Cell(share(r["equiv"]), r["equiv"], True), num(r["mol"], "amount", links.get((i, "mol"))),
+                 num(r["mass_kg"], "mass", links.get((i, "mass_kg"))),
+                 num(r["volume_L"], "volume", links.get((i, "volume_L")))]
         if per_batch:
-            cells += [num(r["batch_mass_kg"], mf), num(r["batch_volume_L"], vf)]
+            cells += [num(r["batch_mass_kg"], "mass"), num(r["batch_volume_L"], "volume")]
         out.append(tuple(cells))
-    return Table(tuple(keys), tuple(heads), tuple(out), tuple(units))
+    return Table(tuple(keys), tuple(heads), tuple(out), tuple(base))
 
 
 #: The charge table's column of each of a charge's numbers.
 _AMOUNT_COLUMN = {"n": "mol", "m": "mass_kg", "V": "volume_L"}
 
 
-def charge_derivations_view(plan: "Plan") -> dict[str, tuple[tuple[ChargeDerivation, ...], dict]]:
+def charge_derivations_view(plan: "Plan", units: DisplayUnits | None = None
+                            ) -> dict[str, tuple[tuple[ChargeDerivation, ...], dict]]:
     """Step id -> (the derivation of each charge, the charge table's links to their lines).
 
     Each charge's lines stop at the amounts another step derives (the demand on the
     step, from the step that uses its product); such a factor links to the line that
-    derives it, in that step's charge.  Empty when the plan has no derivation.
+    derives it, in that step's charge.  A charge's results are in ``units`` (the plan's,
+    as its charge table; default :func:`~routeplan.views.display_units.plan_units`).
+    Empty when the plan has no derivation.
     """
     from routeplan.views.derivation_text import step_explanations
 
-    shown, first = step_explanations(plan)
+    shown, first = step_explanations(plan, units or plan_units(plan))
     anchors = [f"d{si + 1}-{ci + 1}" for si, _sid, ci, _c, _ex in shown]
     home = {origin: f"{anchors[k]}-{li + 1}" for origin, (k, li) in first.items()}
     out: dict[str, tuple[list, dict]] = {}
@@ -265,8 +272,7 @@ def charge_derivations_view(plan: "Plan") -> dict[str, tuple[tuple[ChargeDerivat
     return {sid: (tuple(d), links) for sid, (d, links) in out.items()}
 
 
-def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
-    from routeplan.views.display_units import SETS
+def _step_facts(plan: "Plan", sp: "StepPlan", u: DisplayUnits) -> tuple[tuple[str, str], ...]:
     from routeplan.views.plan_text import batch_notes
     from routeplan.views.transfer_text import transfer_text
 
@@ -274,12 +280,11 @@ def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
     if sp.runs:
         pm = sp.product_m_kg
         how = "as isolated" if sp.isolated else "in solution, carried on"
-        facts.append(("makes", f"{fmt(sp.product_n_mol)} mol {sp.product} "
-                               f"({display_quantity(pm, 'mass')} {how})"))
+        facts.append(("makes", f"{u.amount_text(sp.product_n_mol)} {sp.product} ({u.mass_text(pm)} {how})"))
         b = sp.batch
         if b is not None:
             n = b.batches
-            text = f"{n} batch{'es' if n != 1 else ''} of {fmt(b.batch_V_L)} L"
+            text = f"{n} batch{'es' if n != 1 else ''} of {u.volume_text(b.batch_V_L)}"
             if b.vessel is not None:
                 text += f" in {b.vessel}"
                 if b.fill_fraction is not None:
@@ -287,20 +292,17 @@ def _step_facts(plan: "Plan", sp: "StepPlan") -> tuple[tuple[str, str], ...]:
             facts.append(("batches", text))
             limiting_kg = b.per_batch(b.limiting_m_kg)
             if limiting_kg is not None and n > 1:
-                facts.append(("per batch", f"{display_quantity(limiting_kg, 'mass')} of "
-                                           f"{sp.limiting} charged, "
-                                           f"{display_quantity(b.per_batch(b.product_m_kg), 'mass')} of "
-                                           f"{sp.product} made"))
-            for note in batch_notes(sp, SETS["kilo"], plan.route):
+                facts.append(("per batch", f"{u.mass_text(limiting_kg)} of {sp.limiting} charged, "
+                                           f"{u.mass_text(b.per_batch(b.product_m_kg))} of {sp.product} made"))
+            for note in batch_notes(sp, u, plan.route):
                 facts.append(("note", note))
-        transfer = transfer_text(plan, sp)
+        transfer = transfer_text(plan, sp, u)
         if transfer:
             facts.append(("goes on", transfer))
     else:
         facts.append(("not run", sp.not_run))
     if sp.stock_m_kg is not None and sp.stock_m_kg > 0:
-        facts.append(("from stock", f"{display_quantity(sp.stock_m_kg, 'mass')} of "
-                                    f"{sp.product} taken from stock"))
+        facts.append(("from stock", f"{u.mass_text(sp.stock_m_kg)} of {sp.product} taken from stock"))
     if sp.notes:
         facts.append(("notes", sp.notes))
     return tuple(facts)
@@ -310,15 +312,17 @@ _HEADINGS = {"uncertainty": "Yield uncertainty", "safety": "Safety screening", "
              "schedule": "Schedule", "waste": "Waste", "cost_of_goods": "Cost of goods"}
 
 
-def fact_table(rows) -> Table | None:
-    """Rows of ``key, item, value, unit, kind, note`` (the sheets' fact rows) as a table."""
+def fact_table(rows, units: DisplayUnits | None = None) -> Table | None:
+    """Rows of ``key, item, value, unit, kind, note`` (the sheets' fact rows) as a table;
+    a mass [kg] is shown in ``units`` (default the set for a kilo-lab campaign)."""
     if not rows:
         return None
+    u = units or SETS["kilo"]
     out = []
     for r in rows:
         v, kind = r["value"], r.get("kind", "text")
         if kind == "mass" and isinstance(v, (int, float)):
-            cell = Cell(display_quantity(v, "mass"), v, True)
+            cell = Cell(u.mass_text(v), v, True)
         elif kind == "fraction" and isinstance(v, (int, float)):
             cell = Cell(f"{100 * v:.1f} %", v, True)
         elif isinstance(v, (int, float)) and not isinstance(v, bool):
@@ -330,13 +334,20 @@ def fact_table(rows) -> Table | None:
                  keys_by_row=tuple(r["key"] for r in rows))
 
 
-def columns_table(columns, rows) -> Table:
+#: The kind of a column in mol, kg or L, shown in the plan's units.
+_KIND_OF_UNIT = {"mol": "amount", "kg": "mass", "L": "volume"}
+
+
+def columns_table(columns, rows, units: DisplayUnits | None = None) -> Table:
     """Rows of plain values as a table with the given :class:`~routeplan.views.tables.Column` s.
 
     Numbers are shown to four significant figures (fractions of a column with unit ``-``
-    and a heading saying yield, assay or share as %), text as it is.
+    and a heading saying yield, assay or share as %), text as it is.  With ``units`` (the
+    plan's), a column in mol, kg or L is shown in their unit of its kind, by the rule of
+    :mod:`routeplan.views.numbers`; the numbers behind stay in mol, kg and L.
     """
     percent = {c.key for c in columns if c.unit == "-" and any(w in c.heading for w in ("yield", "assay", "share"))}
+    kinds = {c.key: _KIND_OF_UNIT[c.unit] for c in columns if units is not None and c.unit in _KIND_OF_UNIT}
     out = []
     for r in rows:
         cells = []
@@ -346,10 +357,13 @@ def columns_table(columns, rows) -> Table:
                 cells.append(Cell("" if v is None else ("yes" if v is True else "" if v is False else str(v))))
             elif c.key in percent:
                 cells.append(Cell(f"{100 * v:.1f} %", float(v), True))
+            elif c.key in kinds:
+                cells.append(Cell(units.number(float(v), kinds[c.key]), float(v), True))
             else:
                 cells.append(Cell(fmt(float(v)), float(v), True))
         out.append(tuple(cells))
-    heads = tuple(f"{c.heading} [%]" if c.key in percent else c.title for c in columns)
+    heads = tuple(f"{c.heading} [%]" if c.key in percent
+                  else units.heading(c.heading, kinds[c.key]) if c.key in kinds else c.title for c in columns)
     return Table(tuple(c.key for c in columns), heads, tuple(out), tuple(c.unit for c in columns))
 
 
@@ -363,21 +377,22 @@ def _view(module: str):
         return None
 
 
-def _uncertainty_section(plan: "Plan") -> Section | None:
+def _uncertainty_section(plan: "Plan", u: DisplayUnits) -> Section | None:
     v = _view("uncertainty_text")
     return None if v is None else Section("uncertainty", _HEADINGS["uncertainty"],
-                                          facts=fact_table(v.uncertainty_fact_rows(plan)))
+                                          facts=fact_table(v.uncertainty_fact_rows(plan, u), u))
 
 
-def _record_section(plan: "Plan") -> Section | None:
+def _record_section(plan: "Plan", u: DisplayUnits) -> Section | None:
     v = _view("record_text")
     if v is None:
         return None
-    return Section("record", _HEADINGS["record"], lines=tuple(x.strip() for x in v.record_lines(plan) if x.strip()),
-                   facts=columns_table(v.IN_HAND_COLUMNS, v.in_hand_rows(plan)) if plan.record.in_hand else None)
+    return Section("record", _HEADINGS["record"],
+                   lines=tuple(x.strip() for x in v.record_lines(plan, u) if x.strip()),
+                   facts=columns_table(v.IN_HAND_COLUMNS, v.in_hand_rows(plan), u) if plan.record.in_hand else None)
 
 
-def _schedule_section(plan: "Plan") -> Section | None:
+def _schedule_section(plan: "Plan", u: DisplayUnits) -> Section | None:
     v = _view("schedule_text")
     if v is None:
         return None
@@ -386,13 +401,13 @@ def _schedule_section(plan: "Plan") -> Section | None:
                    facts=columns_table(v.VESSEL_USE_COLUMNS, v.vessel_rows(plan)))
 
 
-def _waste_section(plan: "Plan") -> Section | None:
+def _waste_section(plan: "Plan", u: DisplayUnits) -> Section | None:
     v = _view("waste_cost_text")
     return None if v is None else Section("waste", _HEADINGS["waste"],
-                                          lines=tuple(x.strip() for x in v.waste_lines(plan) if x.strip()))
+                                          lines=tuple(x.strip() for x in v.waste_lines(plan, u) if x.strip()))
 
 
-def _cost_section(plan: "Plan") -> Section | None:
+def _cost_section(plan: "Plan", u: DisplayUnits) -> Section | None:
     v = _view("waste_cost_text")
     return None if v is None else Section("cost_of_goods", _HEADINGS["cost_of_goods"],
                                           lines=tuple(x.strip() for x in v.cost_lines(plan) if x.strip()))
@@ -403,17 +418,17 @@ _SECTIONS = {"uncertainty": _uncertainty_section, "record": _record_section, "sc
              "waste": _waste_section, "cost_of_goods": _cost_section}
 
 
-def _plan_sections(plan: "Plan") -> tuple[Section, ...]:
+def _plan_sections(plan: "Plan", u: DisplayUnits) -> tuple[Section, ...]:
     return tuple(sec for name, build in _SECTIONS.items()
-                 if getattr(plan, name, None) is not None and (sec := build(plan)) is not None)
+                 if getattr(plan, name, None) is not None and (sec := build(plan, u)) is not None)
 
 
-def _step_sections(plan: "Plan", sp: "StepPlan") -> tuple[Section, ...]:
+def _step_sections(plan: "Plan", sp: "StepPlan", u: DisplayUnits) -> tuple[Section, ...]:
     """The step's safety block (screening estimates) and its recorded lots, where the Plan has them."""
     out = []
     v = _view("safety_text") if getattr(sp, "safety", None) is not None else None
     if v is not None:
-        pairs = v.sheet_safety_pairs(sp)
+        pairs = v.sheet_safety_pairs(sp, u)
         if pairs:
             out.append(Section("safety", f"Safety per batch: {v.SCREENING_NOTE}",
                                facts=Table(("item", "value"), ("", ""),
@@ -422,7 +437,7 @@ def _step_sections(plan: "Plan", sp: "StepPlan") -> tuple[Section, ...]:
     if v is not None:
         lots = [r for r in v.lot_rows(plan) if r["step"] == sp.id]
         if lots:
-            out.append(Section("record", "Lots recorded", facts=columns_table(v.LOT_COLUMNS, lots)))
+            out.append(Section("record", "Lots recorded", facts=columns_table(v.LOT_COLUMNS, lots, u)))
     return tuple(out)
 
 
@@ -465,20 +480,18 @@ def chart_data(plan: "Plan") -> ChartData:
         delivery=delivery, contributions=contributions, timeline=timeline)
 
 
-def _raw_table(plan: "Plan") -> Table:
-    rows = raw_material_rows(plan)
-    mu, mf = column_unit([r["mass_kg"] for r in rows], "mass")
-    vu, vf = column_unit([r["volume_L"] for r in rows], "volume")
+def _raw_table(plan: "Plan", u: DisplayUnits) -> Table:
     cur = plan.route.currency
     out = []
-    for r in rows:
+    for r in raw_material_rows(plan):
         out.append((Cell(r["material"]), Cell(r["name"]),
-                    Cell(fmt(r["mass_kg"] / mf), r["mass_kg"], True),
-                    Cell(fmt(None if r["volume_L"] is None else r["volume_L"] / vf), r["volume_L"], True),
+                    Cell(u.number(r["mass_kg"], "mass"), r["mass_kg"], True),
+                    Cell(u.number(r["volume_L"], "volume"), r["volume_L"], True),
                     Cell(f"{r['cost']:,.2f}" if r["cost"] is not None else "–", r["cost"], True),
                     Cell(r["steps"])))
     return Table(("material", "name", "mass_kg", "volume_L", "cost", "steps"),
-                 ("material", "name", f"mass [{mu}]", f"volume [{vu}]", f"cost [{cur}]" if cur else "cost", "used in"),
+                 ("material", "name", u.heading("mass", "mass"), u.heading("volume", "volume"),
+                  f"cost [{cur}]" if cur else "cost", "used in"),
                  tuple(out), ("", "", "kg", "L", cur or "", ""))
 
 
@@ -521,28 +534,33 @@ def _safety_facts(plan: "Plan") -> list[tuple[str, str, str, float | None]]:
     return out
 
 
-def plan_report(plan: "Plan") -> Report:
+def plan_report(plan: "Plan", units: DisplayUnits | None = None) -> Report:
     """Everything the HTML report of ``plan`` shows.
 
     Parameters
     ----------
     plan : Plan
         A finished plan.
+    units : DisplayUnits, optional
+        The units of the whole plan, as the terminal shows it (``--units``); default
+        :func:`~routeplan.views.display_units.plan_units` (by the target's mass).
 
     Returns
     -------
     Report
         Rows, sentences and chart series; numbers are the Plan's.
     """
+    u = units or plan_units(plan)
     route = plan.route
     tm = plan.target_kg
     overage = route.target.overage
     oy = plan.overall_yield
     summary = [
-        ("target", f"{fmt(tm)} kg of {plan.target_material}"
-                   + (f" ({fmt(plan.asked_kg)} kg + {overage * 100:.3g} % overage)" if overage else ""),
+        ("target", f"{u.mass_text(tm)} of {plan.target_material}"
+                   + (f" ({u.mass_text(plan.asked_kg)} + {overage * 100:g} % overage)" if overage else ""),
          "target_mass_kg", tm),
-        ("amount", f"{fmt(plan.target_n_mol)} mol", "target_mol", plan.target_n_mol),
+        ("amount", u.amount_text(plan.target_n_mol), "target_mol", plan.target_n_mol),
+        ("units", u.legend(), "units", None),
         ("steps", f"{len(plan.steps)}; longest linear sequence {len(oy.longest_linear_sequence)} "
                   f"({' → '.join(oy.longest_linear_sequence)})", "steps", float(len(plan.steps))),
         ("overall yield", f"{pct(oy.yield_)}"
@@ -564,24 +582,25 @@ def plan_report(plan: "Plan") -> Report:
         summary.append(("planned at", f"the steps' {plan.yield_basis} yields", "yield_basis", None))
     summary.extend(_safety_facts(plan))
     steps = []
-    derived = charge_derivations_view(plan)
+    derived = charge_derivations_view(plan, u)
     for sp in plan.steps:
         title = sp.id if not sp.name or sp.name == sp.id else f"{sp.id} · {sp.name}"
-        extra = _step_sections(plan, sp)
+        extra = _step_sections(plan, sp, u)
         derivations, links = derived.get(sp.id, ((), {}))
         steps.append(StepSection(
             id=sp.id, title=title, equation=sp.equation, yield_=sp.yield_, telescoped=not sp.isolated,
-            charges=charge_table(sp, route, links) if sp.runs else None, facts=_step_facts(plan, sp),
+            charges=charge_table(sp, route, links, u) if sp.runs else None, facts=_step_facts(plan, sp, u),
             batches=sp.batches, fill=None if sp.batch is None else sp.batch.fill_fraction, extra=extra,
             derivations=derivations))
     stock = ()
     if plan.stock is not None:
         from routeplan.views.stock_text import stock_lines
 
-        stock = tuple(x for x in stock_lines(plan) if x.strip())
+        stock = tuple(x for x in stock_lines(plan, u) if x.strip())
     mat = route.materials[plan.target_material]
-    extra = _plan_sections(plan)
+    extra = _plan_sections(plan, u)
     return Report(
         title=route.name, target_material=plan.target_material, target_name=mat.name or plan.target_material,
-        summary=tuple(summary), steps=tuple(steps), raw_materials=_raw_table(plan), metrics=_metrics_lines(plan),
-        stock=stock, warnings=tuple(p.render() for p in plan.warnings), charts=chart_data(plan), extra=extra)
+        summary=tuple(summary), steps=tuple(steps), raw_materials=_raw_table(plan, u), metrics=_metrics_lines(plan),
+        stock=stock, warnings=tuple(p.render(u.text) for p in plan.warnings), charts=chart_data(plan), extra=extra,
+        units=u)

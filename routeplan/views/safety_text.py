@@ -136,9 +136,11 @@ def step_safety_lines(sp: "StepPlan", units: "DisplayUnits | None" = None) -> li
     return lines
 
 
-def sheet_safety_pairs(sp: "StepPlan") -> list[tuple[str, str]]:
+def sheet_safety_pairs(sp: "StepPlan", units: "DisplayUnits | None" = None) -> list[tuple[str, str]]:
     """(label, text) pairs for the safety block of a charge sheet: class, ΔTad, MTSR,
-    gas volume and rate per batch, gas taken up, vent notes."""
+    gas volume and rate per batch, gas taken up, vent notes.  ``units``: the plan's units
+    for the reaction mass and the gases' amounts and volumes (else each in the unit that
+    suits it); gas rates stay in L/min."""
     s = sp.safety
     if s is None or not s.runs:
         return []
@@ -150,14 +152,14 @@ def sheet_safety_pairs(sp: "StepPlan") -> list[tuple[str, str]]:
         pairs.append(("criticality class", "–, needs MTT and TD24" if t.criticality_class is None
                       else f"{t.criticality_class} (MTT {_t(t.mtt_C)}, TD24 {_t(t.td24_C)})"))
         pairs.append(("ΔTad per batch", f"{sig(t.delta_T_ad_K)} K, severity {t.severity} (reaction mass "
-                                        f"{display_quantity(t.reaction_mass_kg_per_batch, 'mass')})"))
+                                        f"{display_quantity(t.reaction_mass_kg_per_batch, 'mass', units=units)})"))
         pairs.append(("MTSR", _tc(t.mtsr_C) + (f" (Tp {_t(t.process_temperature_C)}, accumulation "
                                                f"{pct(t.accumulation)})" if t.accumulation is not None
                                               else f" (Tp {_t(t.process_temperature_C)}, batch step)")))
     for g in s.gas_evolved:
-        pairs.append((f"gas evolved: {g.material}", gas_evolved_text(sp, g)))
+        pairs.append((f"gas evolved: {g.material}", gas_evolved_text(sp, g, units)))
     for g in s.gas_taken_up:
-        pairs.append((f"gas taken up: {g.material}", gas_taken_up_text(g)))
+        pairs.append((f"gas taken up: {g.material}", gas_taken_up_text(g, units)))
     for g in (*s.gas_evolved, *s.gas_taken_up):
         if g.vent:
             pairs.append(("vent", vent_text(g)))

@@ -33,6 +33,7 @@ from routeplan.frozen import frozen
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
+    from routeplan.views.display_units import DisplayUnits
 
 __all__ = ["SchemeNode", "SchemeEdge", "Scheme", "scheme_layout", "text_width", "pav_positions",
            "FONT_PX", "STRUCTURE_SIZE"]
@@ -166,10 +167,9 @@ def _yield_text(y: float) -> str:
     return f"yield {100 * y:.3g} %"
 
 
-def _quantity_text(kg: float) -> str:
-    from routeplan.views.tables import display_quantity
-
-    return display_quantity(kg, "mass", digits=3)
+def _quantity_text(kg: float, units: "DisplayUnits") -> str:
+    """A mass [kg] in the plan's unit of mass (``units``), as its tables show it."""
+    return units.mass_text(kg)
 
 
 def _node_size(lines, structure: bool) -> tuple[float, float]:
@@ -181,7 +181,8 @@ def _node_size(lines, structure: bool) -> tuple[float, float]:
     return max(w, 70.0), h
 
 
-def _material_lines(plan: "Plan", key: str, *, made_kg: float | None) -> list[tuple[str, str]]:
+def _material_lines(plan: "Plan", key: str, units: "DisplayUnits", *, made_kg: float | None
+                    ) -> list[tuple[str, str]]:
     mat = plan.route.materials[key]
     lines = [("title", t) for t in _wrap(mat.name or key)]
     if mat.name and mat.name != key:
@@ -189,9 +190,9 @@ def _material_lines(plan: "Plan", key: str, *, made_kg: float | None) -> list[tu
     if mat.formula:
         lines.append(("formula", _clip(mat.formula)))
     if key == plan.target_material:
-        lines.append(("mark", _clip(f"target · {_quantity_text(plan.target_mass.m_as('kg'))}")))
+        lines.append(("mark", _clip(f"target · {_quantity_text(plan.target_mass.m_as('kg'), units)}")))
     elif made_kg is not None:
-        lines.append(("text", _clip(f"made {_quantity_text(made_kg)}")))
+        lines.append(("text", _clip(f"made {_quantity_text(made_kg, units)}")))
     return lines
 
 
@@ -207,8 +208,8 @@ def _step_lines(plan: "Plan", sp, reagents: list[str]) -> list[tuple[str, str]]:
     return lines
 
 
-def _scheme_graph(plan: "Plan"):
-    """The graph the scheme draws, with node attributes (kind, lines, ...)."""
+def _scheme_graph(plan: "Plan", units: "DisplayUnits"):
+    """The graph the scheme draws, with node attributes (kind, lines, ...); masses in ``units``."""
     import networkx as nx
 
     route = plan.route
@@ -239,11 +240,11 @@ def _scheme_graph(plan: "Plan"):
                 rkey = f"r:{sp.id}:{mkey}"
                 mat = route.materials[mkey]
                 g.add_node(rkey, kind="raw", material=mkey, step=sp.id, smiles=mat.smiles,
-                           lines=_material_lines(plan, mkey, made_kg=None), full_name=mat.name or mkey)
+                           lines=_material_lines(plan, mkey, units, made_kg=None), full_name=mat.name or mkey)
                 g.add_edge(rkey, skey)
         mat = route.materials[sp.product]
         g.add_node(f"m:{sp.product}", kind="material", material=sp.product, step=sp.id, smiles=mat.smiles,
-                   lines=_material_lines(plan, sp.product, made_kg=sp.product_mass.m_as("kg") if sp.runs else None),
+                   lines=_material_lines(plan, sp.product, units, made_kg=sp.product_mass.m_as("kg") if sp.runs else None),
                    target=sp.product == plan.target_material, telescoped=not sp.isolated,
                    full_name=mat.name or sp.product)
         g.add_edge(skey, f"m:{sp.product}")
@@ -291,13 +292,16 @@ def pav_positions(desired: list[float], widths: list[float], gap: float) -> list
     return [f + o for f, o in zip(fitted, offset)]
 
 
-def scheme_layout(plan: "Plan") -> Scheme:
+def scheme_layout(plan: "Plan", units: "DisplayUnits | None" = None) -> Scheme:
     """Lay out the scheme of ``plan``'s route (see the module notes).
 
     Parameters
     ----------
     plan : Plan
         A finished plan; its steps give yields, batches and masses made.
+    units : DisplayUnits, optional
+        The plan's units, for the masses made; default
+        :func:`~routeplan.views.display_units.plan_units` (by the target's mass).
 
     Returns
     -------
@@ -307,8 +311,9 @@ def scheme_layout(plan: "Plan") -> Scheme:
     import networkx as nx
 
     from routeplan.route.graph import topological_order
+    from routeplan.views.display_units import plan_units
 
-    g = _scheme_graph(plan)
+    g = _scheme_graph(plan, units or plan_units(plan))
     position = {f"s:{sp.id}": i for i, sp in enumerate(plan.steps)}
 
     def rank(n: str) -> tuple:

@@ -139,9 +139,10 @@ def _fact(key, item, value, unit="", kind="text", note=""):
     return {"key": key, "item": item, "value": value, "unit": unit, "kind": kind, "note": note}
 
 
-def uncertainty_fact_rows(plan: "Plan") -> list[dict[str, Any]]:
+def uncertainty_fact_rows(plan: "Plan", units: "DisplayUnits | None" = None) -> list[dict[str, Any]]:
     """The uncertainty as ``key``, ``item``, ``value``, ``unit``, ``kind``, ``note`` rows
-    (as :func:`routeplan.views.sheet_rows.summary_rows`); empty without it.
+    (as :func:`routeplan.views.sheet_rows.summary_rows`); empty without it.  ``units``:
+    the plan's units for the mass a note names (the values stay in kg); else kg.
 
     Keys: ``draws``, ``p10``, ``p50``, ``p90``, ``mean`` [kg], ``probability_of_target``
     [-], ``confidence_target`` [kg], ``buy:<material>`` [kg], ``share:<step>`` [-];
@@ -158,7 +159,8 @@ def uncertainty_fact_rows(plan: "Plan") -> list[dict[str, Any]]:
         rows.append(_fact(key, f"delivered, {key.upper() if key != 'mean' else 'mean'}", value, "kg", "mass",
                           "as isolated, plan at expected yields"))
     rows.append(_fact("probability_of_target", "probability of delivering the target", u.probability_of_target,
-                      "-", "fraction", f"{u.required_kg:.6g} kg, overage included"))
+                      "-", "fraction", f"{u.required_kg:.6g} kg, overage included" if units is None
+                      else f"{units.mass_text(u.required_kg)}, overage included"))
     rows.append(_fact("confidence_target", f"target to plan for {_level(u.confidence)} confidence", u.target_kg,
                       "kg", "mass", "before overage, as --target takes it"))
     for material, kg in u.raw_materials:

@@ -110,9 +110,10 @@ def test_rendered_text_has_the_target_mass_and_every_step(browser, pages, name):
     plan, path = pages[name]
     b = _open(browser, path)
     text = b.evaluate("document.body.innerText")
-    from routeplan.views.tables import fmt
+    from routeplan.views.display_units import plan_units
 
-    assert f"{fmt(plan.target_mass.m_as('kg'))} kg of {plan.target_material}" in text
+    # in the plan's one set of units, as the terminal prints it (25 kg: kg)
+    assert f"{plan_units(plan).mass_text(plan.target_mass.m_as('kg'))} of {plan.target_material}" in text
     headings = b.evaluate("[...document.querySelectorAll('section.step h3')].map(h => h.innerText)")
     assert [h.split(" ·")[0].replace("telescoped", "").strip() for h in headings] == [sp.id for sp in plan.steps]
     drawn = b.evaluate("[...document.querySelectorAll('svg.scheme g.node.step')].map(g => g.dataset.step)")
