@@ -37,7 +37,7 @@ from __future__ import annotations
 import dataclasses
 import operator
 
-__all__ = ["frozen"]
+__all__ = ["frozen", "kept"]
 
 
 class _Factory:
@@ -160,3 +160,20 @@ def _build(cls, eq: bool):
 
         cls.__doc__ = cls.__name__ + str(inspect.signature(cls)).replace(" -> None", "")
     return cls
+
+
+def kept(route, name: str, make):
+    """``make()``, worked out once per route and kept in its ``__dict__`` under ``name``.
+
+    A Route is frozen, so what is derived from it alone (the execution order, the step
+    links, the longest linear sequence, the molar masses in kg/mol, the vessel volumes in
+    L, the compiled core) can be kept on it; read what is kept, never change it.  An
+    object without a ``__dict__`` gets ``make()`` afresh each time.
+    """
+    cache = getattr(route, "__dict__", None)
+    value = None if cache is None else cache.get(name)
+    if value is None:
+        value = make()
+        if cache is not None:
+            cache[name] = value
+    return value

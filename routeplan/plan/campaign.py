@@ -29,7 +29,7 @@ import math
 from typing import TYPE_CHECKING
 
 from routeplan.errors import Problem
-from routeplan.frozen import frozen
+from routeplan.frozen import frozen, kept
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.walk import Walked
@@ -96,12 +96,9 @@ def nominal_volumes_L(route: "Route") -> dict[str, float]:
     """Vessel key -> nominal volume [L], converted once per route (kept on the frozen
     Route, read by the batch sizing and the safety screening alike); read it, never
     change it."""
-    cached = route.__dict__.get("_nominal_L")
-    if cached is None:
-        from routeplan.units import magnitude
+    from routeplan.units import magnitude
 
-        cached = route.__dict__["_nominal_L"] = {k: magnitude(v.volume, "L") for k, v in route.equipment.items()}
-    return cached
+    return kept(route, "_nominal_L", lambda: {k: magnitude(v.volume, "L") for k, v in route.equipment.items()})
 
 
 def size_steps(route: "Route", walked: "Walked") -> tuple[dict[str, Sized], list[Problem]]:

@@ -20,7 +20,7 @@ import functools
 from typing import TYPE_CHECKING, Any, Callable, Mapping
 
 from routeplan.errors import PlanError
-from routeplan.frozen import frozen
+from routeplan.frozen import frozen, kept
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.route.model import Material, Route
@@ -170,13 +170,10 @@ class CoreRoute:
 
 def molar_masses(route: "Route") -> Mapping[str, float | None]:
     """Molar mass of every material [kg/mol] (None without one), computed once per route."""
-    cached = route.__dict__.get("_molar_masses_kg")
-    if cached is None:
-        from routeplan.units import magnitude
+    from routeplan.units import magnitude
 
-        cached = route.__dict__["_molar_masses_kg"] = {
-            k: magnitude(m.molar_mass, "kg/mol") for k, m in route.materials.items()}
-    return cached
+    return kept(route, "_molar_masses_kg",
+                lambda: {k: magnitude(m.molar_mass, "kg/mol") for k, m in route.materials.items()})
 
 
 def compile_route(route: "Route", yields: str = "expected", quantity: Callable = _plain) -> CoreRoute:
@@ -203,7 +200,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
 
     cache = None
     if quantity is _plain:
-        cache = route.__dict__.setdefault("_core_cache", {})
+        cache = kept(route, "_core_cache", dict)  # yield case -> CoreRoute
         if yields in cache:
             return cache[yields]
     materials = route.materials

@@ -99,16 +99,6 @@ def starting_materials(route: "Route") -> frozenset[str]:
     return frozenset(s.limiting for s in route.steps if s.limiting not in made) | marked
 
 
-def linear_sequence(route: "Route") -> tuple[str, ...]:
-    """The longest linear sequence (:func:`routeplan.route.graph.longest_linear_sequence`), once per route."""
-    cached = route.__dict__.get("_lls")
-    if cached is None:
-        from routeplan.route.graph import longest_linear_sequence
-
-        cached = route.__dict__["_lls"] = tuple(longest_linear_sequence(route))
-    return cached
-
-
 def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: float) -> "OverallYield":
     """Overall yield along the longest linear sequence, and from each starting material.
 
@@ -125,8 +115,9 @@ def overall_yield(route: "Route", steps: "tuple[StepPlan, ...]", n_target: float
     theory.
     """
     from routeplan.plan.model import OverallYield
+    from routeplan.route.graph import longest_linear_sequence
 
-    lls = linear_sequence(route)
+    lls = tuple(longest_linear_sequence(route))  # worked out once per route
     y = low = high = 1.0
     by_step = {sp.id: sp for sp in steps}
     for sid in lls:

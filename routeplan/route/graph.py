@@ -18,6 +18,8 @@ from __future__ import annotations
 import heapq
 from typing import TYPE_CHECKING
 
+from routeplan.frozen import kept
+
 if TYPE_CHECKING:  # pragma: no cover
     import networkx as nx
 
@@ -127,7 +129,7 @@ def route_step_links(route: "Route") -> StepLinks:
     """:func:`step_links` of ``route.steps``, built once per route (a Route is frozen; the
     loader keeps those its cycle check built, :func:`keep_step_links`); read them, never
     change them."""
-    return _route_cache(route, _LINKS, lambda: step_links(route.steps))
+    return kept(route, _LINKS, lambda: step_links(route.steps))
 
 
 def keep_step_links(route: "Route", links: StepLinks) -> None:
@@ -204,19 +206,7 @@ def execution_order(route: "Route") -> list[str]:
             return tuple(position)
         return tuple(topological_order(links, position.__getitem__))
 
-    return list(_route_cache(route, "_execution_order", make))
-
-
-def _route_cache(route, name: str, make):
-    """``make()``, kept in the route's ``__dict__`` under ``name`` (an object without one
-    gets it afresh each time)."""
-    cache = getattr(route, "__dict__", None)
-    value = None if cache is None else cache.get(name)
-    if value is None:
-        value = make()
-        if cache is not None:
-            cache[name] = value
-    return value
+    return list(kept(route, "_execution_order", make))
 
 
 def topological_order(g: "nx.DiGraph | StepLinks", key) -> list:
@@ -261,7 +251,7 @@ def longest_linear_sequence(route: "Route") -> list[str]:
     with ``--yields`` (the rule reads the expected yields).
 
     The search is a single pass over the steps in execution order with a parent pointer
-    per step (no recursion), so a route of any length is fine.
+    per step (no recursion), so a route of any length is fine; it runs once per route.
 
     Parameters
     ----------
@@ -289,6 +279,11 @@ def longest_linear_sequence(route: "Route") -> list[str]:
     >>> longest_linear_sequence(NS(steps=steps, target=NS(material="p")))
     ['A1', 'A2', 'S5']
     """
+    return list(kept(route, "_longest_linear_sequence", lambda: tuple(_longest_chain(route))))
+
+
+def _longest_chain(route: "Route") -> list[str]:
+    """:func:`longest_linear_sequence` worked out (see there)."""
     links = route_step_links(route)
     final = next(s.id for s in route.steps if s.product == route.target.material)
     keep = upstream(links, final) | {final}
