@@ -31,6 +31,7 @@ __all__ = [
     "CoreStep",
     "CoreRoute",
     "compile_route",
+    "with_yields",
     "molar_masses",
     "material_form",
     "target_amount",
@@ -256,6 +257,15 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
     if cache is not None:
         cache[yields] = core
     return core
+
+
+def with_yields(core: CoreRoute, yield_of: Mapping[str, Number]) -> CoreRoute:
+    """``core`` with each step named in ``yield_of`` planned at that yield [-] instead
+    (the actual yields of a campaign record's lots, :mod:`routeplan.plan.record`)."""
+    from dataclasses import replace
+
+    return replace(core, steps=tuple(replace(s, yield_=yield_of[s.id]) if s.id in yield_of else s
+                                     for s in core.steps))
 
 
 # ------------------------------------------------------------------ the expressions

@@ -455,7 +455,7 @@ def derive(route: "Route", amount_kg: float, *, yields: str = "expected",
     record : optional
         The campaign record (its file is cited for those yields and for what is in hand).
     """
-    from routeplan.plan.core import compile_route, contents, target_amount, walk
+    from routeplan.plan.core import compile_route, contents, target_amount, walk, with_yields
     from routeplan.plan.walk import shelf_moles
     from routeplan.units import Q
 
@@ -464,11 +464,8 @@ def derive(route: "Route", amount_kg: float, *, yields: str = "expected",
     record_source = "campaign record" if record is None or not isinstance(record, (str, bytes)) and not hasattr(
         record, "__fspath__") else f"campaign record {record}"
     if yield_of:  # the planner's walk plans these steps at the record's yields (plan/walk.py)
-        from dataclasses import replace
-
-        core = replace(core, steps=tuple(
-            replace(s, yield_=Traced(Q(float(yield_of[s.id]), ""), ("leaf", f"actual yield of {s.id}", record_source)))
-            if s.id in yield_of else s for s in core.steps))
+        core = with_yields(core, {sid: Traced(Q(float(y), ""), ("leaf", f"actual yield of {sid}", record_source))
+                                  for sid, y in yield_of.items()})
     tgt = route.target
     src = target_source or _where(route, tgt.location)
     amount = Traced(Q(float(amount_kg), "kg"), ("leaf", f"target mass of {tgt.material}", src))

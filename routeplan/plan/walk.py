@@ -22,7 +22,7 @@ from typing import TYPE_CHECKING, Mapping
 
 from routeplan.errors import PlanError
 from routeplan.frozen import frozen
-from routeplan.plan.core import CoreRoute, WalkStep, compile_route, target_amount, walk
+from routeplan.plan.core import CoreRoute, WalkStep, compile_route, target_amount, walk, with_yields
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.route.model import Route
@@ -95,10 +95,7 @@ def walk_route(route: "Route", amount_kg: float, *, yields: str = "expected",
     """
     core = compile_route(route, yields)
     if yield_of:
-        from dataclasses import replace
-
-        core = replace(core, steps=tuple(replace(s, yield_=yield_of[s.id]) if s.id in yield_of else s
-                                         for s in core.steps))
+        core = with_yields(core, yield_of)
     n_target = target_amount(amount_kg, core.overage, core.target_kg_per_mol_pure)
     shelf = None if shelf_kg is None else shelf_moles(route, core, shelf_kg)
     steps = walk(core, n_target, shelf)
