@@ -327,11 +327,15 @@ def charge_amounts(c: CoreCharge, n_lim_mol: Number, m_lim_kg: Number):
 SHELF_REL = 1e-9
 
 
+def _is_array(x: Any) -> bool:
+    """True for a numpy array (not a pint Quantity, not a recording number)."""
+    return getattr(x, "shape", ()) != () and not hasattr(x, "units") and hasattr(x, "dtype")
+
+
 def _taken(on_shelf: Number, n_p: Number) -> Number:
     """Moles taken from the shelf [mol]: ``min(on shelf, n_p)``, and all of ``n_p`` when
     the shelf falls short of it by less than :data:`SHELF_REL` (no batch of crumbs)."""
-    if hasattr(on_shelf, "shape") and getattr(on_shelf, "shape", ()) != () and not hasattr(on_shelf, "units") \
-            or hasattr(n_p, "shape") and getattr(n_p, "shape", ()) != () and not hasattr(n_p, "units"):
+    if _is_array(on_shelf) or _is_array(n_p):
         import numpy as np
 
         return np.where(on_shelf >= n_p * (1 - SHELF_REL), n_p, np.minimum(on_shelf, n_p))
@@ -392,11 +396,6 @@ def walk(core: CoreRoute, n_target_mol: Number, shelf_mol: Mapping[str, Number] 
 
 
 # ------------------------------------------------------------- what each vessel holds
-
-
-def _is_array(x: Any) -> bool:
-    """True for a numpy array (not a pint Quantity, not a recording number)."""
-    return getattr(x, "shape", ()) != () and not hasattr(x, "units") and hasattr(x, "dtype")
 
 
 def _larger(a: Number | None, b: Number) -> Number:
