@@ -52,29 +52,30 @@ def leaving_problems(parts, facts, pos: Positions) -> list[Problem]:
     for i, s in enumerate(parts.steps):
         if s is None:
             continue
-        for j, c in enumerate(getattr(s, "charges", None) or ()):
-            if c is None or getattr(c, "leaves", False) is not True:
-                continue
+        leaving = [(j, c) for j, c in enumerate(getattr(s, "charges", None) or ())
+                   if c is not None and getattr(c, "leaves", False) is True]
+        if not leaving:
+            continue
+        sid = getattr(s, "id", None)
+        eq = facts.equations.get(i)
+        reactants = {t.key for t in eq.reactants} if eq is not None else set()
+        for j, c in leaving:
             at = pos.at(("steps", i, "charges", j, "leaves"), key=True)
-            sid = getattr(s, "id", None)
-
-            def error(message: str, hint: str) -> None:
-                out.append(Problem("error", message, at, step=sid, hint=hint))
-
-            eq = facts.equations.get(i)
-            reactants = {t.key for t in eq.reactants} if eq is not None else set()
             if eq is not None and c.material == facts.limiting.get(i):
-                error(f"step {sid}: the limiting reagent '{c.material}' cannot leave: it is what the step converts",
-                      f"drop 'leaves'; {_WHAT_LEAVES}")
+                message = f"step {sid}: the limiting reagent '{c.material}' cannot leave: it is what the step converts"
+                hint = f"drop 'leaves'; {_WHAT_LEAVES}"
             elif c.material in reactants:
-                error(f"step {sid}: '{c.material}' is a reactant of the equation, consumed by the reaction, so "
-                      "it cannot leave", f"drop 'leaves'; {_WHAT_LEAVES}")
+                message = (f"step {sid}: '{c.material}' is a reactant of the equation, consumed by the reaction, "
+                           "so it cannot leave")
+                hint = f"drop 'leaves'; {_WHAT_LEAVES}"
             else:
                 basis = next((b for b in GIVEN_BASES if getattr(c, b, None) is not None), None)
                 role = c.role if getattr(c, "role", None) is not None else _default_role(basis, False)
-                if str(role) != "workup":
-                    error(f"step {sid}: this line of '{c.material}' is a {role}, and {_WHAT_LEAVES}: it "
-                          "leaves right after it is charged, before the next line",
-                          "write 'role: workup' on the line if it is a wash or filter aid that is removed, "
-                          "or drop 'leaves'")
+                if str(role) == "workup":
+                    continue
+                message = (f"step {sid}: this line of '{c.material}' is a {role}, and {_WHAT_LEAVES}: it "
+                           "leaves right after it is charged, before the next line")
+                hint = ("write 'role: workup' on the line if it is a wash or filter aid that is removed, "
+                        "or drop 'leaves'")
+            out.append(Problem("error", message, at, step=sid, hint=hint))
     return out
