@@ -212,17 +212,14 @@ def schedule_order(timings: Sequence[StepTiming]) -> list[str]:
     >>> schedule_order(t)
     ['S1', 'S2']
     """
-    import networkx as nx
+    from routeplan.route.graph import StepLinks, topological_order
 
-    from routeplan.route.graph import topological_order
-
-    g = nx.DiGraph()
-    for t in timings:
-        g.add_node(t.id)
+    succ: dict[str, dict] = {t.id: {} for t in timings}
+    pred: dict[str, dict] = {t.id: {} for t in timings}
     for t in timings:
         for f in t.feeds_from:
-            g.add_edge(f, t.id)
-    return topological_order(g, str)
+            succ[f][t.id] = pred[t.id][f] = None
+    return topological_order(StepLinks(succ, pred), str)
 
 
 def place_steps(timings: Sequence[StepTiming], order: Sequence[str] | None = None) -> Schedule:
