@@ -11,16 +11,17 @@ Volume of a step
     discarded, a filter aid filtered off) is taken out right after it is charged, before
     the next line, so it counts while it is in the vessel and is not carried on.  A
     charge without a known volume (a solid without a density, an isolated intermediate
-    without a density) is left out, with a note.
+    without a density) is left out (its ``lines_V`` entry is None; the views say so).
 
 Batches
     ``batches = ceil(step volume / (vessel volume * max_fill))`` for a step with a
     vessel; one batch otherwise; none for a step that does not run (the stock of its
-    product covers it).  Each batch charges the totals divided by the number of batches.  A batch filling less than 20 % of the nominal volume is too little to
-    stir (common practice, no source); a batch of more than 10 times the largest batch
-    run so far (``demonstrated_batch``) is a large scale-up jump (common practice, no
-    source), and more than 12 batches of one step is worth a look at the vessel (common
-    practice, no source).  All three are warnings.
+    product covers it).  Each batch charges the totals divided by the number of batches.
+    A batch filling less than 20 % of the nominal volume is too little to stir (common
+    practice, no source); a batch of more than 10 times the largest batch run so far
+    (``demonstrated_batch``) is a large scale-up jump (common practice, no source), and
+    more than 12 batches of one step is worth a look at the vessel (common practice, no
+    source).  All three are warnings.
 """
 
 from __future__ import annotations

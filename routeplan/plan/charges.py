@@ -2,8 +2,9 @@
 
 The arithmetic of each charge is :func:`routeplan.plan.core.charge_amounts` (the route
 format's step 3); this module only places its numbers, those of the batch sizing
-(:mod:`routeplan.plan.campaign`) and the route's names into :class:`StepPlan` and
-:class:`ChargePlan`, once.
+(:mod:`routeplan.plan.campaign`), the heat and gas of one batch
+(:func:`routeplan.plan.safety.batch_safety`) and the route's names into
+:class:`StepPlan` and :class:`ChargePlan`, once.
 """
 
 from __future__ import annotations

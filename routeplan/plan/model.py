@@ -270,9 +270,10 @@ class StepPlan:
     not_run : str or None
         Why the step does not run in this campaign (the stock of its product covers
         the demand, or it feeds only steps that do not run); None when it runs.  A step
-        that does not run has zero charges and zero batches.    safety : StepSafety or None
-        Heat and gas of one batch (:mod:`routeplan.plan.safety`), once assessed; its
-        ``thermal`` is None for a step that is not screened.
+        that does not run has zero charges and zero batches.
+    safety : StepSafety or None
+        Heat and gas of one batch (:func:`routeplan.plan.safety.batch_safety`), set when
+        the StepPlan is built; its ``thermal`` is None for a step that is not screened.
     """
 
     id: str

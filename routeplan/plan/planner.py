@@ -2,11 +2,12 @@
 
 In this order it calls the backward walk (:mod:`routeplan.plan.walk`, numbers from
 :mod:`routeplan.plan.core`), the batch sizing (:mod:`routeplan.plan.campaign`), the step
-plans (:mod:`routeplan.plan.charges`), the totals (:mod:`routeplan.plan.totals`), the
-metrics (:mod:`routeplan.plan.metrics`) and the stock comparison
-(:mod:`routeplan.plan.stock`), and constructs the Plan once, with every field final.  A
-new capability computed from a plan (safety, record, uncertainty, schedule, waste) is
-one more call here, on the draft, before the Plan is built.
+plans (:mod:`routeplan.plan.charges`, each with its heat and gas of one batch,
+:mod:`routeplan.plan.safety`), the totals (:mod:`routeplan.plan.totals`), the metrics
+(:mod:`routeplan.plan.metrics`) and the stock comparison (:mod:`routeplan.plan.stock`),
+and constructs the Plan once, with every field final.  A new capability computed from a
+plan (record, uncertainty, schedule, waste) is one more call here, on the draft, before
+the Plan is built.
 """
 
 from __future__ import annotations

@@ -5,7 +5,7 @@ A stock list names materials and the amount on the shelf, as a YAML mapping
 ``amount`` and ``unit``.  An amount is a mass, or a volume for a material with a
 density (or a solution).  A raw material's amount is as supplied; an intermediate's
 (the main product of an isolated step, left from an earlier campaign) is as isolated,
-at its assay, and the backward walk uses it first (:func:`routeplan.plan.walk.walk_steps`).
+at its assay, and the backward walk uses it first (:func:`routeplan.plan.walk.walk_route`).
 
 With raw materials only, every raw-material requirement of a plan is proportional to
 the target mass (the backward walk is linear), so the largest target the stock allows
