@@ -33,6 +33,7 @@ __all__ = [
     "compile_route",
     "with_yields",
     "molar_masses",
+    "gas_keys",
     "material_form",
     "target_amount",
     "limiting_amount",
@@ -177,6 +178,11 @@ def molar_masses(route: "Route") -> Mapping[str, float | None]:
                 lambda: {k: magnitude(m.molar_mass, "kg/mol") for k, m in route.materials.items()})
 
 
+def gas_keys(route: "Route") -> frozenset[str]:
+    """Keys of the route's materials that say ``phase: gas``, found once per route."""
+    return kept(route, "_gas_keys", lambda: frozenset(k for k, m in route.materials.items() if m.phase == "gas"))
+
+
 def compile_route(route: "Route", yields: str = "expected", quantity: Callable = _plain) -> CoreRoute:
     """The route as numbers for :func:`walk`.
 
@@ -218,6 +224,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
     maker = route.maker  # intermediate -> the step that makes it
     carried = {s.product: s.id for s in route.steps if not s.isolated}  # telescoped product -> its step
     case = str(yields)
+    gas = gas_keys(route)
     for sid in execution_order(route):
         step = route.step(sid)
         chosen = getattr(step.yield_, case)
@@ -241,7 +248,7 @@ def compile_route(route: "Route", yields: str = "expected", quantity: Callable =
         gases = []
         for t in eq.products:
             mat = materials[t.key]
-            if mat.phase == "gas" and mat.molar_mass is not None:
+            if t.key in gas and mat.molar_mass is not None:
                 gases.append((quantity(t.coefficient / nu_lim, "", ("gas_ratio", step, t.key)),
                               _molar_mass(mat, quantity)))
         steps.append(CoreStep(  # id, product, limiting, nu_ratio, yield_, product_form, limiting_form, charges, gases

@@ -29,13 +29,13 @@ assessment by qualified people.  The warnings say so in their own words.
 
 from __future__ import annotations
 
-import functools
 import re
 from typing import TYPE_CHECKING
 
 from routeplan.errors import Problem
 from routeplan.frozen import frozen
 from routeplan.plan.campaign import nominal_volumes_L
+from routeplan.plan.core import gas_keys
 from routeplan.route.checks_safety import DEFAULT_PRESSURE_BAR, DEFAULT_TEMPERATURE_C
 from routeplan.units import magnitude
 from routeplan.vocab import Severity
@@ -318,12 +318,6 @@ def _vent(hazards) -> tuple[str, ...]:
     return tuple(found)
 
 
-@functools.lru_cache(maxsize=16)
-def _gas_keys(route: "Route") -> frozenset[str]:
-    """Keys of the route's materials that say ``phase: gas`` (a Route hashes by identity)."""
-    return frozenset(k for k, m in route.materials.items() if m.phase == "gas")
-
-
 def _gases(gas: frozenset[str], terms) -> list[tuple[str, float]]:
     """(key, coefficient) of the gases (keys in ``gas``) among equation ``terms``, in their order."""
     return [(t.key, t.coefficient) for t in terms if t.key in gas]
@@ -367,7 +361,7 @@ def batch_safety(route: "Route", step_id: str, runs: bool, b: "BatchPlan | None"
     if not runs or b is None or b.batches == 0:
         return StepSafety(dosed=None if dosing is None else dosing.material, dosing_time_min=dosing_min, runs=False)
     n_lim_mol = b.per_batch(b.limiting_n_mol)
-    gas = _gas_keys(route)
+    gas = gas_keys(route)
     t = step.thermal
     evolving = _gases(gas, step.equation.products) if gas else ()
     T_K = p_Pa = None

@@ -40,6 +40,7 @@ from typing import TYPE_CHECKING, Mapping
 from routeplan.chemistry.formula import CACHE_SIZE
 from routeplan.errors import Problem
 from routeplan.frozen import frozen
+from routeplan.plan.core import gas_keys
 from routeplan.route.model import STREAMS
 from routeplan.units import magnitude
 
@@ -264,15 +265,6 @@ class Waste:
         return next(s for s in self.steps if s.step == step_id)
 
 
-def _is_gas(material: "Material") -> bool:
-    """True when the material says ``phase: gas``.
-
-    Hook for the phase extension (``materials.<key>.phase``): ``Material.phase`` is read
-    where the route model has it; a route model without it has no gas.
-    """
-    return getattr(material, "phase", None) == "gas"
-
-
 def by_products(route: "Route", step_id: str, product_mol: float) -> tuple[ByProduct, ...]:
     """By-products of a step formed with ``product_mol`` of its main product.
 
@@ -295,23 +287,23 @@ def by_products(route: "Route", step_id: str, product_mol: float) -> tuple[ByPro
 
 def _by_products(route: "Route", step, product_mol: float, memo: dict) -> tuple[ByProduct, ...]:
     """:func:`by_products` of route step ``step``; ``memo`` keeps, per material key, its
-    molar mass [g/mol] (None without one) and whether it is a gas, read once per plan."""
+    molar mass [g/mol] (None without one), read once per plan."""
     eq = step.equation
     main = step.product
     nu_p = eq.coefficient(main)
+    gas = gas_keys(route)
     out = []
     for t in eq.products:
         key = t.key
         if key == main:
             continue
-        known = memo.get(key)
-        if known is None:
-            mat = route.materials[key]
-            known = memo[key] = (magnitude(mat.molar_mass, "g/mol"), _is_gas(mat))
-        M_g, gas = known
+        if key in memo:
+            M_g = memo[key]
+        else:
+            M_g = memo[key] = magnitude(route.materials[key].molar_mass, "g/mol")
         n = t.coefficient / nu_p * product_mol
         mass = None if M_g is None else n * M_g / 1000.0  # g -> kg
-        out.append(ByProduct(key, n, mass, gas))
+        out.append(ByProduct(key, n, mass, key in gas))
     return tuple(out)
 
 
@@ -331,7 +323,7 @@ def step_waste(route: "Route", sp: "StepPlan", memo: dict | None = None) -> Step
     memo : dict, optional
         What is read of each material once per plan, shared by its steps
         (:func:`route_waste`): under ``"streams"``, key -> (stream, names a stream);
-        under ``"by_products"``, key -> (molar mass [g/mol], is a gas).
+        under ``"by_products"``, key -> molar mass [g/mol] (None without one).
 
     Returns
     -------
