@@ -390,15 +390,15 @@ def account_record(route: "Route", record: "Record", *, yields: str = "expected"
                    record_yields=RecordYields(record_yields), warnings=tuple(warnings), source=record.source)
 
 
-def _upstream(route: "Route", sid: str, seen: set[str]) -> None:
-    """Add ``sid`` and every step upstream of it to ``seen``."""
-    if sid in seen:
-        return
-    seen.add(sid)
-    for c in route.step(sid).charges:
-        maker = route.maker.get(c.material)
-        if maker is not None and maker != sid:
-            _upstream(route, maker, seen)
+def _with_upstream(route: "Route", step_ids) -> set[str]:
+    """``step_ids`` and every step upstream of them (:func:`routeplan.route.graph.steps_leading_to`)."""
+    from routeplan.route.graph import steps_leading_to
+
+    done: set[str] = set()
+    for sid in step_ids:
+        if sid not in done:
+            done |= steps_leading_to(route, sid)
+    return done
 
 
 def project(route: "Route", account: Account, nominal, *, yields: str = "expected",
@@ -424,9 +424,7 @@ def project(route: "Route", account: Account, nominal, *, yields: str = "expecte
     """
     from routeplan.route.graph import execution_order
 
-    done: set[str] = set()
-    for r in account.lots:
-        _upstream(route, r.step, done)
+    done = _with_upstream(route, (r.step for r in account.lots))
     arrived: dict[str, float] = {h.material: h.mol for h in account.in_hand}
     for key, n in (shelf_mol or {}).items():
         if route.maker.get(key) in done:
@@ -500,9 +498,7 @@ def record_plan(draft, account: Account, *, amount_kg: float, stock=None) -> Rec
             if route.is_intermediate(key):
                 shelf_mol[key] = float(mass.m_as("kg")) / _kg_per_mol(route, key)
     n = project(route, account, nominal, yields=draft.yield_basis, shelf_mol=shelf_mol)
-    done: set[str] = set()
-    for r in account.lots:
-        _upstream(route, r.step, done)
+    done = _with_upstream(route, (r.step for r in account.lots))
     projected = None if n is None else n * _kg_per_mol(route, route.target.material) / (1 + overage)
     gap = None if projected is None else amount_kg - projected
     remaining = tuple((sp.id, sp.batches) for sp in draft.steps if sp.runs and sp.batches > 0)
