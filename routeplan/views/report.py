@@ -15,7 +15,7 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 from routeplan.frozen import frozen
-from routeplan.views.display_units import SETS, DisplayUnits, plan_units
+from routeplan.views.display_units import KIND_OF_BASE, SETS, DisplayUnits, plan_units
 from routeplan.views.numbers import pct, share, sig
 from routeplan.views.tables import charge_label, fmt, raw_material_rows, step_charge_rows
 
@@ -256,7 +256,7 @@ def charge_derivations_view(plan: "Plan", units: DisplayUnits | None = None
     """
     from routeplan.views.derivation_text import step_explanations
 
-    shown, first = step_explanations(plan, units or plan_units(plan))
+    shown, first = step_explanations(plan, units)
     anchors = [f"d{si + 1}-{ci + 1}" for si, _sid, ci, _c, _ex in shown]
     home = {origin: f"{anchors[k]}-{li + 1}" for origin, (k, li) in first.items()}
     out: dict[str, tuple[list, dict]] = {}
@@ -334,10 +334,6 @@ def fact_table(rows, units: DisplayUnits | None = None) -> Table | None:
                  keys_by_row=tuple(r["key"] for r in rows))
 
 
-#: The kind of a column in mol, kg or L, shown in the plan's units.
-_KIND_OF_UNIT = {"mol": "amount", "kg": "mass", "L": "volume"}
-
-
 def columns_table(columns, rows, units: DisplayUnits | None = None) -> Table:
     """Rows of plain values as a table with the given :class:`~routeplan.views.tables.Column` s.
 
@@ -347,7 +343,7 @@ def columns_table(columns, rows, units: DisplayUnits | None = None) -> Table:
     :mod:`routeplan.views.numbers`; the numbers behind stay in mol, kg and L.
     """
     percent = {c.key for c in columns if c.unit == "-" and any(w in c.heading for w in ("yield", "assay", "share"))}
-    kinds = {c.key: _KIND_OF_UNIT[c.unit] for c in columns if units is not None and c.unit in _KIND_OF_UNIT}
+    kinds = {c.key: KIND_OF_BASE[c.unit] for c in columns if units is not None and c.unit in KIND_OF_BASE}
     out = []
     for r in rows:
         cells = []
