@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from routeplan.views.display_units import plan_units
 from routeplan.views.purchase_rows import not_bought_note
-from routeplan.views.sheet_rows import stock_not_needed
+from routeplan.views.sheet_rows import not_in_stock, stock_not_needed
 
 __all__ = ["stock_lines", "target_option"]
 
@@ -31,7 +31,7 @@ def stock_lines(plan, units=None) -> list[str]:
     lines = [""]
     tgt = plan.target_material
     in_stock = set(s.on_hand)
-    missing = [r.material for r in plan.raw_materials if r.material not in in_stock and r.bought]
+    missing = not_in_stock(plan)
     overage = plan.route.target.overage
     if s.max_target is None:
         lines.append("Stock: no raw material this plan needs is in the stock list.")
