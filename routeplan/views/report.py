@@ -16,7 +16,7 @@ from typing import TYPE_CHECKING, Any
 
 from routeplan.frozen import frozen
 from routeplan.views.display_units import KIND_OF_BASE, SETS, DisplayUnits, plan_units
-from routeplan.views.numbers import pct, share, sig
+from routeplan.views.numbers import pct, share
 from routeplan.views.tables import charge_label, fmt, raw_material_rows, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover

@@ -12,7 +12,7 @@ from typing import TYPE_CHECKING, Any
 
 from routeplan.views.display_units import plan_units
 from routeplan.views.numbers import money
-from routeplan.views.tables import Column, display_quantity
+from routeplan.views.tables import Column
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
