@@ -9,8 +9,6 @@ from routeplan.views.numbers import given_pct
 from routeplan.vocab import Severity
 
 
-
-
 def planned_warnings(route) -> tuple:
     """The route's warnings and those of its plan at the route's own target.
 
