@@ -137,13 +137,15 @@ def plan_to_dict(plan: "Plan") -> dict[str, Any]:
 
     out.update(time_waste_dict(plan))  # schedule, waste, cost of goods
     if plan.stock is not None:
+        from routeplan.views.sheet_rows import not_in_stock
+
         s = plan.stock
         out["stock"] = {
             "max_target_kg": magnitude(s.max_target, "kg"),
             "limited_by": s.limited_by,
             "to_buy": [{"material": k, "mass_kg": magnitude(m, "kg")} for k, m in s.to_buy],
             "on_hand": [{"material": k, "mass_kg": magnitude(m, "kg")} for k, m in s.on_hand.items()],
-            "not_in_stock": [r.material for r in plan.raw_materials if r.material not in s.on_hand and r.bought],
+            "not_in_stock": not_in_stock(plan),
             "intermediates": [
                 {"material": sp.product, "step": sp.id, "on_hand_kg": magnitude(s.on_hand[sp.product], "kg"),
                  "taken_kg": magnitude(sp.from_stock_mass, "kg"), "taken_mol": magnitude(sp.from_stock_mol, "mol"),

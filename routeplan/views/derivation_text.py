@@ -15,8 +15,9 @@ from functools import lru_cache
 from typing import TYPE_CHECKING, Any
 
 from routeplan.frozen import frozen
+from routeplan.views.display_units import KIND_OF_BASE, plan_units
 from routeplan.views.numbers import sig
-from routeplan.views.tables import column_unit, fmt, step_charge_rows
+from routeplan.views.tables import fmt
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -25,8 +26,6 @@ if TYPE_CHECKING:  # pragma: no cover
 __all__ = ["FactorView", "LineView", "Explanation", "line_views", "line_text", "charge_explanation",
            "charge_text", "target_text", "raw_text", "derivation_rows", "charge_derivations",
            "step_explanations", "sheet_blocks"]
-
-_KIND = {"mol": "amount", "kg": "mass", "L": "volume"}
 
 
 def _num(value: float) -> str:
@@ -174,46 +173,35 @@ def line_text(line: LineView) -> str:
     return " ".join(parts) + f" = {line.result} {line.unit} {line.what}"
 
 
-def _step_scales(plan: "Plan", step: str, units: "DisplayUnits | None" = None) -> dict[str, tuple[str, float]]:
-    """The unit each kind is shown in: base unit -> (shown unit, factor).
-
-    With ``units`` (the terminal's one set for the whole plan), its units; without, the
-    units the report's table of ``step`` picks for its own columns.
-    """
-    if units is not None:
-        return {base: (units.unit(kind).symbol, units.unit(kind).factor) for base, kind in _KIND.items()}
-    rows = step_charge_rows(plan.step(step))
-    out = {}
-    for unit, col in (("mol", "mol"), ("kg", "mass_kg"), ("L", "volume_L")):
-        out[unit] = column_unit([r[col] for r in rows], _KIND[unit])
-    return out
+def _scales(units: "DisplayUnits") -> dict[str, tuple[str, float]]:
+    """The unit each kind is shown in: base unit -> (shown unit, factor), by ``units``."""
+    return {base: (units.unit(kind).symbol, units.unit(kind).factor) for base, kind in KIND_OF_BASE.items()}
 
 
 def charge_explanation(plan: "Plan", step: str, index: int, *, within_step: bool = False,
                        units: "DisplayUnits | None" = None) -> Explanation:
     """How the plan gets charge ``index`` (0-based) of ``step``: moles, mass and volume.
 
-    The charge's own results are shown in the units of the plan's table of that step, so
-    that they read digit for digit as there: with ``units`` the terminal's units and
-    numbers (:mod:`routeplan.views.numbers`), as ``plan`` prints them; without, the
-    report table's.  With ``within_step``, the lines stop at the amounts another step
+    The charge's own results are shown in ``units`` (default
+    :func:`~routeplan.views.display_units.plan_units`) by the rule of
+    :mod:`routeplan.views.numbers`, so that they read digit for digit as the plan's
+    tables print them.  With ``within_step``, the lines stop at the amounts another step
     derives (:meth:`routeplan.plan.derivation.Derivation.cut`).
     """
-    number = fmt if units is None else sig
     d = plan.derivation
     keys = d.charge_keys(step, index)
     origins, lines = d.cut(*keys, step=step if within_step else None)
     c = plan.step(step).charges[index]
-    scales = _step_scales(plan, step, units)
+    scales = _scales(units or plan_units(plan))
     own = {d.named[k]: k[3] for k in keys}  # a carried line's "V" is the mixture carried in
     where = {o: i for i, o in enumerate(origins)}
     shown = {i: scales[line.unit] for i, line in enumerate(lines) if origins[i] in own and line.unit in scales}
-    views = line_views(lines, origins, shown, {where[o]: x for o, x in own.items()}, number)
+    views = line_views(lines, origins, shown, {where[o]: x for o, x in own.items()}, sig)
     amounts = []
     for kind, unit, value in (("n", "mol", c.n_mol), ("m", "kg", c.m_kg), ("V", "L", c.V_L)):
         if value is not None:
             name, factor = scales[unit]
-            amounts.append((kind, value, number(value / factor), name))
+            amounts.append((kind, value, sig(value / factor), name))
     subject = f"{c.material} charged to {step}"
     notes = ()
     if c.carried_from is not None:
@@ -225,7 +213,7 @@ def charge_explanation(plan: "Plan", step: str, index: int, *, within_step: bool
 
 def charge_text(plan: "Plan", step: str, material: str, units: "DisplayUnits | None" = None) -> list[str]:
     """The derivation of a charge, one line per chain; its last lines are the plan's numbers
-    (in ``units``, the terminal's, where given)."""
+    (in ``units``, default the plan's own)."""
     from routeplan.plan.derivation import find_charge
 
     return charge_explanation(plan, step, find_charge(plan.route, step, material), units=units).text()
@@ -239,19 +227,16 @@ def target_text(plan: "Plan") -> list[str]:
 
 def raw_text(plan: "Plan", material: str, units: "DisplayUnits | None" = None) -> list[str]:
     """The derivation of a raw material's mass over the campaign, every charge that adds to
-    it; its total in ``units`` (the terminal's, where given) as the plan prints it."""
+    it; its total in ``units`` (default the plan's own) as the plan prints it."""
     from routeplan.plan.derivation import find_raw
 
     find_raw(plan.route, material, [r.material for r in plan.raw_materials])
     lines = plan.derivation.chain(("raw", material, "m"))
-    if units is None:
-        scale, number = column_unit([r.m_kg for r in plan.raw_materials], "mass"), fmt
-    else:
-        scale, number = (units.mass.symbol, units.mass.factor), sig
+    scale = _scales(units or plan_units(plan))["kg"]
     total = next(r for r in plan.raw_materials if r.material == material).m_kg
     return Explanation(f"{material} over the campaign: how the plan gets its mass",
-                       line_views(lines, scales={len(lines) - 1: scale}, number=number),
-                       (("m", total, number(total / scale[1]), scale[0]),), f"{material} over the campaign").text()
+                       line_views(lines, scales={len(lines) - 1: scale}, number=sig),
+                       (("m", total, sig(total / scale[1]), scale[0]),), f"{material} over the campaign").text()
 
 
 def derivation_rows(lines) -> list[dict[str, Any]]:
@@ -277,7 +262,8 @@ def charge_derivations(plan: "Plan", step: str) -> list[list[dict[str, Any]]]:
 def step_explanations(plan: "Plan", units: "DisplayUnits | None" = None):
     """Every charge of every running step explained within its step, and where each line is first shown.
 
-    ``units``: the plan's units, as the report's charge tables (see :func:`charge_explanation`).
+    ``units``: the plan's units, as its charge tables (see :func:`charge_explanation`;
+    default :func:`~routeplan.views.display_units.plan_units`).
 
     Returns
     -------
@@ -291,6 +277,7 @@ def step_explanations(plan: "Plan", units: "DisplayUnits | None" = None):
     shown, first = [], {}
     if plan.derivation is None:
         return shown, first
+    units = units or plan_units(plan)
     for si, sp in enumerate(plan.steps):
         if not sp.runs:
             continue

@@ -31,8 +31,8 @@ from routeplan.frozen import frozen
 
 from routeplan.views.numbers import sig
 
-__all__ = ["Unit", "DisplayUnits", "UNITS", "SETS", "AUTO", "LAB_BELOW_KG", "PLANT_FROM_KG", "parse_units",
-           "scale_set", "choose_units", "plan_units", "units_help"]
+__all__ = ["Unit", "DisplayUnits", "UNITS", "KIND_OF_BASE", "SETS", "AUTO", "LAB_BELOW_KG", "PLANT_FROM_KG",
+           "parse_units", "scale_set", "choose_units", "plan_units", "units_help"]
 
 
 @frozen
@@ -61,6 +61,9 @@ UNITS: dict[str, tuple[Unit, ...]] = {
     "mass": (Unit("mg", "mass", 1e-6), Unit("g", "mass", 1e-3), Unit("kg", "mass", 1.0), Unit("t", "mass", 1e3)),
     "volume": (Unit("mL", "volume", 1e-3), Unit("L", "volume", 1.0), Unit("m³", "volume", 1e3)),
 }
+
+#: The kind of each base unit a plan keeps its numbers in (mol, kg, L).
+KIND_OF_BASE: dict[str, str] = {"mol": "amount", "kg": "mass", "L": "volume"}
 
 _BY_NAME = {u.symbol.lower(): u for units in UNITS.values() for u in units}
 _BY_NAME["m3"] = _BY_NAME["m³"]

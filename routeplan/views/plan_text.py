@@ -14,7 +14,7 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING
 
-from routeplan.views.display_units import DisplayUnits, plan_units
+from routeplan.views.display_units import KIND_OF_BASE, DisplayUnits, plan_units
 from routeplan.views.numbers import money, pct, share
 from routeplan.views.tables import charge_label, raw_material_rows, step_charge_rows
 from routeplan.views.text_blocks import Block, Col, Grid, Para, Pre, blank, join_words, para_of_line
@@ -23,8 +23,8 @@ if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
     from routeplan.route.model import Route
 
-__all__ = ["plan_blocks", "caution_block", "header_text", "step_title", "batch_notes", "yield_blocks",
-           "timeline_columns", "TIMELINE_COLUMNS"]
+__all__ = ["plan_blocks", "caution_block", "header_text", "step_title", "charge_columns", "charge_cell",
+           "CHARGE_UNITS", "CHARGE_TEXT_COLUMNS", "batch_notes", "yield_blocks", "timeline_columns", "TIMELINE_COLUMNS"]
 
 #: Columns of the schedule's timeline at least, and at most [-].
 TIMELINE_COLUMNS = (24, 96)
@@ -53,22 +53,48 @@ def step_title(sp: "StepPlan") -> str:
     return text + ("   telescoped: the product goes on in solution" if not sp.isolated else "")
 
 
+#: The base unit of each column of a step's charge table (keys of
+#: :func:`~routeplan.views.tables.step_charge_rows`; "" for none, "-" for a pure number).
+CHARGE_UNITS = {"order": "", "material": "", "role": "", "equiv": "-", "mol": "mol", "mass_kg": "kg",
+                "volume_L": "L", "batch_mass_kg": "kg", "batch_volume_L": "L"}
+
+#: The text columns of a step's charge table; the others hold numbers.
+CHARGE_TEXT_COLUMNS = ("material", "role")
+
+
+def charge_columns(sp: "StepPlan", u: DisplayUnits) -> tuple[tuple[str, str], ...]:
+    """The columns of a step's charge table, the terminal's and the report's: (row key of
+    :func:`~routeplan.views.tables.step_charge_rows`, heading in ``u``); the per-batch
+    columns only for a step of several batches."""
+    cols = [("order", "#"), ("material", "material"), ("role", "role"), ("equiv", "equiv"),
+            ("mol", u.heading("n", "amount")), ("mass_kg", u.heading("m", "mass")),
+            ("volume_L", u.heading("V", "volume"))]
+    if sp.batches > 1:
+        cols += [("batch_mass_kg", u.heading("m/batch", "mass")), ("batch_volume_L", u.heading("V/batch", "volume"))]
+    return tuple(cols)
+
+
+def charge_cell(row: dict, key: str, u: DisplayUnits, maker) -> str:
+    """The text of column ``key`` of a charge row: amounts, masses and volumes [mol, kg,
+    L] in ``u``, equivalents [-] to 3 significant figures; ``maker`` as
+    :func:`~routeplan.views.tables.charge_label`."""
+    if key == "order":
+        return str(row["order"])
+    if key == "material":
+        return charge_label(row, maker)
+    if key == "role":
+        return row["role"]
+    if key == "equiv":
+        return share(row["equiv"])
+    return u.number(row[key], KIND_OF_BASE[CHARGE_UNITS[key]])
+
+
 def _step_grid(sp: "StepPlan", plan: "Plan", u: DisplayUnits) -> Grid:
-    rows = step_charge_rows(sp)
-    per_batch = sp.batches > 1
-    cols = [Col("#", "right"), Col("material", wrap=True), Col("role"), Col("equiv", "right"),
-            Col(u.heading("n", "amount"), "right"), Col(u.heading("m", "mass"), "right"),
-            Col(u.heading("V", "volume"), "right")]
-    if per_batch:
-        cols += [Col(u.heading("m/batch", "mass"), "right"), Col(u.heading("V/batch", "volume"), "right")]
-    out = []
-    for r in rows:
-        cells = [str(r["order"]), charge_label(r, plan.route.maker), r["role"], share(r["equiv"]),
-                 u.number(r["mol"], "amount"), u.number(r["mass_kg"], "mass"), u.number(r["volume_L"], "volume")]
-        if per_batch:
-            cells += [u.number(r["batch_mass_kg"], "mass"), u.number(r["batch_volume_L"], "volume")]
-        out.append(tuple(cells))
-    return Grid(tuple(cols), tuple(out))
+    columns = charge_columns(sp, u)
+    cols = tuple(Col(head, "left" if key in CHARGE_TEXT_COLUMNS else "right", wrap=key == "material")
+                 for key, head in columns)
+    maker = plan.route.maker
+    return Grid(cols, tuple(tuple(charge_cell(r, key, u, maker) for key, _h in columns) for r in step_charge_rows(sp)))
 
 
 def _legend(plan: "Plan") -> str:

@@ -18,7 +18,7 @@ from routeplan.views.tables import Column
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
 
-__all__ = ["PURCHASE_COLUMNS", "STOCK_PURCHASE_COLUMNS", "purchase_columns", "purchase_rows", "not_bought",
+__all__ = ["PURCHASE_COLUMNS", "STOCK_PURCHASE_COLUMNS", "purchase_columns", "purchase_rows",
            "not_bought_note", "pack_text"]
 
 #: Columns of the purchase list.
@@ -81,11 +81,6 @@ def purchase_rows(plan: "Plan") -> list[dict[str, Any]]:
         "packs": r.packs,
         "ordered": pack_text(r.ordered),
     } for r in plan.raw_materials if r.bought]
-
-
-def not_bought(plan: "Plan") -> list[str]:
-    """Keys of the raw materials the route marks as not bought, in order of first use."""
-    return [r.material for r in plan.raw_materials if not r.bought]
 
 
 def not_bought_note(plan: "Plan") -> str:

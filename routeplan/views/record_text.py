@@ -69,23 +69,17 @@ def yields_used_text(plan: "Plan") -> str:
     return f"remaining batches planned at the route's {plan.yield_basis} yields"
 
 
-def _kg(value: float, units: "DisplayUnits | None" = None) -> str:
-    return display_quantity(value, "mass", units=units)
-
-
 def record_lines(plan: "Plan", units: "DisplayUnits | None" = None) -> list[str]:
     """Sentences about the record: lots, in hand, projection, gap and what closes it.
 
-    ``units``: the plan's units (masses and amounts in them); else each in the unit
-    that suits it.
+    ``units``: the plan's units (masses and amounts in them); default
+    :func:`~routeplan.views.display_units.plan_units`.
     """
+    from routeplan.views.display_units import plan_units
+
     rec = plan.record
-
-    def kg(value: float) -> str:
-        return _kg(value, units)
-
-    def mol(value: float) -> str:
-        return units.amount_text(value) if units is not None else f"{value:.4g} mol"
+    units = units or plan_units(plan)
+    kg, mol = units.mass_text, units.amount_text
 
     lines = ["", f"Campaign record{f' ({rec.source})' if rec.source else ''}: {len(rec.lots)} "
              f"lot{'s' if len(rec.lots) != 1 else ''}; this plan is the rest of the campaign, "
@@ -137,7 +131,7 @@ def lot_prefill(plan: "Plan", material: str) -> dict[str, Any] | None:
         return None
     names = ", ".join(h.lot_names) if h.lot_names else ", ".join(str(b) for b in h.lots)
     word = "lots" if h.lot_names else ("batches" if len(h.lots) != 1 else "batch")
-    return {"lot": f"in hand: {h.step} {word} {names}, {_kg(h.mass_kg)}", "assay": h.lot_assay}
+    return {"lot": f"in hand: {h.step} {word} {names}, {display_quantity(h.mass_kg, 'mass')}", "assay": h.lot_assay}
 
 
 #: Columns of the lots table on the workbook's Summary sheet.

@@ -15,9 +15,9 @@ from __future__ import annotations
 from typing import TYPE_CHECKING, Any
 
 from routeplan.frozen import frozen
-from routeplan.views.display_units import SETS, DisplayUnits, plan_units
-from routeplan.views.numbers import pct, share, sig
-from routeplan.views.tables import charge_label, fmt, raw_material_rows, step_charge_rows
+from routeplan.views.display_units import KIND_OF_BASE, DisplayUnits, plan_units
+from routeplan.views.numbers import pct
+from routeplan.views.tables import fmt, raw_material_rows, step_charge_rows
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan, StepPlan
@@ -203,41 +203,30 @@ class Report:
     units: DisplayUnits | None = None
 
 
-def charge_table(sp: "StepPlan", route, links: dict[tuple[int, str], str] | None = None,
-                 units: DisplayUnits | None = None) -> Table:
+def charge_table(sp: "StepPlan", route, units: DisplayUnits, links: dict[tuple[int, str], str] | None = None
+                 ) -> Table:
     """The charge table of one step: the terminal's rows, columns and units.
 
-    Columns: #, material, role, equiv [-], amount, mass and volume (in ``units``, the
-    plan's one set; default the set for a kilo-lab campaign), and per batch when the step
-    has several.  The numbers behind the cells are in mol, kg and L.  ``links`` maps
+    Columns (:func:`~routeplan.views.plan_text.charge_columns`): #, material, role, equiv
+    [-], amount, mass and volume (in ``units``, the plan's one set), and per batch when
+    the step has several.  The numbers behind the cells are in mol, kg and L.  ``links`` maps
     (row, column key) to the anchor of the line deriving that number.
     """
-    u = units or SETS["kilo"]
+    from routeplan.views.plan_text import CHARGE_TEXT_COLUMNS, CHARGE_UNITS, charge_cell, charge_columns
+
     links = links or {}
-    rows = step_charge_rows(sp)
-    per_batch = sp.batches > 1
-    keys = ["order", "material", "role", "equiv", "mol", "mass_kg", "volume_L"]
-    heads = ["#", "material", "role", "equiv", u.heading("n", "amount"), u.heading("m", "mass"),
-             u.heading("V", "volume")]
-    base = ["", "", "", "-", "mol", "kg", "L"]
-    if per_batch:
-        keys += ["batch_mass_kg", "batch_volume_L"]
-        heads += [u.heading("m/batch", "mass"), u.heading("V/batch", "volume")]
-        base += ["kg", "L"]
+    columns = charge_columns(sp, units)
 
-    def num(value: float | None, kind: str, link: str | None = None) -> Cell:
-        return Cell(u.number(value, kind), value, True, None if value is None else link)
+    def cell(i: int, r: dict, key: str) -> Cell:
+        text = charge_cell(r, key, units, route.maker)
+        if key in CHARGE_TEXT_COLUMNS:
+            return Cell(text)
+        value = r[key]
+        return Cell(text, value, True, None if value is None else links.get((i, key)))
 
-    out = []
-    for i, r in enumerate(rows):
-        cells = [Cell(str(r["order"]), r["order"], True), Cell(charge_label(r, route.maker)), Cell(r["role"]),
-                 Cell(share(r["equiv"]), r["equiv"], True), num(r["mol"], "amount", links.get((i, "mol"))),
-                 num(r["mass_kg"], "mass", links.get((i, "mass_kg"))),
-                 num(r["volume_L"], "volume", links.get((i, "volume_L")))]
-        if per_batch:
-            cells += [num(r["batch_mass_kg"], "mass"), num(r["batch_volume_L"], "volume")]
-        out.append(tuple(cells))
-    return Table(tuple(keys), tuple(heads), tuple(out), tuple(base))
+    out = tuple(tuple(cell(i, r, key) for key, _h in columns) for i, r in enumerate(step_charge_rows(sp)))
+    return Table(tuple(k for k, _h in columns), tuple(h for _k, h in columns), out,
+                 tuple(CHARGE_UNITS[k] for k, _h in columns))
 
 
 #: The charge table's column of each of a charge's numbers.
@@ -256,7 +245,7 @@ def charge_derivations_view(plan: "Plan", units: DisplayUnits | None = None
     """
     from routeplan.views.derivation_text import step_explanations
 
-    shown, first = step_explanations(plan, units or plan_units(plan))
+    shown, first = step_explanations(plan, units)
     anchors = [f"d{si + 1}-{ci + 1}" for si, _sid, ci, _c, _ex in shown]
     home = {origin: f"{anchors[k]}-{li + 1}" for origin, (k, li) in first.items()}
     out: dict[str, tuple[list, dict]] = {}
@@ -312,12 +301,12 @@ _HEADINGS = {"uncertainty": "Yield uncertainty", "safety": "Safety screening", "
              "schedule": "Schedule", "waste": "Waste", "cost_of_goods": "Cost of goods"}
 
 
-def fact_table(rows, units: DisplayUnits | None = None) -> Table | None:
+def fact_table(rows, units: DisplayUnits) -> Table | None:
     """Rows of ``key, item, value, unit, kind, note`` (the sheets' fact rows) as a table;
-    a mass [kg] is shown in ``units`` (default the set for a kilo-lab campaign)."""
+    a mass [kg] is shown in ``units`` (the plan's)."""
     if not rows:
         return None
-    u = units or SETS["kilo"]
+    u = units
     out = []
     for r in rows:
         v, kind = r["value"], r.get("kind", "text")
@@ -334,10 +323,6 @@ def fact_table(rows, units: DisplayUnits | None = None) -> Table | None:
                  keys_by_row=tuple(r["key"] for r in rows))
 
 
-#: The kind of a column in mol, kg or L, shown in the plan's units.
-_KIND_OF_UNIT = {"mol": "amount", "kg": "mass", "L": "volume"}
-
-
 def columns_table(columns, rows, units: DisplayUnits | None = None) -> Table:
     """Rows of plain values as a table with the given :class:`~routeplan.views.tables.Column` s.
 
@@ -347,7 +332,7 @@ def columns_table(columns, rows, units: DisplayUnits | None = None) -> Table:
     :mod:`routeplan.views.numbers`; the numbers behind stay in mol, kg and L.
     """
     percent = {c.key for c in columns if c.unit == "-" and any(w in c.heading for w in ("yield", "assay", "share"))}
-    kinds = {c.key: _KIND_OF_UNIT[c.unit] for c in columns if units is not None and c.unit in _KIND_OF_UNIT}
+    kinds = {c.key: KIND_OF_BASE[c.unit] for c in columns if units is not None and c.unit in KIND_OF_BASE}
     out = []
     for r in rows:
         cells = []
@@ -589,7 +574,7 @@ def plan_report(plan: "Plan", units: DisplayUnits | None = None) -> Report:
         derivations, links = derived.get(sp.id, ((), {}))
         steps.append(StepSection(
             id=sp.id, title=title, equation=sp.equation, yield_=sp.yield_, telescoped=not sp.isolated,
-            charges=charge_table(sp, route, links, u) if sp.runs else None, facts=_step_facts(plan, sp, u),
+            charges=charge_table(sp, route, u, links) if sp.runs else None, facts=_step_facts(plan, sp, u),
             batches=sp.batches, fill=None if sp.batch is None else sp.batch.fill_fraction, extra=extra,
             derivations=derivations))
     stock = ()

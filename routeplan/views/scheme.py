@@ -167,11 +167,6 @@ def _yield_text(y: float) -> str:
     return f"yield {100 * y:.3g} %"
 
 
-def _quantity_text(kg: float, units: "DisplayUnits") -> str:
-    """A mass [kg] in the plan's unit of mass (``units``), as its tables show it."""
-    return units.mass_text(kg)
-
-
 def _node_size(lines, structure: bool) -> tuple[float, float]:
     w = max(text_width(t) for _k, t in lines) + 2 * _PAD
     h = len(lines) * _LINE_PX + 2 * _PAD - 4
@@ -190,9 +185,9 @@ def _material_lines(plan: "Plan", key: str, units: "DisplayUnits", *, made_kg: f
     if mat.formula:
         lines.append(("formula", _clip(mat.formula)))
     if key == plan.target_material:
-        lines.append(("mark", _clip(f"target · {_quantity_text(plan.target_mass.m_as('kg'), units)}")))
+        lines.append(("mark", _clip(f"target · {units.mass_text(plan.target_mass.m_as('kg'))}")))
     elif made_kg is not None:
-        lines.append(("text", _clip(f"made {_quantity_text(made_kg, units)}")))
+        lines.append(("text", _clip(f"made {units.mass_text(made_kg)}")))
     return lines
 
 

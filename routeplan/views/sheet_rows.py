@@ -37,6 +37,7 @@ __all__ = [
     "stock_rows",
     "stock_summary_rows",
     "from_stock_text",
+    "not_in_stock",
     "stock_not_needed",
 ]
 
@@ -511,8 +512,7 @@ def stock_summary_rows(plan: "Plan") -> list[dict[str, Any]]:
     s = plan.stock
     if s is None:
         return []
-    needed = [r.material for r in plan.raw_materials]
-    missing = [r.material for r in plan.raw_materials if r.material not in s.on_hand and r.bought]
+    missing = not_in_stock(plan)
     unused, idle = stock_not_needed(plan)
     rows = []
     if s.source:
@@ -555,6 +555,12 @@ def from_stock_text(sp: "StepPlan") -> str:
     if sp.not_run is None:
         return f"step {sp.id} makes the rest"
     return f"step {sp.id} does not run: {sp.not_run}"
+
+
+def not_in_stock(plan: "Plan") -> list[str]:
+    """Raw materials to buy in full, in order of first use: bought (not ``bought: false``)
+    and not in the stock list."""
+    return [r.material for r in plan.raw_materials if r.material not in plan.stock.on_hand and r.bought]
 
 
 def stock_not_needed(plan: "Plan") -> tuple[list[str], list[str]]:

@@ -2,37 +2,36 @@
 
 from __future__ import annotations
 
+from routeplan.views.display_units import plan_units
 from routeplan.views.purchase_rows import not_bought_note
-from routeplan.views.sheet_rows import stock_not_needed
-from routeplan.views.tables import display_quantity
+from routeplan.views.sheet_rows import not_in_stock, stock_not_needed
 
 __all__ = ["stock_lines", "target_option"]
 
 
-def target_option(kg: float, units=None) -> str:
-    """A mass [kg] as ``--target`` takes it: the number without digit groups, its unit.
+def target_option(kg: float, units) -> str:
+    """A mass [kg] as ``--target`` takes it, in ``units``' unit of mass (a
+    :class:`~routeplan.views.display_units.DisplayUnits`): the number without digit groups, its unit.
 
     >>> from routeplan.views.display_units import SETS
-    >>> target_option(13194.6, SETS["kilo"]), target_option(0.45)
-    ('13190 kg', '450 g')
+    >>> target_option(13194.6, SETS["kilo"])
+    '13190 kg'
     """
-    if units is None:
-        return display_quantity(kg, "mass")
     return f"{units.number(kg, 'mass').replace(' ', '')} {units.mass.symbol}"
 
 
 def stock_lines(plan, units=None) -> list[str]:
     """Human sentences about the plan's stock comparison; masses in ``units`` (the plan's
-    :class:`~routeplan.views.display_units.DisplayUnits`) where given."""
+    :class:`~routeplan.views.display_units.DisplayUnits`, default
+    :func:`~routeplan.views.display_units.plan_units`)."""
     s = plan.stock
-
-    def mass(kg: float) -> str:
-        return display_quantity(kg, "mass", units=units)
+    units = units or plan_units(plan)
+    mass = units.mass_text
 
     lines = [""]
     tgt = plan.target_material
     in_stock = set(s.on_hand)
-    missing = [r.material for r in plan.raw_materials if r.material not in in_stock and r.bought]
+    missing = not_in_stock(plan)
     overage = plan.route.target.overage
     if s.max_target is None:
         lines.append("Stock: no raw material this plan needs is in the stock list.")

@@ -139,12 +139,12 @@ _DISPLAY = {
 }
 
 
-def display_quantity(value: float | None, kind: str, *, digits: int = 4, units: "DisplayUnits | None" = None) -> str:
+def display_quantity(value: float | None, kind: str, *, units: "DisplayUnits | None" = None) -> str:
     """A readable string for ``value`` given in kg, L or mol: ``'26.3 kg'``, ``'450 g'``.
 
     With ``units`` (the plan's units, :mod:`routeplan.views.display_units`) the value is
     written in the unit of its kind there, by the rule of :mod:`routeplan.views.numbers`;
-    without, in the unit that suits the value alone.
+    without, in the unit that suits the value alone, to 4 significant figures.
 
     Parameters
     ----------
@@ -152,8 +152,6 @@ def display_quantity(value: float | None, kind: str, *, digits: int = 4, units: 
         Mass [kg], volume [L] or amount [mol]; None gives an empty string.
     kind : str
         ``"mass"``, ``"volume"`` or ``"amount"``.
-    digits : int
-        Significant figures (without ``units``).
     units : DisplayUnits, optional
         One unit per kind for the whole plan.
 
@@ -169,7 +167,7 @@ def display_quantity(value: float | None, kind: str, *, digits: int = 4, units: 
     if units is not None:
         return units.text(value, kind)
     name, factor = column_unit([value], kind)
-    return f"{value / factor:.{digits}g} {name}"
+    return f"{value / factor:.4g} {name}"
 
 
 def column_unit(values, kind: str) -> tuple[str, float]:

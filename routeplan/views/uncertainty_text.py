@@ -9,8 +9,8 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
+from routeplan.views.display_units import plan_units
 from routeplan.views.numbers import grouped, pct
-from routeplan.views.tables import display_quantity
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -85,17 +85,16 @@ def contribution_rows(u: "Uncertainty") -> list[dict[str, Any]]:
 def uncertainty_lines(plan: "Plan", units: "DisplayUnits | None" = None) -> list[str]:
     """The uncertainty as plain lines for the terminal (empty without ``plan.uncertainty``).
 
-    ``units``: the plan's units (every mass in its unit of mass); else each mass in the
-    unit that suits it.  Percentages to 3 significant figures.
+    ``units``: the plan's units (every mass in its unit of mass); default
+    :func:`~routeplan.views.display_units.plan_units`.  Percentages to 3 significant figures.
     """
     from routeplan.views.stock_text import target_option
 
     u = plan.uncertainty
     if u is None:
         return []
-
-    def kg(value: float) -> str:
-        return display_quantity(value, "mass", units=units)
+    units = units or plan_units(plan)
+    kg = units.mass_text
 
     req = kg(u.required_kg)
     head = (f"Yield uncertainty ({u.distribution}, {grouped(u.draws)} draws, seed {u.seed}), "

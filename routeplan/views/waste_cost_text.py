@@ -10,8 +10,9 @@ from __future__ import annotations
 
 from typing import TYPE_CHECKING, Any
 
+from routeplan.views.display_units import plan_units
 from routeplan.views.numbers import money
-from routeplan.views.tables import Column, display_quantity
+from routeplan.views.tables import Column
 
 if TYPE_CHECKING:  # pragma: no cover
     from routeplan.plan.model import Plan
@@ -126,16 +127,14 @@ def waste_cost_facts(plan: "Plan") -> list[dict[str, Any]]:
 def waste_lines(plan: "Plan", units: "DisplayUnits | None" = None) -> list[str]:
     """The waste of the campaign as plain text lines (no markup).
 
-    ``units``: the plan's units (every mass in its unit of mass); else each mass in the
-    unit that suits it.
+    ``units``: the plan's units (every mass in its unit of mass); default
+    :func:`~routeplan.views.display_units.plan_units`.
     """
     w = plan.waste
     if w is None:
         return []
     t = w.total
-
-    def kg(x: float) -> str:
-        return display_quantity(x, "mass", units=units)
+    kg = (units or plan_units(plan)).mass_text
 
     lines = ["Waste (whole campaign; everything charged less the product taken on)",
              f"  aqueous {kg(t.aqueous_kg)} · organic {kg(t.organic_kg)} · halogenated {kg(t.halogenated_kg)}"
