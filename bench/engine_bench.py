@@ -67,8 +67,6 @@ def cold_caches() -> None:
     registry, and collect the garbage, so that a collector pass owed to earlier work (the
     plans timed before) is not charged to the timed load: with it the load ratio read
     3.1x after the plans and 2.4x before them, for the same code."""
-    import gc
-
     from routeplan.units import registry
 
     for name, module in list(sys.modules.items()):

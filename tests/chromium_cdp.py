@@ -25,6 +25,15 @@ from pathlib import Path
 CHROMIUM = shutil.which("chromium") or (
     "/usr/bin/chromium" if os.access("/usr/bin/chromium", os.X_OK) else None)
 
+
+def need_chromium() -> None:
+    """Skip (fail under CI) when Chromium is not installed."""
+    if CHROMIUM is None:
+        from conftest import missing_tool
+
+        missing_tool("Chromium is not installed: the report tests open the page in it "
+                     "(.ci/run installs Debian's chromium)")
+
 FLAGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
          "--disable-background-networking", "--disable-component-update", "--disable-sync",
          "--disable-default-apps", "--disable-extensions", "--mute-audio", "--hide-scrollbars",

@@ -6,6 +6,8 @@ its text and expects a message at the line that holds a marker.
 
 from __future__ import annotations
 
+import re
+
 
 def change(text: str, edits) -> str:
     """Apply (old, new) replacements; each ``old`` must occur (once, unless given a count)."""
@@ -24,3 +26,10 @@ def line_of(text: str, marker) -> int:
     ``offset`` lines after it when ``marker`` is ``(text, offset)``."""
     marker, offset = marker if isinstance(marker, tuple) else (marker, 0)
     return next(i for i, t in enumerate(text.splitlines(), 1) if marker in t) + offset
+
+
+def problem_lines(stderr: str, severity: str, path, line: int, key: str | None) -> list[str]:
+    """Lines of ``stderr`` reporting a ``severity`` (``"error"``, ``"warning"``) at
+    ``path:line:column:`` for the key path ``key`` (any key, or none, when ``key`` is None)."""
+    pattern = re.escape(f"{severity}: {path}:{line}:") + r"\d+: " + (re.escape(key) + ": " if key else "")
+    return [t for t in stderr.splitlines() if re.match(pattern, t)]

@@ -9,8 +9,6 @@ from routeplan.views.numbers import given_pct
 from routeplan.vocab import Severity
 
 
-
-
 def planned_warnings(route) -> tuple:
     """The route's warnings and those of its plan at the route's own target.
 
@@ -37,15 +35,15 @@ def planned_warnings(route) -> tuple:
     return tuple(plan_route(route).warnings)
 
 
-def summary(route, n_warnings: int | None = None, strict: bool = False) -> list[str]:
+def summary(route, count: int, strict: bool = False) -> list[str]:
     """Lines that summarise a checked route: steps in execution order, materials, sequence.
 
     Parameters
     ----------
     route : Route
         A loaded route.
-    n_warnings : int, optional
-        Warnings found (route and plan); default the route's own.
+    count : int
+        Warnings found (route and plan).
     strict : bool
         Checked with ``--strict``: a route with warnings is then not called valid.
 
@@ -57,7 +55,6 @@ def summary(route, n_warnings: int | None = None, strict: bool = False) -> list[
 
     t = route.target
     amount = t.amount.to("kg").magnitude
-    count = len(route.warnings) if n_warnings is None else n_warnings
     verdict = "not valid under --strict" if strict and count else "valid"
     lines = [f"{route.source.path if route.source else '<route>'}: {verdict}: {route.name}",
              f"  target: {amount:g} kg of {t.material}" + (f" (+{given_pct(t.overage)} overage)" if t.overage else "")]

@@ -80,6 +80,22 @@ def units_option(text: str | None) -> str | None:
     return text
 
 
+def target_option(target: str | None):
+    """``--target`` as a mass (a pint Quantity [kg or any mass unit]), or None when not given.
+
+    Raises
+    ------
+    QuantityError
+        A value that is not a mass with its unit (located at ``--target``).
+    """
+    if target is None:
+        return None
+    from routeplan.errors import Location
+    from routeplan.units import parse_quantity
+
+    return parse_quantity(target, "mass", where=Location(key="--target"))
+
+
 def record_yields_option(record_file: str | None, record_yields: str) -> None:
     """Refuse ``--record-yields`` other than ``expected`` without ``--record`` (a usage error)."""
     if record_yields != "expected" and record_file is None:

@@ -5,7 +5,7 @@ from __future__ import annotations
 import click
 
 from routeplan.commands.common import (UNITS_HELP, check_output_paths, confidence_option, echo_caution, echo_warnings,
-                                       finish_outputs, output_set, units_option)
+                                       finish_outputs, output_set, target_option, units_option)
 from routeplan.vocab import YieldCase
 
 
@@ -46,16 +46,12 @@ def compare_cmd(routes: tuple[str, ...], target: str | None, json_out: str | Non
     """
     if len(routes) < 2:
         raise click.UsageError("give at least two route files to compare")
-    from routeplan.errors import Location
     from routeplan.plan.compare import compare_plans, plan_for_comparison
     from routeplan.route.load import load_route
-    from routeplan.units import parse_quantity
 
     check_output_paths(json_out=json_out, xlsx_out=xlsx_out, html_out=html_out)
     units_option(units)
-    amount = None
-    if target is not None:
-        amount = parse_quantity(target, "mass", where=Location(key="--target"))
+    amount = target_option(target)
     level = confidence_option(confidence, draws, seed)
     loaded = [load_route(path) for path in routes]
     plans, notes = plan_for_comparison(loaded, amount, yields=YieldCase(yields), confidence=level, draws=draws, seed=seed)

@@ -4,7 +4,8 @@ from __future__ import annotations
 
 import click
 
-from routeplan.commands.common import UNITS_HELP, echo_caution, echo_warnings, record_yields_option, units_option
+from routeplan.commands.common import (UNITS_HELP, echo_caution, echo_warnings, record_yields_option, target_option,
+                                       units_option)
 from routeplan.vocab import YieldCase
 
 
@@ -33,7 +34,6 @@ def explain_cmd(route: str, what: tuple[str, ...], target: str | None, stock_fil
     from routeplan.errors import Location, PlanError
     from routeplan.plan.planner import plan_route
     from routeplan.route.load import load_route
-    from routeplan.units import parse_quantity
     from routeplan.views.derivation_text import charge_text, raw_text, target_text
     from routeplan.views.display_units import plan_units
 
@@ -43,7 +43,7 @@ def explain_cmd(route: str, what: tuple[str, ...], target: str | None, stock_fil
         raise PlanError(f"cannot read '{' '.join(what)}'", location=Location(key="explain"),
                         hint="give STEP MATERIAL, 'target' or 'raw MATERIAL'")
     units_option(units)
-    amount = None if target is None else parse_quantity(target, "mass", where=Location(key="--target"))
+    amount = target_option(target)
     r = load_route(route)
     plan = plan_route(r, amount, stock=stock_file, yields=YieldCase(yields), record=record_file,
                       record_yields=record_yields, explain=True)

@@ -5,7 +5,8 @@ from __future__ import annotations
 import click
 
 from routeplan.commands.common import (UNITS_HELP, check_output_paths, confidence_option, echo_caution, echo_err,
-                                       echo_warnings, finish_outputs, output_set, record_yields_option, units_option)
+                                       echo_warnings, finish_outputs, output_set, record_yields_option, target_option,
+                                       units_option)
 from routeplan.vocab import YieldCase
 
 
@@ -60,17 +61,13 @@ def plan_cmd(route: str, target: str | None, json_out: str | None, xlsx_out: str
     --units).  With --confidence, also how sure the delivery is when the step yields
     vary within their ranges.
     """
-    from routeplan.errors import Location
     from routeplan.plan.planner import plan_route
     from routeplan.route.load import load_route
-    from routeplan.units import parse_quantity
 
     check_output_paths(json_out=json_out, xlsx_out=xlsx_out, csv_dir=csv_dir, html_out=html_out)
     units_option(units)
     record_yields_option(record_file, record_yields)
-    amount = None
-    if target is not None:
-        amount = parse_quantity(target, "mass", where=Location(key="--target"))
+    amount = target_option(target)
     level = confidence_option(confidence, draws, seed)
     r = load_route(route)
     # the report always shows derivations (closed, and left out of print unless opened);

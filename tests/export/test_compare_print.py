@@ -19,7 +19,8 @@ from routeplan.export.compare_out import write_comparison_xlsx
 from routeplan.plan.compare import compare_plans, plan_for_comparison
 from routeplan.route.load import load_route
 from routeplan.views.compare_words import shown_rows
-from test_workbook_recalc import SOFFICE, _missing, _run_soffice
+from conftest import missing_tool
+from soffice_helpers import SOFFICE, run_soffice
 
 pytestmark = pytest.mark.slow
 
@@ -29,14 +30,14 @@ ROUTES = ("demo_routes/hx17-linear.yaml", "demo_routes/hx17-convergent.yaml")
 @pytest.fixture(scope="module")
 def printed(tmp_path_factory):
     if SOFFICE is None or shutil.which("pdftotext") is None or shutil.which("pdfinfo") is None:
-        _missing("LibreOffice (soffice) and poppler (pdftotext, pdfinfo) are needed to print the comparison")
+        missing_tool("LibreOffice (soffice) and poppler (pdftotext, pdfinfo) are needed to print the comparison")
     base = tmp_path_factory.mktemp("compare-print")
     plans, notes = plan_for_comparison([load_route(p) for p in ROUTES])
     cmp = compare_plans(plans, notes)
     book = base / "compare.xlsx"
     write_comparison_xlsx(cmp, book)
     out = base / "out"
-    _run_soffice([book], out, base / "profile", to="pdf")
+    run_soffice([book], out, base / "profile", to="pdf")
     pdf = out / "compare.pdf"
     info = subprocess.run(["pdfinfo", str(pdf)], capture_output=True, text=True, check=True).stdout
     pages = int(re.search(r"^Pages:\s+(\d+)", info, re.M).group(1))

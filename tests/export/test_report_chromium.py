@@ -32,7 +32,7 @@ from pathlib import Path
 import pytest
 
 import routeplan
-from chromium_cdp import CHROMIUM, Browser
+from chromium_cdp import Browser, need_chromium
 from conftest import missing_tool as _missing, write_route
 from routeplan.export.html import write_compare_html, write_plan_html
 from routeplan.route.load import load_route_text
@@ -55,9 +55,7 @@ _FACTOR = {"t": 1000.0, "kg": 1.0, "g": 1e-3, "mg": 1e-6}
 @pytest.fixture(scope="module")
 def pages(tmp_path_factory):
     """Reports written to files: the demo plan, the comparison, 30 steps, hostile names."""
-    if CHROMIUM is None:
-        _missing("Chromium is not installed: the report tests open the page in it "
-                 "(.ci/run installs Debian's chromium)")
+    need_chromium()
     base = tmp_path_factory.mktemp("report")
     demo = routeplan.plan_route(routeplan.load_route(ROOT / "demo_routes" / "hx17-convergent.yaml"))
     write_plan_html(demo, base / "demo.html")

@@ -33,7 +33,7 @@ from pathlib import Path
 import pytest
 
 import routeplan
-from chromium_cdp import CHROMIUM, Browser
+from chromium_cdp import Browser, need_chromium
 from conftest import DATA, ROOT, missing_tool, run_cli
 from routeplan.export.html import write_plan_html
 
@@ -59,9 +59,7 @@ def _write(base: Path, name: str, route: Path, *extra: str):
 
 @pytest.fixture(scope="module")
 def pages(tmp_path_factory):
-    if CHROMIUM is None:
-        missing_tool("Chromium is not installed: the report tests open the page in it "
-                     "(.ci/run installs Debian's chromium)")
+    need_chromium()
     base = tmp_path_factory.mktemp("derivation-report")
     out = {name: _write(base, name, route) for name, route in
            (("linear", LINEAR), ("convergent", CONVERGENT), ("shared", DATA / "routes" / "shared.yaml"))}

@@ -1,7 +1,7 @@
 """The Derivation sheet with live formulas, recalculated by a real spreadsheet: LibreOffice headless.
 
 External check (source: LibreOffice Calc, run headless with "always recalculate" on
-load, as in test_workbook_recalc.py; a canary formula stored with a wrong value must come
+load, as in test_workbook_recalc.py (tests/soffice_helpers.py); a canary formula stored with a wrong value must come
 back right): every line's result on the sheet is a formula over its factor cells, and a
 factor that is an earlier result is a formula pointing at that result's cell (in the same
 block, or in the block of the step that derives it).  After LibreOffice recalculates
@@ -15,23 +15,20 @@ from __future__ import annotations
 
 import math
 import re
-import shutil
-from pathlib import Path
 
 import openpyxl
 import pytest
 
 import routeplan
 from routeplan import CAUTION
-from conftest import DATA, ROOT, missing_tool
+from conftest import DATA, ROOT
 from routeplan.export.workbook import write_workbook
 from routeplan.export.workbook_derivation import DERIVATION_COLUMNS, DERIVATION_SHEET, DERIVATION_TOP
 from routeplan.views.derivation_text import sheet_blocks
-from test_workbook_recalc import _run_soffice
+from soffice_helpers import canary_value, need_soffice, run_soffice, write_canary
 
 pytestmark = pytest.mark.slow
 
-SOFFICE = shutil.which("soffice")
 COL = {key: i for i, (_h, key) in enumerate(DERIVATION_COLUMNS)}
 LINEAR = ROOT / "demo_routes" / "hx17-linear.yaml"
 CONVERGENT = ROOT / "demo_routes" / "hx17-convergent.yaml"
@@ -51,22 +48,14 @@ def _plans():
 
 @pytest.fixture(scope="module")
 def sheets(tmp_path_factory):
-    if SOFFICE is None:
-        missing_tool("LibreOffice (soffice) is not installed: the recalculation check needs it "
-                     "(.ci/run installs libreoffice-calc-nogui)")
-    import xlsxwriter
-
+    need_soffice()
     base = tmp_path_factory.mktemp("derivation")
     src, out = base / "in", base / "out"
     src.mkdir()
     plans = _plans()
     files = [write_workbook(plan, src / f"{name}.xlsx") for name, plan in plans.items()]
-    canary = src / "canary.xlsx"
-    cw = xlsxwriter.Workbook(str(canary))
-    cw.add_worksheet("c").write_formula(0, 0, "=2*3", None, 999)
-    cw.close()
-    _run_soffice([*files, canary], out, base / "profile")
-    assert openpyxl.load_workbook(out / "canary.xlsx", data_only=True)["c"]["A1"].value == 6
+    run_soffice([*files, write_canary(src)], out, base / "profile")
+    assert canary_value(out) == 6
     return {name: (plan, openpyxl.load_workbook(src / f"{name}.xlsx")[DERIVATION_SHEET],
                    openpyxl.load_workbook(out / f"{name}.xlsx", data_only=True)[DERIVATION_SHEET])
             for name, plan in plans.items()}

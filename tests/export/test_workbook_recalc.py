@@ -29,7 +29,6 @@ from __future__ import annotations
 import re
 import shutil
 import subprocess
-from pathlib import Path
 from types import SimpleNamespace
 
 import openpyxl
@@ -37,19 +36,11 @@ import pytest
 
 from routeplan.export.workbook import charge_sheet_names, write_workbook
 from conftest import missing_tool as _missing
+from soffice_helpers import SOFFICE, canary_value, need_soffice, run_soffice, write_canary
 from test_workbook import WRITTEN, _raw_table, charge_table, close, header_value, make_plan
 from test_workbook_summary import column_widths, make_stock_plan, printed_px, stock_table
 
 pytestmark = pytest.mark.slow
-
-SOFFICE = shutil.which("soffice")
-
-_PROFILE_SETTINGS = """<?xml version="1.0" encoding="UTF-8"?>
-<oor:items xmlns:oor="http://openoffice.org/2001/registry" xmlns:xs="http://www.w3.org/2001/XMLSchema"
-           xmlns:xsi="http://www.w3.org/2001/XMLSchema-instance">
-<item oor:path="/org.openoffice.Office.Calc/Formula/Load"><prop oor:name="OOXMLRecalcMode" oor:op="fuse"><value>0</value></prop></item>
-</oor:items>
-"""
 
 # Lot assays typed in the copy: (sheet index in charge_sheet_names, material, lot assay [-])
 LOTS = [
@@ -97,26 +88,14 @@ def _actuals(plan, names):
             ("water", "actual mass charged [kg]", m_water * WATER_OVER)]
 
 
-def _run_soffice(files: list[Path], out: Path, profile: Path, to: str = "xlsx") -> None:
-    (profile / "user").mkdir(parents=True)
-    (profile / "user" / "registrymodifications.xcu").write_text(_PROFILE_SETTINGS, encoding="utf-8")
-    cmd = [SOFFICE, f"-env:UserInstallation={profile.as_uri()}", "--headless", "--norestore",
-           "--convert-to", to, "--outdir", str(out), *map(str, files)]
-    done = subprocess.run(cmd, capture_output=True, text=True, timeout=180)
-    missing = [f.name for f in files if not (out / f.with_suffix("." + to).name).is_file()]
-    assert not missing, f"soffice did not convert {missing}: {done.stdout}\n{done.stderr}"
-
-
 def recalculated(tmp_path_factory, plan, name: str):
     """``plan``'s workbook written and recalculated by LibreOffice, read back (values only)."""
-    if SOFFICE is None:
-        _missing("LibreOffice (soffice) is not installed: the recalculation check needs it "
-                 "(.ci/run installs libreoffice-calc-nogui)")
+    need_soffice()
     base = tmp_path_factory.mktemp(name)
     src, out = base / "in", base / "out"
     src.mkdir()
     write_workbook(plan, src / f"{name}.xlsx", written=WRITTEN)
-    _run_soffice([src / f"{name}.xlsx"], out, base / "profile")
+    run_soffice([src / f"{name}.xlsx"], out, base / "profile")
     return openpyxl.load_workbook(out / f"{name}.xlsx", data_only=True)
 
 
@@ -130,11 +109,7 @@ def _row_of(ws, material):
 
 @pytest.fixture(scope="module")
 def recalc(tmp_path_factory):
-    if SOFFICE is None:
-        _missing("LibreOffice (soffice) is not installed: the recalculation check needs it "
-                 "(.ci/run installs libreoffice-calc-nogui)")
-    import xlsxwriter
-
+    need_soffice()
     base = tmp_path_factory.mktemp("recalc")
     src, out = base / "in", base / "out"
     src.mkdir()
@@ -172,14 +147,7 @@ def recalc(tmp_path_factory):
             ws.cell(r, col["on hand [kg]"]).value = ON_HAND_TYPED[key]
     wb.save(typed)
 
-    canary = src / "canary.xlsx"
-    cw = xlsxwriter.Workbook(str(canary))
-    sheet = cw.add_worksheet("c")
-    sheet.write_number(0, 0, 2)
-    sheet.write_formula(0, 1, "=A1*3", None, 999)
-    cw.close()
-
-    _run_soffice([original, lots, actuals, stock, typed, canary], out, base / "profile")
+    run_soffice([original, lots, actuals, stock, typed, write_canary(src)], out, base / "profile")
     return SimpleNamespace(
         plan=plan, names=names, stock_plan=stock_plan,
         stock=openpyxl.load_workbook(out / "stock.xlsx", data_only=True),
@@ -187,12 +155,12 @@ def recalc(tmp_path_factory):
         planned=openpyxl.load_workbook(out / "plan.xlsx", data_only=True),
         lots=openpyxl.load_workbook(out / "lots.xlsx", data_only=True),
         actuals=openpyxl.load_workbook(out / "actuals.xlsx", data_only=True),
-        canary=openpyxl.load_workbook(out / "canary.xlsx", data_only=True),
+        canary=canary_value(out),
     )
 
 
 def test_libreoffice_did_recalculate(recalc):
-    assert recalc.canary["c"]["B1"].value == 6
+    assert recalc.canary == 6
 
 
 def test_recalculated_charges_equal_the_plan(recalc):
@@ -383,7 +351,7 @@ def printed(tmp_path_factory):
     plan = make_plan()
     book = base / "plan.xlsx"
     write_workbook(plan, book, written=WRITTEN)
-    _run_soffice([book], out, base / "profile", to="pdf")
+    run_soffice([book], out, base / "profile", to="pdf")
     xml = subprocess.run(["pdftotext", "-bbox", str(out / "plan.pdf"), "-"], capture_output=True,
                          text=True, check=True).stdout
     pages = [[(float(x), float(y), w) for x, y, w in _WORD.findall(page)] for page in xml.split("<page ")[1:]]

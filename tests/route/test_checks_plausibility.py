@@ -8,20 +8,12 @@ words of the message and of the suggested fix, and no traceback.
 
 from __future__ import annotations
 
-import re
-
 import pytest
 
 from conftest import run_cli, write_route
 from routeplan.errors import RouteError
 from routeplan.route.load import load_route, load_route_text
-from route_edits import change, line_of
-
-
-def problem_lines(stderr: str, severity: str, path, line: int, key: str) -> list[str]:
-    """Lines of ``stderr`` reporting a ``severity`` at ``path:line:`` for ``key``."""
-    pattern = re.escape(f"{severity}: {path}:{line}:") + r"\d+: " + re.escape(key) + ": "
-    return [t for t in stderr.splitlines() if re.match(pattern, t)]
+from route_edits import change, line_of, problem_lines
 
 
 def assert_one_error(tmp_path, text: str, key: str, marker, words: list[str]) -> str:

@@ -7,13 +7,11 @@ warning is printed on standard error with its line and key, and it is in
 
 from __future__ import annotations
 
-import re
-
 import pytest
 
-from conftest import GOOD_ROUTE, run_cli, write_route
+from conftest import GOOD_ROUTE, run_cli, run_edited, write_route
 from routeplan.route.load import load_route, load_route_text
-from route_edits import change, line_of
+from route_edits import change, line_of, problem_lines
 
 DEAD_END = """
   - id: S5
@@ -39,15 +37,12 @@ WARNINGS = [
 
 @pytest.mark.parametrize("edits,key,marker,words", [w[1:] for w in WARNINGS], ids=[w[0] for w in WARNINGS])
 def test_warning(tmp_path, edits, key, marker, words):
-    text = change(GOOD_ROUTE.read_text(encoding="utf-8"), edits)
-    path = write_route(tmp_path, text)
+    text, path, result = run_edited(tmp_path, GOOD_ROUTE.read_text(encoding="utf-8"), edits)
     line = line_of(text, marker)
-    result = run_cli("check", path)
     assert result.exit_code == 0, result.output
     assert "Traceback" not in result.output
     assert f"{path}: valid" in result.stdout
-    hits = [t for t in result.stderr.splitlines()
-            if re.match(re.escape(f"warning: {path}:{line}:") + r"\d+: " + re.escape(key) + ": ", t)]
+    hits = problem_lines(result.stderr, "warning", path, line, key)
     assert hits and words in hits[0], result.stderr
     route = load_route(path)
     assert len(route.warnings) == 1

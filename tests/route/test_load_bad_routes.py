@@ -9,12 +9,10 @@ shown.
 
 from __future__ import annotations
 
-import re
-
 import pytest
 
-from conftest import GOOD_ROUTE, run_cli, write_route
-from route_edits import change, line_of
+from conftest import GOOD_ROUTE, run_cli, run_edited, write_route
+from route_edits import change, line_of, problem_lines
 
 
 # id, edits, key path in the message, marker of the line, words of the message
@@ -163,15 +161,12 @@ CASES = [
 
 @pytest.mark.parametrize("edits,key,marker,words", [c[1:] for c in CASES], ids=[c[0] for c in CASES])
 def test_bad_route(tmp_path, edits, key, marker, words):
-    text = change(GOOD_ROUTE.read_text(encoding="utf-8"), edits)
-    path = write_route(tmp_path, text)
+    text, path, result = run_edited(tmp_path, GOOD_ROUTE.read_text(encoding="utf-8"), edits)
     line = line_of(text, marker)
-    result = run_cli("check", path)
     assert result.exit_code == 2, result.output
     assert "Traceback" not in result.output
     assert result.stdout == ""
-    pattern = re.escape(f"error: {path}:{line}:") + r"\d+: " + (re.escape(key) + ": " if key else "")
-    hits = [t for t in result.stderr.splitlines() if re.match(pattern, t)]
+    hits = problem_lines(result.stderr, "error", path, line, key)
     assert hits, f"no error at line {line} for {key}:\n{result.stderr}"
     assert any(words in t for t in hits), result.stderr
 
