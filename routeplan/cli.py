@@ -59,8 +59,10 @@ class _Funnel(click.Group):
             return result
         except RouteplanError as exc:
             _err(f"error: {exc.render()}")
-            for p in getattr(exc, "warnings", ()):  # found in the same pass: every finding in one run
-                _err(f"warning: {p.render()}")
+            if getattr(exc, "warnings", ()):  # found in the same pass: every finding in one run
+                from routeplan.commands.common import echo_warnings
+
+                echo_warnings(exc.warnings)  # as every command prints warnings: once each, folded on a terminal
             ctx.exit(EXIT_BAD_INPUT)
         except (click.exceptions.Exit, click.exceptions.Abort, click.ClickException):
             raise
